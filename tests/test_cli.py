@@ -1,0 +1,305 @@
+"""The command line as a user runs it: options, output formats, errors and exit codes."""
+
+import io
+import json
+import re
+import subprocess
+import sys
+import types
+
+import polars as pl
+import pytest
+
+from variantcmp.caution import CAUTION
+from variantcmp.catalogue import demo_catalogue_path, load_catalogue
+from variantcmp.cli import main
+
+REQUIRED_COLUMNS = [
+    "variant", "engine", "weight_kg", "isa_dev_c", "mach", "climb_fpm",
+    "thrust_ceiling_ft", "buffet_ceiling_ft", "max_altitude_ft", "limit",
+]
+LIMIT_COLUMNS = [
+    "thrust_ceiling_ft", "buffet_ceiling_ft", "stall_ceiling_ft",
+    "certified_ceiling_ft", "cabin_ceiling_ft",
+]
+LIMIT_NAMES = {"thrust", "buffet", "stall", "certified", "cabin", "none"}
+
+
+@pytest.fixture(scope="module")
+def demo():
+    return load_catalogue(demo_catalogue_path())
+
+
+def pairs(catalogue):
+    """Number of variant x engine option combinations in a catalogue."""
+    return sum(len(v.engine_options) for v in catalogue.variants.values())
+
+
+def run(capsys, *argv):
+    status = main(list(argv))
+    out, err = capsys.readouterr()
+    return status, out, err
+
+
+def read_csv(text):
+    return pl.read_csv(io.StringIO(text), infer_schema_length=None)
+
+
+def squash(text):
+    return " ".join(text.split())
+
+
+# --- ceilings: rows and columns ----------------------------------------------------------
+
+def test_isa_list_with_equals_gives_three_rows_per_case(capsys, demo):
+    status, out, err = run(capsys, "ceilings", "--weight", "100%mtow", "--isa=-10,0,15", "--format", "csv")
+    assert status == 0, err
+    frame = read_csv(out)
+    assert frame.height == pairs(demo) * 3
+    per_case = frame.group_by("variant", "engine", "weight_kg").agg(pl.col("isa_dev_c").sort())
+    assert per_case.height == pairs(demo)
+    assert all(devs.to_list() == [-10.0, 0.0, 15.0] for devs in per_case["isa_dev_c"])
+
+
+@pytest.mark.parametrize("isa_args", [["--isa", "-10,0,15"], ["--isa", "ISA-10,ISA,ISA+15"],
+                                      ["--isa", "-10", "--isa", "0,15"]])
+def test_negative_isa_without_equals(capsys, isa_args):
+    # argparse alone would take "-10,0,15" for an option; the CLI must not.
+    status, expected, _ = run(capsys, "ceilings", "--isa=-10,0,15", "--format", "csv")
+    assert status == 0
+    status, out, err = run(capsys, "ceilings", *isa_args, "--format", "csv")
+    assert status == 0, err
+    assert out == expected
+
+
+def test_weights_rows_and_unit_conversion(capsys, demo):
+    variant = next(iter(demo.variants.values()))
+    status, out, err = run(capsys, "ceilings", "--variant", variant.id, "--weight",
+                           f"{variant.mtow_kg * 0.9:.0f},90%mtow,140000lb", "--format", "csv")
+    assert status == 0, err
+    frame = read_csv(out)
+    assert frame.height == 3 * len(variant.engine_options)
+    weights = sorted(set(frame["weight_kg"].to_list()))
+    # 140,000 lb x 0.45359237 kg/lb (exact pound definition, 1959) = 63,502.93 kg
+    assert any(abs(w - 140000 * 0.45359237) < 0.01 for w in weights)
+    # 90 %MTOW typed as a share or in kg (rounded to 1 kg) gives the same ceilings
+    near = frame.filter((pl.col("weight_kg") - variant.mtow_kg * 0.9).abs() < 1.0)
+    assert near.height == 2 * len(variant.engine_options)
+    spread = near.group_by("engine").agg(
+        (pl.col("max_altitude_ft").max() - pl.col("max_altitude_ft").min()).alias("spread"))
+    assert (spread["spread"].fill_null(0.0) < 5.0).all()
+
+
+def test_csv_is_data_only_with_required_columns(capsys):
+    status, out, err = run(capsys, "ceilings", "--weight", "95%mtow", "--isa=0,20", "--format", "csv")
+    assert status == 0, err
+    header = out.splitlines()[0].split(",")
+    for column in REQUIRED_COLUMNS + LIMIT_COLUMNS + ["flight_level"]:
+        assert column in header
+    frame = read_csv(out)
+    assert set(frame["limit"].drop_nulls().to_list()) <= LIMIT_NAMES
+    assert "Caution" not in out and squash(CAUTION) in squash(err)
+    assert not re.search(r"\b(nan|NaN|inf|None)\b", out)
+
+
+def test_max_altitude_never_above_any_limit(capsys):
+    status, out, _ = run(capsys, "ceilings", "--weight", "80%mtow,100%mtow", "--isa=-10,0,25",
+                         "--climb", "absolute,service,cruise", "--format", "csv")
+    assert status == 0
+    frame = read_csv(out)
+    for column in LIMIT_COLUMNS:
+        both = frame.filter(pl.col("max_altitude_ft").is_not_null() & pl.col(column).is_not_null())
+        assert (both["max_altitude_ft"] <= both[column] + 1e-6).all(), column
+
+
+def test_unavailable_values_are_empty_csv_fields_and_json_nulls(capsys):
+    # At twice MTOW on an ISA+60 day no transport can hold 5,000 ft/min: no altitude exists.
+    args = ["ceilings", "--weight", "200%mtow", "--isa=60", "--climb", "5000"]
+    status, out, err = run(capsys, *args, "--format", "csv")
+    assert status == 0, err
+    header = out.splitlines()[0].split(",")
+    col = header.index("max_altitude_ft")
+    rows = [line.split(",") for line in out.splitlines()[1:]]
+    assert rows and all(row[col] == "" for row in rows)
+    frame = read_csv(out)
+    assert frame["max_altitude_ft"].null_count() == frame.height
+    assert frame["note"].drop_nulls().str.len_chars().min() > 0  # each row says why
+
+    status, out, err = run(capsys, *args, "--format", "json")
+    assert status == 0, err
+    records = json.loads(out)
+    assert len(records) == frame.height
+    assert all(r["max_altitude_ft"] is None and r["flight_level"] is None for r in records)
+    assert squash(CAUTION) in squash(err)
+
+
+def test_json_matches_csv(capsys):
+    _, csv_out, _ = run(capsys, "ceilings", "--isa=0,15", "--format", "csv")
+    _, json_out, _ = run(capsys, "ceilings", "--isa=0,15", "--format", "json")
+    records = json.loads(json_out)
+    frame = read_csv(csv_out)
+    assert isinstance(records, list) and len(records) == frame.height
+    assert set(REQUIRED_COLUMNS) <= set(records[0])
+    assert [r["max_altitude_ft"] for r in records] == pytest.approx(
+        frame["max_altitude_ft"].to_list(), abs=1e-6)
+
+
+def test_table_shows_flight_levels_limits_and_caution(capsys):
+    status, out, err = run(capsys, "ceilings", "--weight", "100%mtow", "--isa=0,15")
+    assert status == 0, err
+    assert re.search(r"FL\d{3}", out)
+    assert re.search(r"\b(thrust|buffet|stall|certified|cabin)\b", out)
+    assert squash(CAUTION) in squash(out)
+
+
+def test_target_adds_margin_columns(capsys):
+    status, out, err = run(capsys, "ceilings", "--target", "FL350", "--format", "csv")
+    assert status == 0, err
+    frame = read_csv(out)
+    assert {"target_ft", "margin_ft", "reaches_target"} <= set(frame.columns)
+    assert (frame["target_ft"] == 35000.0).all()
+
+
+def test_variant_and_engine_selection(capsys, demo):
+    variant = next(iter(demo.variants.values()))
+    engine = variant.engine_options[0]
+    status, out, err = run(capsys, "ceilings", "--variant", variant.id, "--engine", engine, "--format", "csv")
+    assert status == 0, err
+    frame = read_csv(out)
+    assert frame["variant"].unique().to_list() == [variant.id]
+    assert frame["engine"].unique().to_list() == [engine]
+
+
+def test_positional_catalogue_and_bundled_name(capsys):
+    path = str(demo_catalogue_path())
+    status, by_path, _ = run(capsys, "ceilings", path, "--format", "csv")
+    assert status == 0
+    status, by_default, _ = run(capsys, "ceilings", "--format", "csv")
+    status2, by_name, _ = run(capsys, "ceilings", demo_catalogue_path().stem, "--format", "csv")
+    assert status == status2 == 0
+    assert by_path == by_default == by_name
+
+
+# --- user errors: one message, exit 2, no traceback ---------------------------------------------
+
+@pytest.mark.parametrize(
+    "args, fragment",
+    [
+        (["--weight", "heavy"], "--weight: cannot use 'heavy'"),
+        (["--weight", "62,000"], "thousands separator"),
+        (["--weight", "-5t"], "--weight"),
+        (["--isa", "hot"], "--isa: cannot use 'hot'"),
+        (["--mach", "1.2"], "--mach: cannot use '1.2'"),
+        (["--mach", "0"], "--mach"),
+        (["--climb", "-100"], "--climb: cannot use '-100'"),
+        (["--climb=-100"], "0 ft/min or more"),
+        (["--g-margin", "0.5"], "--g-margin"),
+        (["--target", "FL9999"], "--target"),
+        (["--variant", "no-such-variant"], "no-such-variant"),
+        (["--engine", "no-such-engine"], "no-such-engine"),
+        (["--format", "xml"], "--format"),
+        (["--isa"], "--isa"),
+        (["--bogus"], "--bogus"),
+    ],
+)
+def test_bad_ceilings_options_exit_2(capsys, args, fragment):
+    status, out, err = run(capsys, "ceilings", *args)
+    assert status == 2
+    assert fragment in err
+    assert "Traceback" not in err
+    assert out == ""
+
+
+def test_missing_catalogue_exits_2(capsys, tmp_path):
+    missing = tmp_path / "nowhere.toml"
+    status, out, err = run(capsys, "ceilings", str(missing))
+    assert status == 2
+    assert str(missing) in err and "Traceback" not in err and out == ""
+
+
+def test_broken_catalogue_lists_every_problem(capsys, tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text('[catalogue]\ntitel = "x"\n\n[[engine]]\nid = "e1"\nmodel = "rocket"\n', encoding="utf-8")
+    for command in ("check", "ceilings"):
+        status, out, err = run(capsys, command, str(bad))
+        assert status == 2
+        lines = err.strip().splitlines()
+        assert len(lines) >= 3  # unknown key, missing title, bad model, no variant ...
+        assert all(line.startswith(f"{bad}: ") for line in lines)
+        assert "Traceback" not in err and out == ""
+
+
+def test_binary_file_as_catalogue(capsys, tmp_path):
+    blob = tmp_path / "blob.toml"
+    blob.write_bytes(b"\x00\x01\x02\xff" * 64)
+    status, _, err = run(capsys, "check", str(blob))
+    assert status == 2 and str(blob) in err
+
+
+def test_unknown_command_suggests(capsys):
+    status, _, err = run(capsys, "ceiling", "--isa=0")
+    assert status == 2
+    assert "did you mean 'ceilings'" in err
+
+
+# --- check, help, version ------------------------------------------------------------------
+
+def test_check_demo(capsys, demo):
+    status, out, err = run(capsys, "check", str(demo_catalogue_path()))
+    assert status == 0, err
+    assert "OK" in out
+    for variant_id in demo.variants:
+        assert variant_id in out
+    assert squash(CAUTION) in squash(out)
+
+
+def test_help_and_version(capsys):
+    status, out, _ = run(capsys, "--help")
+    assert status == 0 and "ceilings" in out and "check" in out
+    status, out, _ = run(capsys, "ceilings", "--help")
+    assert status == 0 and "--isa" in out and "--weight" in out
+    status, out, _ = run(capsys, "--version")
+    assert status == 0 and re.search(r"\d+\.\d+", out)
+
+
+# --- the app launcher ------------------------------------------------------------------------
+
+@pytest.fixture
+def fake_app(monkeypatch):
+    calls = []
+    module = types.ModuleType("variantcmp.app")
+    module.run_app = lambda path: calls.append(path) or 0
+    monkeypatch.setitem(sys.modules, "variantcmp.app", module)
+    return calls
+
+
+def test_no_command_opens_app_on_demo(capsys, fake_app):
+    assert main([]) == 0
+    assert [str(p) for p in fake_app] == [str(demo_catalogue_path())]
+
+
+def test_catalogue_path_opens_app(capsys, fake_app):
+    path = str(demo_catalogue_path())
+    assert main([path]) == 0
+    assert [str(p) for p in fake_app] == [path]
+
+
+def test_app_refuses_broken_catalogue_before_starting(capsys, fake_app, tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text("not toml at all = = =\n", encoding="utf-8")
+    status, _, err = run(capsys, str(bad))
+    assert status == 2 and str(bad) in err and "line 1" in err
+    assert fake_app == []
+
+
+# --- as a separate process --------------------------------------------------------------------
+
+def test_python_dash_m_runs_and_fails_cleanly():
+    ok = subprocess.run([sys.executable, "-m", "variantcmp", "ceilings", "--isa", "-10,0,15",
+                         "--format", "csv"], capture_output=True, text=True, timeout=300)
+    assert ok.returncode == 0, ok.stderr
+    assert ok.stdout.splitlines()[0].startswith("variant,engine,")
+    bad = subprocess.run([sys.executable, "-m", "variantcmp", "ceilings", "--mach", "1.2"],
+                         capture_output=True, text=True, timeout=300)
+    assert bad.returncode == 2
+    assert "--mach" in bad.stderr and "Traceback" not in bad.stderr

@@ -1,0 +1,278 @@
+"""The compare screen: the shared conditions, and one row per variant x engine option."""
+
+from __future__ import annotations
+
+import polars as pl
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Grid, Horizontal
+from textual.screen import Screen
+from textual.widgets import DataTable, Footer, Input, Label, ProgressBar, Static
+
+from variantcmp.caution import CAUTION
+
+from .form import FIELDS
+from .results import Results, export_frame
+from .view import COLUMNS_BY_KEY, ROW_KEY, Column, filter_rows, header, row_cells, sort_rows, visible_columns
+
+# How long a computation may run before the progress bar appears, s.
+BUSY_DELAY_S = 0.15
+
+
+class CompareScreen(Screen):
+    """Main screen. Later views (envelopes, sweeps) read `selected_row()` and the app's conditions."""
+
+    BINDINGS = [
+        Binding("c", "focus_conditions", "Conditions"),
+        Binding("slash", "focus_filter", "Filter"),
+        Binding("s", "sort_next", "Sort"),
+        Binding("S", "sort_previous", "Sort back", show=False),
+        Binding("r", "reverse_sort", "Reverse sort", show=False),
+        Binding("b", "baseline", "Baseline"),
+        Binding("i", "inspect", "Inspect"),
+        Binding("h", "hot_day", "Hot day"),
+        Binding("e", "export", "Export"),
+        Binding("o", "open", "Open"),
+        Binding("l", "reload", "Reload", show=False),
+        Binding("escape", "focus_table", "Back to table", show=False),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.sort_key: str | None = None
+        self.descending = False
+        self.baseline_key: str | None = None
+        self.view_df: pl.DataFrame | None = None  # rows as shown: filtered and sorted
+        self._headers: tuple[str, ...] = ()
+        self._busy_timer = None
+
+    # --- layout ------------------------------------------------------------------
+
+    def compose(self) -> ComposeResult:
+        yield Static(CAUTION, id="caution")
+        with Grid(id="conditions"):
+            for field in FIELDS:
+                with Horizontal(classes="field"):
+                    yield Label(field.label, classes="field-label")
+                    yield Input(
+                        self.app.texts[field.key],
+                        placeholder=field.placeholder,
+                        id=f"field-{field.key}",
+                        classes="condition",
+                        compact=True,
+                        tooltip=field.help,
+                    )
+        yield Static("", id="field-errors")
+        with Horizontal(id="status-row"):
+            yield Label("Filter", classes="field-label")
+            yield Input(placeholder="variant, engine, limit", id="filter", compact=True)
+            yield Static("", id="status")
+            yield ProgressBar(total=None, show_eta=False, show_percentage=False, id="busy")
+        yield DataTable(id="table", cursor_type="row", zebra_stripes=True, fixed_columns=2)
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self.query_one("#conditions").border_title = "Conditions"
+        self.app.results_signal.subscribe(self, self.show_results)
+        self.app.catalogue_signal.subscribe(self, lambda _: self.refresh_titles())
+        self.app.busy_signal.subscribe(self, self.show_busy)
+        self.refresh_titles()
+        if self.app.results is not None:
+            self.show_results(self.app.results)
+        self.query_one(DataTable).focus()
+
+    # --- what the app tells this screen ------------------------------------------
+
+    def refresh_titles(self) -> None:
+        app = self.app
+        panel = self.query_one("#conditions")
+        if app.catalogue is None:
+            panel.border_subtitle = "no catalogue loaded: o to open one"
+        elif app.problems:
+            panel.border_subtitle = f"{app.catalogue.title} (last good: {app.catalogue_path.name} has problems)"
+        else:
+            panel.border_subtitle = app.catalogue.title
+        if app.catalogue is None:
+            self.query_one("#status", Static).update("No catalogue loaded: press o to open one.")
+
+    def show_busy(self, busy: bool) -> None:
+        bar = self.query_one("#busy", ProgressBar)
+        if self._busy_timer is not None:
+            self._busy_timer.stop()
+            self._busy_timer = None
+        if busy:
+            self._busy_timer = self.set_timer(BUSY_DELAY_S, lambda: bar.set_class(True, "-shown"))
+        else:
+            bar.set_class(False, "-shown")
+
+    def show_results(self, results: Results) -> None:
+        errors = self.query_one("#field-errors", Static)
+        if results.error:
+            errors.update(f"✗ {results.error} (showing the last table that could be computed)")
+            errors.set_class(True, "-shown")
+            return
+        self.show_field_errors(self.app.field_errors)
+        self.render_table()
+
+    def show_field_errors(self, field_errors: dict[str, str]) -> None:
+        for field in FIELDS:
+            self.query_one(f"#field-{field.key}", Input).set_class(field.key in field_errors, "-bad")
+        errors = self.query_one("#field-errors", Static)
+        if field_errors:
+            lines = [f"✗ {message}" for message in field_errors.values()]
+            errors.update("\n".join(lines) + "\n  (the table keeps the last good conditions)")
+        errors.set_class(bool(field_errors), "-shown")
+
+    # --- the table ----------------------------------------------------------------
+
+    def _sort_column(self) -> Column | None:
+        return COLUMNS_BY_KEY.get(self.sort_key) if self.sort_key else None
+
+    def cursor_key(self) -> str | None:
+        table = self.query_one(DataTable)
+        if table.row_count == 0:
+            return None
+        return table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value
+
+    def selected_row(self) -> dict | None:
+        """The row under the cursor, as a dict of the shared table's columns."""
+        key = self.cursor_key()
+        if key is None or self.view_df is None:
+            return None
+        rows = self.view_df.filter(pl.col(ROW_KEY) == key).to_dicts()
+        return rows[0] if rows else None
+
+    def render_table(self) -> None:
+        results = self.app.results
+        table = self.query_one(DataTable)
+        if results is None or results.df is None:
+            return
+        df = results.df
+        filter_text = self.query_one("#filter", Input).value
+        view = sort_rows(filter_rows(df, filter_text), self._sort_column(), self.descending)
+        self.view_df = view
+        baseline = None
+        if self.baseline_key is not None:
+            found = df.filter(pl.col(ROW_KEY) == self.baseline_key).to_dicts()
+            baseline = found[0] if found else None
+            if baseline is None:
+                self.baseline_key = None
+        columns = visible_columns(df)
+        headers = tuple(header(c, self.sort_key, self.descending, baseline is not None) for c in columns)
+        keep = self.cursor_key()
+        scroll_x = table.scroll_x
+        if headers != self._headers:
+            table.clear(columns=True)
+            for column, label in zip(columns, headers):
+                table.add_column(label, key=column.key)
+            self._headers = headers
+        else:
+            table.clear()
+        for row in view.iter_rows(named=True):
+            table.add_row(*row_cells(columns, row, baseline), key=row[ROW_KEY])
+        if keep is not None and keep in table.rows:
+            table.move_cursor(row=table.get_row_index(keep), animate=False)
+        table.scroll_x = scroll_x
+        self.update_status(results, view)
+
+    def update_status(self, results: Results, view: pl.DataFrame) -> None:
+        parts = [f"{view.height}/{results.df.height} rows"]
+        column = self._sort_column()
+        if column is not None:
+            parts.append(f"sorted by {column.header} {'▼' if self.descending else '▲'}")
+        if self.baseline_key is not None:
+            variant, engine, _ = self.baseline_key.split("|")
+            parts.append(f"baseline {variant}/{engine}")
+        parts.append(f"{results.compute_ms:.0f} ms")
+        self.query_one("#status", Static).update(" · ".join(parts))
+
+    # --- events -------------------------------------------------------------------
+
+    @on(Input.Changed, ".condition")
+    def condition_changed(self, event: Input.Changed) -> None:
+        key = event.input.id.removeprefix("field-")
+        self.show_field_errors(self.app.set_condition_text(key, event.value))
+
+    @on(Input.Submitted, ".condition")
+    @on(Input.Submitted, "#filter")
+    def input_submitted(self) -> None:
+        self.query_one(DataTable).focus()
+
+    @on(Input.Changed, "#filter")
+    def filter_changed(self) -> None:
+        self.render_table()
+
+    @on(DataTable.HeaderSelected)
+    def header_selected(self, event: DataTable.HeaderSelected) -> None:
+        key = event.column_key.value
+        if key == self.sort_key:
+            self.descending = not self.descending
+        else:
+            self.sort_key = key
+            self.descending = COLUMNS_BY_KEY[key].high_first
+        self.render_table()
+
+    @on(DataTable.RowSelected)
+    def row_selected(self) -> None:
+        self.action_inspect()
+
+    # --- actions ------------------------------------------------------------------
+
+    def action_focus_conditions(self) -> None:
+        self.query_one(f"#field-{FIELDS[0].key}", Input).focus()
+
+    def action_focus_filter(self) -> None:
+        self.query_one("#filter", Input).focus()
+
+    def action_focus_table(self) -> None:
+        self.query_one(DataTable).focus()
+
+    def _sort_step(self, step: int) -> None:
+        results = self.app.results
+        if results is None or results.df is None:
+            return
+        cycle: list[str | None] = [c.key for c in visible_columns(results.df)]
+        start = cycle.index("fl")
+        cycle = cycle[start:] + cycle[:start] + [None]  # ends with catalogue order
+        position = cycle.index(self.sort_key) if self.sort_key in cycle else len(cycle) - 1
+        self.sort_key = cycle[(position + step) % len(cycle)]
+        self.descending = bool(self.sort_key and COLUMNS_BY_KEY[self.sort_key].high_first)
+        self.render_table()
+
+    def action_sort_next(self) -> None:
+        self._sort_step(1)
+
+    def action_sort_previous(self) -> None:
+        self._sort_step(-1)
+
+    def action_reverse_sort(self) -> None:
+        if self.sort_key is not None:
+            self.descending = not self.descending
+            self.render_table()
+
+    def action_baseline(self) -> None:
+        key = self.cursor_key()
+        if key is None:
+            return
+        self.baseline_key = None if key == self.baseline_key else key
+        self._headers = ()  # headers gain or lose their delta sign
+        self.render_table()
+
+    def action_inspect(self) -> None:
+        row = self.selected_row()
+        if row is not None:
+            self.app.inspect_variant(row["variant"])
+
+    def action_hot_day(self) -> None:
+        self.app.switch_mode("hotday")
+
+    def action_export(self) -> None:
+        if self.view_df is not None:
+            self.app.export_table(export_frame(self.view_df), "variantcmp-compare")
+
+    def action_open(self) -> None:
+        self.app.ask_open()
+
+    def action_reload(self) -> None:
+        self.app.reload_catalogue()

@@ -1,0 +1,229 @@
+"""Dialogs: open a catalogue, a catalogue's problems, export a table, confirm an overwrite."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import polars as pl
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.screen import ModalScreen
+from textual.suggester import Suggester
+from textual.widgets import Button, DataTable, Footer, Input, Label, Static
+
+from variantcmp.catalogue import Catalogue, Problem
+
+EXPORT_FORMATS = {".csv": "CSV", ".parquet": "Parquet", ".json": "JSON"}
+
+
+class PathSuggester(Suggester):
+    """Completes a typed path with the first matching file or folder name."""
+
+    def __init__(self, suffixes: tuple[str, ...] = ()) -> None:
+        super().__init__(use_cache=False, case_sensitive=True)
+        self.suffixes = suffixes
+
+    async def get_suggestion(self, value: str) -> str | None:
+        if not value:
+            return None
+        typed = Path(value).expanduser()
+        folder, stem = (typed, "") if value.endswith("/") else (typed.parent, typed.name)
+        try:
+            names = sorted(p for p in folder.iterdir() if p.name.startswith(stem) and not p.name.startswith("."))
+        except OSError:
+            return None
+        for candidate in names:
+            if candidate.is_dir() or not self.suffixes or candidate.suffix in self.suffixes:
+                rest = candidate.name[len(stem):] + ("/" if candidate.is_dir() else "")
+                return value + rest if rest else None
+        return None
+
+
+def write_table(df: pl.DataFrame, path: Path) -> None:
+    """Write with polars in the format the file name asks for."""
+    suffix = path.suffix.lower()
+    if suffix == ".csv":
+        df.write_csv(path)
+    elif suffix == ".parquet":
+        df.write_parquet(path)
+    elif suffix == ".json":
+        df.write_json(path)
+    else:
+        raise ValueError(f"unknown format {suffix!r}")
+
+
+class OpenDialog(ModalScreen[str | None]):
+    """Ask for a catalogue file."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(self, initial: str) -> None:
+        super().__init__()
+        self.initial = initial
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog", id="open-dialog") as box:
+            box.border_title = "Open a catalogue"
+            yield Label("TOML catalogue file (tab completes a suggestion):")
+            yield Input(self.initial, id="path", suggester=PathSuggester((".toml",)))
+            yield Static("", classes="dialog-error", id="open-error")
+            yield Static("enter open · esc cancel", classes="dialog-hint")
+
+    @on(Input.Submitted)
+    def submitted(self, event: Input.Submitted) -> None:
+        text = event.value.strip()
+        error = self.query_one("#open-error", Static)
+        if not text:
+            error.update("✗ Type the path of a catalogue file.")
+            return
+        path = Path(text).expanduser()
+        if not path.is_file():
+            error.update(f"✗ {path}: no such file." if not path.exists() else f"✗ {path} is not a file.")
+            return
+        self.dismiss(str(path))
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class ProblemsScreen(ModalScreen[None]):
+    """The problems of a catalogue that did not load, and how to go on."""
+
+    BINDINGS = [
+        Binding("l", "reload", "Reload"),
+        Binding("o", "open", "Open another"),
+        Binding("escape", "close", "Keep last good"),
+    ]
+
+    def __init__(self, path: Path, problems: list[Problem], last_good: Catalogue | None) -> None:
+        super().__init__()
+        self.path = path
+        self.problems = problems
+        self.last_good = last_good
+
+    def compose(self) -> ComposeResult:
+        count = len(self.problems)
+        with Vertical(classes="dialog", id="problems-dialog") as box:
+            box.border_title = f"{self.path.name}: {count} problem{'s' if count != 1 else ''}"
+            yield Static(f"✗ The catalogue {self.path} did not load.", id="problems-head")
+            yield DataTable(id="problems", cursor_type="row", zebra_stripes=True)
+            kept = (f"the table keeps showing “{self.last_good.title}”"
+                    if self.last_good else "no catalogue is loaded yet")
+            yield Static(f"Fix the file and press l to reload, or o to open another; {kept}.",
+                         classes="dialog-hint")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        table = self.query_one(DataTable)
+        table.add_columns("Where", "Problem")
+        for problem in self.problems:
+            where = problem.key or "(file)"
+            if problem.file and Path(problem.file).name != self.path.name:
+                where = f"{problem.file}: {where}"
+            table.add_row(where, problem.message)
+        table.focus()
+
+    def action_reload(self) -> None:
+        self.dismiss(None)
+        self.app.reload_catalogue()
+
+    def action_open(self) -> None:
+        self.dismiss(None)
+        self.app.ask_open()
+
+    def action_close(self) -> None:
+        self.dismiss(None)
+
+
+class ConfirmDialog(ModalScreen[bool]):
+    """A yes/no question; the safe answer (no) has the focus."""
+
+    BINDINGS = [
+        Binding("y", "answer(True)", "Yes"),
+        Binding("n,escape", "answer(False)", "No"),
+    ]
+
+    def __init__(self, question: str, yes: str = "Yes", no: str = "No") -> None:
+        super().__init__()
+        self.question, self.yes, self.no = question, yes, no
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog", id="confirm-dialog") as box:
+            box.border_title = "Please confirm"
+            yield Static(self.question, id="question")
+            with Horizontal(classes="buttons"):
+                yield Button(f"{self.yes} (y)", id="yes", variant="warning")
+                yield Button(f"{self.no} (n)", id="no", variant="primary")
+
+    def on_mount(self) -> None:
+        self.query_one("#no", Button).focus()
+
+    @on(Button.Pressed)
+    def pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(event.button.id == "yes")
+
+    def action_answer(self, answer: bool) -> None:
+        self.dismiss(answer)
+
+
+class ExportDialog(ModalScreen[str | None]):
+    """Export a table; the format follows the file name; never overwrites unasked."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(self, df: pl.DataFrame, initial: str) -> None:
+        super().__init__()
+        self.df = df
+        self.initial = initial
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog", id="export-dialog") as box:
+            box.border_title = f"Export {self.df.height} rows"
+            yield Label("File name: .csv, .parquet or .json chooses the format.")
+            yield Input(self.initial, id="path", suggester=PathSuggester())
+            yield Static("", classes="dialog-error", id="export-error")
+            yield Static("enter write · esc cancel", classes="dialog-hint")
+
+    def _error(self, message: str) -> None:
+        self.query_one("#export-error", Static).update(message)
+
+    @on(Input.Submitted)
+    def submitted(self, event: Input.Submitted) -> None:
+        text = event.value.strip()
+        if not text:
+            self._error("✗ Type a file name.")
+            return
+        path = Path(text).expanduser()
+        if path.suffix.lower() not in EXPORT_FORMATS:
+            self._error(f"✗ {path.name}: end the name with .csv, .parquet or .json.")
+            return
+        if path.is_dir():
+            self._error(f"✗ {path} is a folder.")
+            return
+        if not path.parent.is_dir():
+            self._error(f"✗ {path.parent}: no such folder.")
+            return
+        if path.exists():
+            def answer(overwrite: bool | None) -> None:
+                if overwrite:
+                    self.write(path)
+                else:
+                    self._error(f"Not written: {path.name} already exists. Choose another name.")
+
+            self.app.push_screen(ConfirmDialog(f"{path} already exists. Overwrite it?",
+                                               yes="Overwrite", no="Keep it"), answer)
+            return
+        self.write(path)
+
+    def write(self, path: Path) -> None:
+        try:
+            write_table(self.df, path)
+        except Exception as error:  # permissions, full disk: say so here, keep the dialog
+            self._error(f"✗ Could not write {path}: {error}")
+            return
+        self.dismiss(f"Wrote {self.df.height} rows to {path} ({EXPORT_FORMATS[path.suffix.lower()]}).")
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

@@ -1,0 +1,150 @@
+"""The variantcmp terminal app: shared state (catalogue, conditions, results) and app-wide keys."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import polars as pl
+from textual import work
+from textual.app import App
+from textual.binding import Binding
+from textual.screen import ModalScreen
+from textual.signal import Signal
+
+from variantcmp.catalogue import Catalogue, CatalogueError, Problem, demo_catalogue_path, load_catalogue
+
+from .compare import CompareScreen
+from .dialogs import ExportDialog, OpenDialog, ProblemsScreen
+from .form import DEFAULT_TEXTS, conditions_from_texts
+from .help import HelpScreen
+from .hotday import HotDayScreen
+from .results import Results, compute
+from .variant_info import VariantScreen
+
+DARK_THEME = "textual-dark"
+LIGHT_THEME = "textual-light"
+
+
+class VariantCmpApp(App[int]):
+    """Compare a fleet's ceilings. State lives here so every screen follows the same conditions."""
+
+    CSS_PATH = "variantcmp.tcss"
+    TITLE = "variantcmp"
+    ENABLE_COMMAND_PALETTE = False
+    # Top-level views, each keeping its own state while the user switches between them.
+    # Envelope and sweep views (a later issue) join here.
+    MODES = {"compare": CompareScreen, "hotday": HotDayScreen}
+    DEFAULT_MODE = "compare"
+    BINDINGS = [
+        Binding("f1,question_mark", "help", "Help"),
+        Binding("t", "toggle_theme", "Theme", show=False),
+        Binding("q", "quit", "Quit"),
+    ]
+
+    def __init__(self, catalogue_path: str | Path | None = None) -> None:
+        super().__init__()
+        self.theme = DARK_THEME
+        self.catalogue: Catalogue | None = None  # the last catalogue that loaded
+        self.catalogue_path: Path = Path(catalogue_path) if catalogue_path else demo_catalogue_path()
+        self.problems: list[Problem] = []  # problems of the file last tried; empty when it loaded
+        self.texts: dict[str, str] = dict(DEFAULT_TEXTS)
+        self.conditions, self.field_errors = conditions_from_texts(self.texts)
+        self.results: Results | None = None
+        self.results_signal: Signal[Results] = Signal(self, "results")
+        self.catalogue_signal: Signal[Catalogue | None] = Signal(self, "catalogue")
+        self.busy_signal: Signal[bool] = Signal(self, "busy")
+        self._generation = 0
+
+    def on_mount(self) -> None:
+        self.open_catalogue(self.catalogue_path)
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        # Dialogs own the keyboard: app-wide keys other than quit wait until they close.
+        if isinstance(self.screen, ModalScreen) and action in {"help", "toggle_theme"}:
+            return False
+        return True
+
+    # --- catalogue ----------------------------------------------------------------
+
+    def open_catalogue(self, path: str | Path) -> bool:
+        """Load a catalogue; on problems keep the last good one and show the list."""
+        self.catalogue_path = Path(path).expanduser()
+        try:
+            catalogue = load_catalogue(self.catalogue_path)
+        except CatalogueError as error:
+            self.problems = list(error.problems) or [Problem(str(self.catalogue_path), "", str(error))]
+        except Exception as error:  # an unreadable file must not end the session
+            self.problems = [Problem(str(self.catalogue_path), "", f"cannot read: {error}")]
+        else:
+            self.problems = []
+            self.catalogue = catalogue
+        self.catalogue_signal.publish(self.catalogue)
+        if self.problems:
+            self.push_screen(ProblemsScreen(self.catalogue_path, self.problems, self.catalogue))
+            return False
+        self.recompute()
+        return True
+
+    def reload_catalogue(self) -> bool:
+        return self.open_catalogue(self.catalogue_path)
+
+    def ask_open(self) -> None:
+        def chosen(path: str | None) -> None:
+            if path:
+                self.open_catalogue(path)
+
+        self.push_screen(OpenDialog(str(self.catalogue_path)), chosen)
+
+    # --- conditions and results ----------------------------------------------------
+
+    def set_condition_text(self, key: str, text: str) -> dict[str, str]:
+        """Take one typed field; recompute when all fields read and something changed."""
+        self.texts[key] = text
+        conditions, self.field_errors = conditions_from_texts(self.texts, self.conditions)
+        if conditions is not None and conditions != self.conditions:
+            self.conditions = conditions
+            self.recompute()
+        return self.field_errors
+
+    def recompute(self) -> None:
+        if self.catalogue is None or self.conditions is None:
+            return
+        self._generation += 1
+        self.busy_signal.publish(True)
+        self._compute(self._generation, self.catalogue, self.conditions)
+
+    @work(thread=True, exclusive=True, group="compare", exit_on_error=False)
+    def _compute(self, generation: int, catalogue, conditions) -> None:
+        results = compute(catalogue, conditions)
+        try:
+            self.call_from_thread(self._deliver, generation, results)
+        except RuntimeError:  # the app closed while this ran
+            pass
+
+    def _deliver(self, generation: int, results: Results) -> None:
+        if generation != self._generation:
+            return  # a newer request is on its way
+        self.busy_signal.publish(False)
+        if results.df is not None:
+            self.results = results
+            self.results_signal.publish(results)
+        else:
+            # Keep the last table; tell the screens what went wrong.
+            self.results_signal.publish(Results(
+                results.catalogue, results.conditions, None, results.error, results.compute_ms))
+
+    # --- screens ------------------------------------------------------------------
+
+    def inspect_variant(self, variant_id: str) -> None:
+        if self.catalogue is not None and variant_id in self.catalogue.variants:
+            self.push_screen(VariantScreen(variant_id))
+
+    def export_table(self, df: pl.DataFrame, stem: str) -> None:
+        self.push_screen(ExportDialog(df, f"{stem}.csv"))
+
+    def action_help(self) -> None:
+        if not isinstance(self.screen, HelpScreen):
+            self.push_screen(HelpScreen())
+
+    def action_toggle_theme(self) -> None:
+        self.theme = LIGHT_THEME if self.current_theme.dark else DARK_THEME

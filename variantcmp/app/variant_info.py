@@ -1,0 +1,171 @@
+"""Inspect one variant: its catalogue values, derived figures and engine options."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import fields
+
+from rich.table import Table
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer, Static
+
+from variantcmp.catalogue import Engine, Variant
+from variantcmp.table import variant_figures
+from variantcmp.units import format_altitude_ft
+
+NONE = "—"
+
+# Unit suffixes of catalogue and figure names, written for people.
+_UNITS = (
+    ("_m2", "m²"), ("_kg_per_m2", "kg/m²"), ("_kg", "kg"), ("_ft", "ft"), ("_kt", "kt"),
+    ("_kpa", "kPa"), ("_deg", "°"), ("_kn", "kN"), ("_c", "°C"), ("_fpm", "ft/min"),
+)
+_NAMES = {
+    "cd0": "CD0 (zero-lift drag)", "k": "K (induced drag factor)", "cl_max": "CL max (clean, 1 g)",
+    "mtow_kg": "MTOW", "oew_kg": "OEW", "mmo": "MMO", "vmo_kt": "VMO",
+    "max_altitude_ft": "certified maximum altitude", "oswald_e": "Oswald factor e",
+    "ld_max": "best lift-to-drag ratio", "cl_star": "CL at best lift-to-drag",
+}
+
+
+def _name_and_unit(key: str) -> tuple[str, str]:
+    for suffix, unit in sorted(_UNITS, key=lambda item: -len(item[0])):
+        if key.endswith(suffix):
+            base = key[: -len(suffix)]
+            return _NAMES.get(key, base.replace("_", " ")), unit
+    return _NAMES.get(key, key.replace("_", " ")), ""
+
+
+def _value(key: str, value) -> str:
+    if value is None or value == ():
+        return NONE
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, float):
+        if not math.isfinite(value):
+            return NONE
+        if key.endswith("_ft"):
+            return format_altitude_ft(value)
+        if abs(value) >= 1000:
+            return f"{value:,.0f}"
+        return f"{value:.4g}"
+    if isinstance(value, tuple):
+        return ", ".join(_value(key, item) for item in value)
+    return str(value)
+
+
+def _pairs_table(title: str, pairs: list[tuple[str, str, str]]) -> Table:
+    table = Table(title=title, title_justify="left", show_header=False, box=None, padding=(0, 1))
+    table.add_column("name", style="bold", no_wrap=True)
+    table.add_column("value", justify="right")
+    table.add_column("unit")
+    for row in pairs:
+        table.add_row(*row)
+    return table
+
+
+def catalogue_pairs(variant: Variant) -> list[tuple[str, str, str]]:
+    pairs = []
+    for field in fields(variant):
+        if field.name in ("id", "label", "engine_options"):
+            continue
+        name, unit = _name_and_unit(field.name)
+        pairs.append((name, _value(field.name, getattr(variant, field.name)), unit))
+    return pairs
+
+
+def figures_tables(figures: dict, engine_ids: tuple[str, ...]) -> tuple[list, dict[str, dict]]:
+    """Split the derived figures into plain values and per-engine values."""
+    plain, per_engine = [], {engine_id: {} for engine_id in engine_ids}
+    for key, value in figures.items():
+        if isinstance(value, dict):
+            for engine_id, item in value.items():
+                per_engine.setdefault(engine_id, {})[key] = item
+        else:
+            name, unit = _name_and_unit(key)
+            plain.append((name, _value(key, value), unit))
+    return plain, per_engine
+
+
+def engines_table(engines: list[Engine], per_engine: dict[str, dict]) -> Table:
+    table = Table(title="Engine options", title_justify="left", box=None, padding=(0, 1))
+    table.add_column("", style="bold", no_wrap=True)
+    for engine in engines:
+        table.add_column(engine.id, justify="right")
+    names: list[str] = []
+    for engine in engines:
+        for key in [f.name for f in fields(engine) if f.name != "id"] + list(per_engine.get(engine.id, {})):
+            if key not in names:
+                names.append(key)
+    for key in names:
+        label, unit = _name_and_unit(key)
+        label = f"{label} ({unit})" if unit else label
+        cells = []
+        for engine in engines:
+            extra = per_engine.get(engine.id, {})
+            value = extra[key] if key in extra else getattr(engine, key, None)
+            cells.append(_value(key, value))
+        if any(c != NONE for c in cells):
+            table.add_row(label, *cells)
+    return table
+
+
+class VariantScreen(Screen):
+    BINDINGS = [
+        Binding("escape", "close", "Back"),
+        Binding("n", "step(1)", "Next variant"),
+        Binding("p", "step(-1)", "Previous variant"),
+    ]
+
+    def __init__(self, variant_id: str) -> None:
+        super().__init__()
+        self.variant_id = variant_id
+
+    def compose(self) -> ComposeResult:
+        with VerticalScroll(id="variant-body"):
+            yield Static(id="variant-head")
+            yield Static(id="variant-values")
+            yield Static(id="variant-figures")
+            yield Static(id="variant-engines")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self.show()
+        self.query_one(VerticalScroll).focus()
+
+    def show(self) -> None:
+        catalogue = self.app.catalogue
+        variant = catalogue.variants[self.variant_id]
+        body = self.query_one(VerticalScroll)
+        body.border_title = f"Variant {variant.id}"
+        body.border_subtitle = f"{list(catalogue.variants).index(variant.id) + 1} of {len(catalogue.variants)}"
+        head = Text()
+        head.append(variant.label or variant.id, style="bold")
+        head.append(f"  ({variant.id}) · {variant.engine_count} engines · options: "
+                    f"{', '.join(variant.engine_options)}")
+        self.query_one("#variant-head", Static).update(head)
+        self.query_one("#variant-values", Static).update(
+            _pairs_table("Catalogue values", catalogue_pairs(variant)))
+        try:
+            figures = variant_figures(catalogue, variant.id)
+        except Exception as error:  # show what went wrong instead of failing the screen
+            self.query_one("#variant-figures", Static).update(
+                Text(f"✗ derived figures unavailable: {error}"))
+            figures = {}
+        plain, per_engine = figures_tables(figures, variant.engine_options)
+        if figures:
+            self.query_one("#variant-figures", Static).update(_pairs_table("Derived figures", plain))
+        engines = [catalogue.engines[e] for e in variant.engine_options if e in catalogue.engines]
+        self.query_one("#variant-engines", Static).update(engines_table(engines, per_engine))
+
+    def action_step(self, step: int) -> None:
+        ids = list(self.app.catalogue.variants)
+        self.variant_id = ids[(ids.index(self.variant_id) + step) % len(ids)]
+        self.show()
+
+    def action_close(self) -> None:
+        self.dismiss()

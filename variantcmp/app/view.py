@@ -1,0 +1,177 @@
+"""How a result table is shown: columns, cell text, sorting, filtering, baseline differences.
+
+Everything here reshapes the DataFrames that `variantcmp.table` returns; nothing
+computes physics. Cell text uses the same formatters as the headless commands
+(`variantcmp.units`), so a number reads the same in the app and on the CLI.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import polars as pl
+from rich.text import Text
+
+from variantcmp.units import format_altitude_ft, format_flight_level, format_isa_dev
+
+NONE = "—"
+ROW_KEY = "_row"
+
+# Binding limit: a glyph as well as the word, so nothing rests on colour.
+LIMIT_GLYPHS: dict[str, str] = {
+    "thrust": "↑",
+    "buffet": "≈",
+    "stall": "▽",
+    "certified": "■",
+    "cabin": "◇",
+    "none": "○",
+}
+LIMIT_MEANINGS: dict[str, str] = {
+    "thrust": "residual rate of climb falls below the criterion",
+    "buffet": "buffet onset at the load-factor margin",
+    "stall": "lift coefficient reaches CL max at 1 g",
+    "certified": "certified maximum operating altitude",
+    "cabin": "cabin pressure differential limit",
+    "none": "no limit found below the model top",
+}
+BASELINE_MARK = "◆"
+MAKES_IT = "✓"
+SHORT_OF_IT = "✗"
+
+
+@dataclass(frozen=True)
+class Column:
+    """One column of the compare table."""
+
+    key: str  # DataTable column key
+    header: str
+    source: str  # DataFrame column holding the value (also the sort key)
+    kind: str  # how to write the value: text, ft, fl, limit, margin, mach, tonnes, isa, fpm
+    diff: bool = False  # written as a difference from the baseline row when one is pinned
+    high_first: bool = False  # first sort puts the highest value on top
+
+
+COLUMNS: tuple[Column, ...] = (
+    Column("variant", "Variant", "variant", "text"),
+    Column("engine", "Engine", "engine", "text"),
+    Column("fl", "Max FL", "max_altitude_ft", "fl", high_first=True),
+    Column("max_ft", "Max ft", "max_altitude_ft", "ft", diff=True, high_first=True),
+    Column("limit", "Limit", "limit", "limit"),
+    Column("margin", "Margin ft", "margin_ft", "margin", high_first=True),
+    Column("mach", "Mach", "mach", "mach", diff=True, high_first=True),
+    Column("weight", "W t", "weight_kg", "tonnes"),
+    Column("isa", "ISA", "isa_dev_c", "isa"),
+    Column("climb", "Climb", "climb_fpm", "fpm"),
+    Column("thrust", "Thrust", "thrust_ceiling_ft", "ft", diff=True, high_first=True),
+    Column("buffet", "Buffet", "buffet_ceiling_ft", "ft", diff=True, high_first=True),
+    Column("stall", "Stall", "stall_ceiling_ft", "ft", diff=True, high_first=True),
+    Column("certified", "Cert.", "certified_ceiling_ft", "ft", diff=True, high_first=True),
+    Column("cabin", "Cabin", "cabin_ceiling_ft", "ft", diff=True, high_first=True),
+    Column("note", "Note", "note", "text"),
+)
+COLUMNS_BY_KEY = {column.key: column for column in COLUMNS}
+_RIGHT = {"ft", "fl", "margin", "mach", "tonnes", "isa", "fpm"}
+
+
+def visible_columns(df: pl.DataFrame) -> list[Column]:
+    """The columns this table can fill (the margin needs a target flight level)."""
+    return [column for column in COLUMNS if column.source in df.columns]
+
+
+def with_row_keys(df: pl.DataFrame) -> pl.DataFrame:
+    """Add a stable row identity: variant, engine and the row's place within that pair.
+
+    With one weight and one deviation the key survives condition changes, so a
+    pinned baseline and the cursor stay on the same aircraft.
+    """
+    ordinal = pl.int_range(pl.len()).over(["variant", "engine"]).cast(pl.Utf8)
+    return df.with_columns(
+        pl.concat_str([pl.col("variant"), pl.col("engine"), ordinal], separator="|").alias(ROW_KEY)
+    )
+
+
+def filter_rows(df: pl.DataFrame, text: str) -> pl.DataFrame:
+    """Rows whose variant, engine, limit or note contain every word of ``text`` (any case)."""
+    words = text.lower().split()
+    if not words or df.height == 0:
+        return df
+    haystack = pl.concat_str(
+        [pl.col(name).cast(pl.Utf8).fill_null("") for name in ("variant", "engine", "limit", "note")],
+        separator=" ",
+    ).str.to_lowercase()
+    condition = pl.lit(True)
+    for word in words:
+        condition = condition & haystack.str.contains(word, literal=True)
+    return df.filter(condition)
+
+
+def sort_rows(df: pl.DataFrame, column: Column | None, descending: bool) -> pl.DataFrame:
+    """Sort by one column; missing values always last; ties keep catalogue order."""
+    if column is None or column.source not in df.columns:
+        return df
+    return df.sort(column.source, descending=descending, nulls_last=True, maintain_order=True)
+
+
+def header(column: Column, sort_key: str | None, descending: bool, baseline: bool) -> str:
+    """Column header with the sort direction and a delta sign for baseline differences."""
+    label = column.header
+    if baseline and column.diff:
+        label = "Δ" + label
+    if sort_key == column.key:
+        label += " ▼" if descending else " ▲"
+    return label
+
+
+def _finite(value) -> bool:
+    return value is not None and not (isinstance(value, float) and math.isnan(value))
+
+
+def _signed_ft(value: float) -> str:
+    rounded = round(value)
+    return "±0" if rounded == 0 else f"{rounded:+,d}"
+
+
+def cell(column: Column, row: dict, baseline: dict | None = None) -> Text:
+    """The text of one cell; ``baseline`` (a row) turns difference columns into deltas."""
+    value = row.get(column.source)
+    kind = column.kind
+    justify = "right" if kind in _RIGHT else "left"
+    if baseline is not None and column.diff and baseline.get(ROW_KEY) != row.get(ROW_KEY):
+        base = baseline.get(column.source)
+        if not (_finite(value) and _finite(base)):
+            return Text(NONE, justify=justify)
+        delta = value - base
+        if kind == "mach":
+            return Text("±0" if abs(delta) < 5e-4 else f"{delta:+.3f}", justify=justify)
+        return Text(_signed_ft(delta), justify=justify)
+    if kind == "text":
+        text = "" if value is None else str(value)
+        if column.key == "variant" and baseline is not None and baseline.get(ROW_KEY) == row.get(ROW_KEY):
+            text = f"{BASELINE_MARK} {text}"
+        return Text(text)
+    if not _finite(value):
+        return Text(NONE, justify=justify)
+    if kind == "ft":
+        return Text(format_altitude_ft(value), justify=justify)
+    if kind == "fl":
+        return Text(format_flight_level(value), justify=justify)
+    if kind == "limit":
+        return Text(f"{LIMIT_GLYPHS.get(value, '?')} {value}")
+    if kind == "margin":
+        mark = MAKES_IT if row.get("reaches_target") else SHORT_OF_IT
+        return Text(f"{_signed_ft(value)} {mark}", justify=justify)
+    if kind == "mach":
+        return Text(f"{value:.3f}", justify=justify)
+    if kind == "tonnes":
+        mark = "*" if row.get("over_mtow") else ""
+        return Text(f"{value / 1000.0:.1f}{mark}", justify=justify)
+    if kind == "isa":
+        return Text(format_isa_dev(value).removeprefix("ISA") or "0", justify=justify)
+    if kind == "fpm":
+        return Text(f"{value:,.0f}", justify=justify)
+    return Text(str(value))
+
+
+def row_cells(columns: list[Column], row: dict, baseline: dict | None = None) -> list[Text]:
+    return [cell(column, row, baseline) for column in columns]

@@ -1,0 +1,139 @@
+"""International Standard Atmosphere, vectorised, with a temperature deviation.
+
+Sources: ISO 2533:1975 *Standard Atmosphere*; ICAO Doc 7488/3 *Manual of the ICAO Standard
+Atmosphere* (1993); U.S. Standard Atmosphere 1976 (NOAA/NASA/USAF), which share the same
+geopotential layers up to 84,852 m.
+
+All altitudes here are geopotential pressure altitudes in metres: the altitude at which the ISA
+pressure equals the ambient pressure. A day with a temperature deviation keeps the ISA pressure at a
+pressure altitude and only shifts the temperature: ``T = T_ISA(h) + isa_dev``, ``rho = p / (R T)``.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+#: Specific gas constant of dry air, J/(kg K) (ICAO Doc 7488; ISO 2533 uses 287.05287).
+R_AIR = 287.05287
+#: Standard acceleration of gravity, m/s2 (ISO 2533).
+G0 = 9.80665
+#: Ratio of specific heats of air (ISO 2533).
+GAMMA = 1.4
+#: Sea-level standard values (ISO 2533).
+T0_K = 288.15
+P0_PA = 101_325.0
+RHO0_KG_M3 = P0_PA / (R_AIR * T0_K)  # 1.2250 kg/m3
+A0_MS = float(np.sqrt(GAMMA * R_AIR * T0_K))  # 340.294 m/s
+
+#: Layer base geopotential altitudes (m) and temperature gradients (K/m), ISO 2533 / USSA 1976.
+LAYER_BASE_M = np.array([0.0, 11_000.0, 20_000.0, 32_000.0, 47_000.0, 51_000.0, 71_000.0])
+LAYER_LAPSE_K_PER_M = np.array([-0.0065, 0.0, 0.001, 0.0028, 0.0, -0.0028, -0.002])
+#: Lowest and highest pressure altitudes of the model (m): -2,000 ft is the floor ceilings are
+#: searched from; the table is defined (layer 0 extended) down to -5,000 m as in ISO 2533.
+MODEL_BOTTOM_M = -5_000.0
+MODEL_TOP_M = 84_852.0
+TROPOPAUSE_M = 11_000.0
+
+
+def _layer_bases() -> tuple[np.ndarray, np.ndarray]:
+    """Base temperature and pressure of each layer, built upward from sea level."""
+    t_base = np.empty(LAYER_BASE_M.size)
+    p_base = np.empty(LAYER_BASE_M.size)
+    t_base[0], p_base[0] = T0_K, P0_PA
+    for i in range(1, LAYER_BASE_M.size):
+        dh = LAYER_BASE_M[i] - LAYER_BASE_M[i - 1]
+        lapse, t0, p0 = LAYER_LAPSE_K_PER_M[i - 1], t_base[i - 1], p_base[i - 1]
+        t_base[i] = t0 + lapse * dh
+        p_base[i] = p0 * _pressure_ratio(lapse, dh, t0)
+    return t_base, p_base
+
+
+def _pressure_ratio(lapse, dh, t_base):
+    """p/p_base across a height dh in a layer of constant gradient (hydrostatic, ideal gas)."""
+    lapse = np.asarray(lapse, dtype=float)
+    x = lapse * dh / t_base
+    safe = np.where(lapse == 0.0, 1.0, lapse)
+    phi = np.where(lapse == 0.0, dh / t_base, np.log1p(x) / safe)
+    return np.exp(-G0 / R_AIR * phi)
+
+
+LAYER_BASE_T_K, LAYER_BASE_P_PA = _layer_bases()
+MODEL_TOP_P_PA = float(LAYER_BASE_P_PA[-1] * _pressure_ratio(
+    LAYER_LAPSE_K_PER_M[-1], MODEL_TOP_M - LAYER_BASE_M[-1], LAYER_BASE_T_K[-1]))
+
+
+def _layer_index(altitude_m):
+    return np.clip(np.searchsorted(LAYER_BASE_M, altitude_m, side="right") - 1, 0, LAYER_BASE_M.size - 1)
+
+
+def isa_temperature_k(altitude_m):
+    """ISA temperature (K) at a geopotential pressure altitude (m). Source: ISO 2533, table layers."""
+    h = np.asarray(altitude_m, dtype=float)
+    i = _layer_index(h)
+    return LAYER_BASE_T_K[i] + LAYER_LAPSE_K_PER_M[i] * (h - LAYER_BASE_M[i])
+
+
+def isa_lapse_rate_k_per_m(altitude_m):
+    """ISA temperature gradient dT/dh (K/m, negative where temperature falls). Source: ISO 2533."""
+    return LAYER_LAPSE_K_PER_M[_layer_index(np.asarray(altitude_m, dtype=float))]
+
+
+def isa_pressure_pa(altitude_m):
+    """ISA static pressure (Pa) at a geopotential pressure altitude (m).
+
+    Source: ISO 2533 / U.S. Standard Atmosphere 1976, eqs. 33a-b (hydrostatic equation integrated
+    over layers of constant temperature gradient).
+    """
+    h = np.asarray(altitude_m, dtype=float)
+    i = _layer_index(h)
+    return LAYER_BASE_P_PA[i] * _pressure_ratio(LAYER_LAPSE_K_PER_M[i], h - LAYER_BASE_M[i], LAYER_BASE_T_K[i])
+
+
+def isa_state(altitude_m):
+    """ISA (temperature K, pressure Pa, lapse rate K/m) at once, finding the layer a single time.
+
+    Source: ISO 2533 / U.S. Standard Atmosphere 1976 (as :func:`isa_pressure_pa`).
+    """
+    h = np.asarray(altitude_m, dtype=float)
+    i = _layer_index(h)
+    lapse, t_base, dh = LAYER_LAPSE_K_PER_M[i], LAYER_BASE_T_K[i], h - LAYER_BASE_M[i]
+    return t_base + lapse * dh, LAYER_BASE_P_PA[i] * _pressure_ratio(lapse, dh, t_base), lapse
+
+
+def pressure_altitude_m(pressure_pa):
+    """Geopotential pressure altitude (m) at which the ISA pressure equals ``pressure_pa``.
+
+    Inverse of :func:`isa_pressure_pa` (ISO 2533). Pressures below the model top's give ``+inf``
+    (above the model: callers flag it); pressures above sea level extend layer 0 downward.
+    """
+    p = np.asarray(pressure_pa, dtype=float)
+    # Base pressures fall with altitude: search the ascending negated sequence.
+    i = np.clip(np.searchsorted(-LAYER_BASE_P_PA, -p, side="right") - 1, 0, LAYER_BASE_M.size - 1)
+    lapse, t_base, p_base = LAYER_LAPSE_K_PER_M[i], LAYER_BASE_T_K[i], LAYER_BASE_P_PA[i]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        phi = -R_AIR / G0 * np.log(p / p_base)
+        safe = np.where(lapse == 0.0, 1.0, lapse)
+        dh = np.where(lapse == 0.0, t_base * phi, t_base * np.expm1(lapse * phi) / safe)
+    h = LAYER_BASE_M[i] + dh
+    return np.where(p < MODEL_TOP_P_PA, np.inf, h)
+
+
+def density_kg_m3(pressure_pa, temperature_k):
+    """Air density from the ideal-gas law rho = p / (R T) (ISO 2533)."""
+    return np.asarray(pressure_pa) / (R_AIR * np.asarray(temperature_k))
+
+
+def speed_of_sound_ms(temperature_k):
+    """Speed of sound a = sqrt(gamma R T) (ISO 2533)."""
+    return np.sqrt(GAMMA * R_AIR * np.asarray(temperature_k))
+
+
+def atmosphere(altitude_m, isa_dev_c=0.0):
+    """Temperature (K), pressure (Pa), density (kg/m3) and speed of sound (m/s) on a day ISA+dev.
+
+    Pressure follows ISA at the pressure altitude; the deviation shifts temperature only
+    (ICAO Doc 7488 definition of pressure altitude).
+    """
+    t_isa, p, _ = isa_state(altitude_m)
+    t = t_isa + np.asarray(isa_dev_c, dtype=float)
+    return t, p, density_kg_m3(p, t), speed_of_sound_ms(t)

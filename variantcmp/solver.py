@@ -1,0 +1,395 @@
+"""Ceilings: the highest pressure altitude each limit allows, and the maximum altitude.
+
+For a fixed Mach, the buffet, stall, certified and cabin ceilings are closed forms in pressure;
+the thrust ceiling (residual rate of climb = the required rate) is the top root of the excess
+climb rate, bracketed from a coarse altitude scan and refined with the Illinois method. For the
+best speed, the Mach that gives the highest altitude meeting every limit at once is found per case
+by a Mach grid and golden-section refinement. Everything is vectorised over cases.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .aero import energy_share_factor, wave_drag_coefficient
+from .airspeed import pressure_for_cas_at_mach_pa
+from .atmosphere import G0, GAMMA, MODEL_TOP_M, R_AIR, isa_state, pressure_altitude_m, speed_of_sound_ms
+from .cases import FLOOR_M, FT, CaseSet
+from .thrust import density_lapse_fraction, hot_day_factor, turbofan_lapse_fraction
+
+LIMITS = ("thrust", "buffet", "stall", "certified", "cabin")
+
+# Flags (bit mask) explaining results the model cannot give as a number.
+CANNOT_CLIMB = 1  # no altitude with the required residual climb at this speed
+THRUST_DATA_TOP = 2  # still climbing at the top of the engine's thrust table
+THRUST_DATA_MACH = 4  # Mach outside the engine's thrust table
+NO_BUFFET_AT_MACH = 8  # variant has buffet data, but not at this Mach
+ABOVE_MMO = 16
+BELOW_VMO_FLOOR = 32  # at this Mach the ceiling lies where CAS would exceed VMO
+NO_COMMON_ALTITUDE = 64  # thrust only works above the ceiling the other limits allow
+ABOVE_MODEL_TOP = 128  # no limit binds below the top of the atmosphere model
+BELOW_FLOOR = 256  # the limits cross below -2,000 ft
+
+#: Coarse altitude scan (m) bracketing the thrust ceiling: dense where aircraft fly.
+SCAN_LEVELS_M = np.concatenate([
+    [FLOOR_M], np.arange(0.0, 21_000.0, 1_000.0), [22_500.0, 25_000.0, 28_000.0, 32_000.0,
+                                                   38_000.0, 47_000.0, 60_000.0, MODEL_TOP_M]])
+ROOT_TOL_M = 0.003  # about 0.01 ft
+GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
+BEST_MACH_GRID = 12
+BEST_MACH_ITERATIONS = 18
+CHUNK = 32_768
+
+
+@dataclass
+class Ceilings:
+    """Solver output, one element per case. Altitudes are pressure altitudes in m.
+
+    NaN: the model cannot give a value (see ``flags``); +inf: the limit does not exist for the
+    case or lies above the model top.
+    """
+
+    thrust_m: np.ndarray
+    buffet_m: np.ndarray
+    stall_m: np.ndarray
+    certified_m: np.ndarray
+    cabin_m: np.ndarray
+    max_altitude_m: np.ndarray
+    mach: np.ndarray
+    limit: np.ndarray  # index into LIMITS, -1 for none
+    flags: np.ndarray
+    vmo_floor_m: np.ndarray  # lowest altitude where the Mach stays within VMO (-inf: no VMO)
+
+    @classmethod
+    def concat(cls, parts: list["Ceilings"]) -> "Ceilings":
+        names = cls.__dataclass_fields__
+        return cls(**{n: np.concatenate([getattr(p, n) for p in parts]) for n in names})
+
+
+class ClimbPhysics:
+    """Residual climb rate of a set of cases, thrust models evaluated per model group.
+
+    Shared by the ceiling and envelope solvers: ``climb_rate_ms(altitude_m, mach)`` and
+    ``excess(altitude_m, mach)`` (climb rate minus the case's required rate).
+    """
+
+    def __init__(self, cases: CaseSet):
+        self.cases = cases
+        codes = cases.model_code
+        self.groups = []
+        for code in np.unique(codes):
+            if code == 2:
+                for tid in np.unique(cases.table_id[codes == 2]):
+                    self.groups.append((2, int(tid), np.flatnonzero((codes == 2) & (cases.table_id == tid))))
+            else:
+                self.groups.append((int(code), -1, np.flatnonzero(codes == code)))
+        if len(self.groups) == 1:
+            self.groups = [(self.groups[0][0], self.groups[0][1], slice(None))]
+
+    def subset(self, index) -> "ClimbPhysics":
+        return ClimbPhysics(self.cases.take(index))
+
+    def thrust_fraction(self, altitude_m, mach, t, p, rho, col):
+        """F / (F_SLS at rating) for every case, each engine model on its own group."""
+        cs = self.cases
+        out = np.empty(np.broadcast_shapes(altitude_m.shape, col(cs.mach).shape))
+        for code, tid, idx in self.groups:
+            sub = (lambda a: col(a)[idx]) if not isinstance(idx, slice) else col
+            rows = (lambda a: np.broadcast_to(a, out.shape)[idx])
+            if code == 0:
+                frac = density_lapse_fraction(rows(rho), sub(cs.lapse_exponent), sub(cs.tropopause_density_kg_m3),
+                                              np.where(np.isnan(sub(cs.lapse_exponent_above)), sub(cs.lapse_exponent),
+                                                       sub(cs.lapse_exponent_above)))
+            elif code == 1:
+                frac = turbofan_lapse_fraction(rows(mach), rows(t), rows(p), sub(cs.throttle_ratio))
+            else:
+                frac = cs.tables[tid](rows(altitude_m) / FT, rows(mach))
+            out[idx] = frac
+        return out
+
+    def climb_rate_ms(self, altitude_m, mach=None):
+        """Residual rate of climb (m/s of pressure altitude) at constant Mach.
+
+        dh_p/dt = (F - D) V / W x (T_ISA / T) x f (total-energy equation, see
+        :func:`variantcmp.aero.energy_share_factor`). ``altitude_m`` is (N,) or (N, L).
+        """
+        cs = self.cases
+        h = np.asarray(altitude_m, dtype=float)
+        col = (lambda a: a[:, None]) if h.ndim == 2 else (lambda a: a)
+        m = col(cs.mach if mach is None else mach)
+        t_isa, p, lapse = isa_state(h)
+        t = t_isa + col(cs.isa_dev_c)
+        rho = p / (R_AIR * t)
+        w = col(cs.weight_kg) * G0
+        q_s = 0.5 * GAMMA * p * m * m * col(cs.wing_area_m2)
+        cl = w / q_s
+        cd = col(cs.cd0) + col(cs.k) * cl * cl
+        cd = cd + wave_drag_coefficient(m, cl, col(cs.thickness_ratio), col(cs.sweep_deg), col(cs.korn_factor))
+        drag = q_s * cd
+        thrust = col(cs.thrust_sls_n) * self.thrust_fraction(h, m, t, p, rho, col)
+        thrust = thrust * hot_day_factor(col(cs.isa_dev_c), col(cs.flat_rate_isa_dev_c), col(cs.hot_day_loss_per_c))
+        v = m * speed_of_sound_ms(t)
+        return (thrust - drag) * v / w * (t_isa / t) * energy_share_factor(m, t, t_isa, lapse)
+
+    def excess(self, altitude_m, mach=None):
+        col = (lambda a: a[:, None]) if np.ndim(altitude_m) == 2 else (lambda a: a)
+        return self.climb_rate_ms(altitude_m, mach) - col(self.cases.climb_ms)
+
+
+def _illinois(phys: "ClimbPhysics", mach, a, b, fa, fb, tol=ROOT_TOL_M, max_iter=60):
+    """Vectorised Illinois (modified regula falsi) on the excess climb rate, fa >= 0 > fb.
+
+    Source: Dowell & Jarratt, "A modified regula falsi method for computing the root of an
+    equation", BIT 11 (1971) 168-174. Converged cases drop out once they are half the work.
+    """
+    a, b, fa, fb = (np.array(x, dtype=float) for x in (a, b, fa, fb))
+    side = np.zeros(a.shape, dtype=np.int8)
+    idx = np.arange(a.size)
+    sub, m_sub = phys, mach
+    active = np.abs(b - a) > tol
+    for _ in range(max_iter):
+        n_active = int(active.sum())
+        if n_active == 0:
+            break
+        if n_active < 0.5 * idx.size:
+            keep = np.flatnonzero(active[idx])
+            idx, sub, m_sub = idx[keep], sub.subset(keep), m_sub[keep]
+        ai, bi, fai, fbi, si = a[idx], b[idx], fa[idx], fb[idx], side[idx]
+        denom = fbi - fai
+        c = np.where(denom != 0.0, (ai * fbi - bi * fai) / np.where(denom != 0.0, denom, 1.0), 0.5 * (ai + bi))
+        c = np.clip(c, np.minimum(ai, bi), np.maximum(ai, bi))
+        fc = sub.excess(c, m_sub)
+        left = fc >= 0.0  # the root lies between c and b
+        fbi = np.where(left & (si == -1), 0.5 * fbi, fbi)
+        fai = np.where(~left & (si == 1), 0.5 * fai, fai)
+        a[idx], fa[idx] = np.where(left, c, ai), np.where(left, fc, fai)
+        b[idx], fb[idx] = np.where(left, bi, c), np.where(left, fbi, fc)
+        side[idx] = np.where(left, -1, 1)
+        active[idx] = np.abs(b[idx] - a[idx]) > tol
+    return np.where(np.abs(fa) <= np.abs(fb), a, b)
+
+
+def _golden_max(func, a, b, iterations):
+    """Vectorised golden-section search for the maximum of func on [a, b] (func(idx, x))."""
+    a, b = np.array(a, dtype=float), np.array(b, dtype=float)
+    every = np.arange(a.size)
+    c1, c2 = b - GOLDEN * (b - a), a + GOLDEN * (b - a)
+    f1, f2 = func(every, c1), func(every, c2)
+    for _ in range(iterations):
+        go_left = f1 >= f2
+        b = np.where(go_left, c2, b)
+        a = np.where(go_left, a, c1)
+        new = np.where(go_left, b - GOLDEN * (b - a), a + GOLDEN * (b - a))
+        fn = func(every, new)
+        c2, f2, c1, f1 = (np.where(go_left, c1, new), np.where(go_left, f1, fn),
+                          np.where(go_left, new, c2), np.where(go_left, fn, f2))
+    best = f1 >= f2
+    return np.where(best, c1, c2), np.where(best, f1, f2)
+
+
+def thrust_ceiling_m(phys: ClimbPhysics, mach):
+    """Highest pressure altitude (m) with the required residual climb at a Mach, and flags."""
+    cs = phys.cases
+    n = len(cs)
+    flags = np.zeros(n, dtype=np.int32)
+    top = np.minimum(cs.top_m, MODEL_TOP_M)
+    levels = np.clip(SCAN_LEVELS_M[None, :], cs.floor_m[:, None], top[:, None])
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        e = phys.excess(levels, mach)
+    unknown = np.isnan(e).all(axis=1)
+    flags[unknown] |= THRUST_DATA_MACH
+    ok = e >= 0.0
+    any_ok = ok.any(axis=1)
+    last = levels.shape[1] - 1
+    j = last - np.argmax(ok[:, ::-1], axis=1)
+    rows = np.arange(n)
+    a, fa = levels[rows, j], e[rows, j]
+
+    # No scan level climbs: look for a narrow window around the best level before giving up.
+    rescue = np.flatnonzero(~any_ok & ~unknown)
+    if rescue.size:
+        jm = np.argmax(np.where(np.isnan(e[rescue]), -np.inf, e[rescue]), axis=1)
+        lo = levels[rescue, np.maximum(jm - 1, 0)]
+        hi = levels[rescue, np.minimum(jm + 1, last)]
+        sub = phys.subset(rescue)
+        m_sub = mach[rescue]
+        peak_h, peak_e = _golden_max(lambda i, x: sub.excess(x, m_sub[i]), lo, hi, 30)
+        found = (peak_e >= 0.0) & (jm < last)
+        fix = rescue[found]
+        any_ok[fix] = True
+        j[fix] = jm[found]  # the level above the peak does not climb
+        a[fix], fa[fix] = peak_h[found], peak_e[found]
+
+    result = np.full(n, np.nan)
+    at_top = any_ok & (j == last)
+    result[at_top & (cs.top_m >= MODEL_TOP_M)] = np.inf
+    table_top = at_top & (cs.top_m < MODEL_TOP_M)
+    flags[table_top] |= THRUST_DATA_TOP
+    flags[~any_ok & ~unknown] |= CANNOT_CLIMB
+    solve = np.flatnonzero(any_ok & ~at_top)
+    if solve.size:
+        b, fb = levels[solve, j[solve] + 1], e[solve, j[solve] + 1]
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            root = _illinois(phys.subset(solve), mach[solve], a[solve], b, fa[solve], fb)
+        result[solve] = root
+    return result, flags
+
+
+def buffet_cl_at(cases: CaseSet, mach):
+    """1 g buffet-onset CL per case (NaN where the variant has no data at that Mach)."""
+    bid = cases.buffet_id
+    has = bid >= 0
+    cl = np.full(mach.shape, np.nan)
+    if has.any() and cases.buffet_key.size:
+        safe = np.where(has, bid, 0)
+        inside = has & (mach >= cases.buffet_low[safe]) & (mach <= cases.buffet_high[safe])
+        key = mach + 10.0 * safe
+        cl = np.where(inside, np.interp(key, cases.buffet_key, cases.buffet_cl), np.nan)
+    return cl
+
+
+def closed_form_ceilings_m(cases: CaseSet, mach):
+    """Buffet, stall, cabin ceilings and the VMO floor (m) at a Mach; pressure-based closed forms.
+
+    Lift equilibrium n W = (gamma/2) p M^2 S CL gives the lowest pressure at which CL stays within
+    its limit (Anderson, *Introduction to Flight*, eq. 4.83).
+    """
+    w = cases.weight_kg * G0
+    qs_per_p = 0.5 * GAMMA * mach * mach * cases.wing_area_m2
+    with np.errstate(invalid="ignore", divide="ignore"):
+        stall = pressure_altitude_m(w / (qs_per_p * cases.cl_max))
+        cl_b = buffet_cl_at(cases, mach)
+        buffet = np.where(cases.buffet_id >= 0, pressure_altitude_m(cases.g_margin * w / (qs_per_p * cl_b)), np.inf)
+        cabin_p = cases.cabin_min_pressure_pa
+        cabin = np.where(np.isnan(cabin_p), np.inf, pressure_altitude_m(np.where(cabin_p > 0, cabin_p, 0.0)))
+        vmo_floor = np.where(np.isnan(cases.vmo_ms), -np.inf,
+                             pressure_altitude_m(pressure_for_cas_at_mach_pa(cases.vmo_ms, mach)))
+    return buffet, stall, cabin, vmo_floor
+
+
+def _fixed_mach(phys: ClimbPhysics, mach) -> Ceilings:
+    cs = phys.cases
+    thrust, flags = thrust_ceiling_m(phys, mach)
+    buffet, stall, cabin, vmo_floor = closed_form_ceilings_m(cs, mach)
+    flags[(cs.buffet_id >= 0) & np.isnan(buffet)] |= NO_BUFFET_AT_MACH
+    # A ceiling beyond the thrust table is unknown; the other limits may still bind below its top.
+    thrust_for_min = np.where(flags & THRUST_DATA_TOP, np.inf, thrust)
+    stack = np.stack([thrust_for_min, np.where(np.isnan(buffet), np.inf, buffet), stall, cs.certified_m, cabin])
+    with np.errstate(invalid="ignore"):
+        max_alt = stack.min(axis=0)
+        limit = np.where(np.isnan(max_alt) | np.isinf(max_alt), -1, np.argmin(np.where(np.isnan(stack), np.inf, stack), axis=0))
+        over_table = (flags & THRUST_DATA_TOP).astype(bool) & (max_alt > cs.top_m)
+        max_alt[over_table] = np.nan
+        limit[over_table] = -1
+        flags[np.isposinf(max_alt)] |= ABOVE_MODEL_TOP
+        bad_mmo = ~np.isnan(cs.mmo) & (mach > cs.mmo + 1e-9)
+        flags[bad_mmo] |= ABOVE_MMO
+        bad_vmo = max_alt < vmo_floor
+        flags[bad_vmo] |= BELOW_VMO_FLOOR
+        low = max_alt < FLOOR_M
+        flags[low] |= BELOW_FLOOR
+    # Thrust may only work above the other limits' ceiling (high speed at low level): check there.
+    check = np.flatnonzero(np.isfinite(max_alt) & (limit > 0) & ~bad_vmo & ~low & ~bad_mmo)
+    if check.size:
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            e = phys.subset(check).excess(max_alt[check], mach[check])
+        flags[check[e < 0.0]] |= NO_COMMON_ALTITUDE
+    dead = (flags & (ABOVE_MMO | BELOW_VMO_FLOOR | NO_COMMON_ALTITUDE | BELOW_FLOOR)).astype(bool)
+    max_alt[dead] = np.nan
+    limit[dead | np.isnan(max_alt)] = -1
+    return Ceilings(thrust, buffet, stall, cs.certified_m.copy(), cabin, max_alt, np.asarray(mach, dtype=float).copy(),
+                    limit.astype(np.int8), flags, vmo_floor)
+
+
+def _objective(values):
+    """Altitudes for maximisation: unavailable counts as -inf, above the model top as +inf."""
+    return np.where(np.isnan(values), -np.inf, values)
+
+
+def _best_speed(phys: ClimbPhysics) -> Ceilings:
+    cs = phys.cases
+    n, g = len(cs), BEST_MACH_GRID
+    frac = np.linspace(0.0, 1.0, g)
+    grid = cs.mach_low[:, None] + (cs.mach_high - cs.mach_low)[:, None] * frac[None, :]
+    rep = ClimbPhysics(cs.repeat(g))
+    at_grid = _fixed_mach(rep, grid.ravel())
+    rows = np.arange(n)
+
+    def bracket(values):
+        i = np.argmax(_objective(values.reshape(n, g)), axis=1)
+        return grid[rows, np.maximum(i - 1, 0)], grid[rows, np.minimum(i + 1, g - 1)]
+
+    def max_alt_at(idx, m):
+        return _objective(_fixed_mach(phys.subset(idx) if idx.size != n else phys, m).max_altitude_m)
+
+    lo, hi = bracket(at_grid.max_altitude_m)
+    m_best, _ = _golden_max(max_alt_at, lo, hi, BEST_MACH_ITERATIONS)
+    # Keep the best grid point when the refinement found nothing better (flat or infeasible).
+    grid_best = np.argmax(_objective(at_grid.max_altitude_m.reshape(n, g)), axis=1)
+    final = _fixed_mach(phys, m_best)
+    grid_val = at_grid.max_altitude_m.reshape(n, g)[rows, grid_best]
+    worse = _objective(final.max_altitude_m) < _objective(grid_val)
+    if worse.any():
+        m_best = np.where(worse, grid[rows, grid_best], m_best)
+        final = _fixed_mach(phys, m_best)
+
+    # Each limit's own best-speed ceiling, reported beside the combined one.
+    def thrust_at(idx, m):
+        return _objective(thrust_ceiling_m(phys.subset(idx) if idx.size != n else phys, m)[0])
+
+    lo, hi = bracket(at_grid.thrust_m)
+    _, thrust_best = _golden_max(thrust_at, lo, hi, BEST_MACH_ITERATIONS)
+    thrust_grid = _objective(at_grid.thrust_m.reshape(n, g)).max(axis=1)
+    thrust_best = np.maximum.reduce([thrust_best, thrust_grid, _objective(final.thrust_m)])
+
+    def buffet_at(idx, m):
+        return _objective(closed_form_ceilings_m(cs.take(idx), m)[0])
+
+    lo, hi = bracket(at_grid.buffet_m)
+    _, buffet_best = _golden_max(buffet_at, lo, hi, BEST_MACH_ITERATIONS)
+    buffet_best = np.maximum.reduce([buffet_best, _objective(at_grid.buffet_m.reshape(n, g)).max(axis=1),
+                                     _objective(final.buffet_m)])
+    stall_best = closed_form_ceilings_m(cs, cs.mach_high)[1]
+
+    grid_flags = np.bitwise_or.reduce(at_grid.flags.reshape(n, g), axis=1)
+    flags = final.flags.copy()
+    nothing = np.isnan(final.max_altitude_m)
+    # Explain a case no speed can fly by what every grid speed ran into.
+    flags[nothing] |= np.bitwise_and.reduce(at_grid.flags.reshape(n, g), axis=1)[nothing]
+    flags[(grid_flags & THRUST_DATA_TOP).astype(bool)] |= THRUST_DATA_TOP
+    unavailable = lambda v: np.where(np.isneginf(v), np.nan, v)  # noqa: E731
+    return Ceilings(unavailable(thrust_best), np.where(cs.buffet_id >= 0, unavailable(buffet_best), np.inf),
+                    stall_best, final.certified_m, final.cabin_m, final.max_altitude_m, m_best,
+                    final.limit, flags, final.vmo_floor_m)
+
+
+def solve_ceilings(cases: CaseSet, chunk: int = CHUNK) -> Ceilings:
+    """Every limit's ceiling and the maximum altitude for all cases (fixed Mach or best speed).
+
+    Cases whose ``mach`` is NaN are solved for the best speed.
+    """
+    parts = []
+    for start in range(0, max(len(cases), 1), chunk):
+        part = cases.take(slice(start, start + chunk))
+        if len(part) == 0:
+            break
+        best = np.isnan(part.mach)
+        if best.all():
+            parts.append(_best_speed(ClimbPhysics(part)))
+        elif not best.any():
+            parts.append(_fixed_mach(ClimbPhysics(part), part.mach))
+        else:
+            fixed_idx, best_idx = np.flatnonzero(~best), np.flatnonzero(best)
+            a = _fixed_mach(ClimbPhysics(part.take(fixed_idx)), part.mach[fixed_idx])
+            b = _best_speed(ClimbPhysics(part.take(best_idx)))
+            order = np.argsort(np.concatenate([fixed_idx, best_idx]))
+            merged = Ceilings.concat([a, b])
+            parts.append(Ceilings(**{k: getattr(merged, k)[order] for k in Ceilings.__dataclass_fields__}))
+    if not parts:
+        empty = np.empty(0)
+        return Ceilings(empty, empty, empty, empty, empty, empty, empty, np.empty(0, np.int8), np.empty(0, np.int32),
+                        empty)
+    return Ceilings.concat(parts)
+

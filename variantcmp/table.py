@@ -1,0 +1,161 @@
+"""Result tables: the solver's answers as polars DataFrames in the units users read (ft, FL)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import polars as pl
+
+from . import solver as s
+from .aero import best_lift_to_drag
+from .atmosphere import G0
+from .cases import FT, build_cases
+from .units import OptionError, WeightSpec
+
+#: Columns of a ceilings table, in order (the target columns are added when a target is set).
+COLUMNS = (
+    "variant", "engine", "weight_kg", "isa_dev_c", "mach", "climb_fpm", "thrust_ceiling_ft",
+    "buffet_ceiling_ft", "stall_ceiling_ft", "certified_ceiling_ft", "cabin_ceiling_ft",
+    "max_altitude_ft", "flight_level", "limit", "note", "over_mtow",
+)
+TARGET_COLUMNS = ("target_ft", "margin_ft", "reaches_target")
+LIMIT_COLUMNS = dict(zip(s.LIMITS, ("thrust_ceiling_ft", "buffet_ceiling_ft", "stall_ceiling_ft",
+                                    "certified_ceiling_ft", "cabin_ceiling_ft")))
+
+
+@dataclass(frozen=True)
+class Conditions:
+    """What every view computes for: weights, days, speed, climb criteria, margins, selection."""
+
+    weights: tuple[WeightSpec, ...] = (WeightSpec(100.0, "%mtow"),)
+    isa_devs_c: tuple[float, ...] = (0.0,)
+    mach: float | str = "cruise"  # "cruise" (each variant's cruise Mach), a Mach, or "best"
+    climb_fpm: tuple[float, ...] = (300.0,)
+    g_margin: float = 1.3
+    target_fl_ft: float | None = None
+    variants: tuple[str, ...] = ()  # empty: all
+    engines: tuple[str, ...] = ()
+
+
+def selected_pairs(catalogue, conditions: Conditions) -> list[tuple[str, str]]:
+    """(variant id, engine id) pairs the conditions select, in catalogue order."""
+    variants = conditions.variants or tuple(catalogue.variants)
+    return [(vid, eid) for vid in variants for eid in catalogue.variants[vid].engine_options
+            if not conditions.engines or eid in conditions.engines]
+
+
+def check_selection(catalogue, conditions: Conditions) -> None:
+    """Refuse unknown variant or engine ids, or a selection with no variant x engine pair."""
+    for what, given, known in (("--variant", conditions.variants, catalogue.variants),
+                               ("--engine", conditions.engines, catalogue.engines)):
+        unknown = [i for i in given if i not in known]
+        if unknown:
+            raise OptionError(f"{what}: unknown id {', '.join(repr(u) for u in unknown)} in {catalogue.path}; "
+                              f"expected one of: {', '.join(known)}")
+    if not selected_pairs(catalogue, conditions):
+        raise OptionError(f"--variant/--engine: no variant in {catalogue.path} offers the selected engine(s) "
+                          f"{', '.join(conditions.engines)}")
+
+
+def solve(catalogue, conditions: Conditions):
+    """Build the cases the conditions describe and solve them: (CaseSet, CaseIndex, Ceilings, pairs)."""
+    pairs = selected_pairs(catalogue, conditions)
+    cases, index = build_cases(
+        catalogue, pairs, lambda v: [w.resolve_kg(v.mtow_kg) for w in conditions.weights],
+        conditions.isa_devs_c, conditions.climb_fpm, conditions.mach, conditions.g_margin)
+    return cases, index, s.solve_ceilings(cases)
+
+
+def _ft(values_m) -> np.ndarray:
+    """m -> ft; NaN and infinities (unavailable or above the model top) become NaN (null)."""
+    out = np.asarray(values_m, dtype=float) / FT
+    return np.where(np.isfinite(out), out, np.nan)
+
+
+def _notes(cases, res, climb_fpm) -> list[str]:
+    notes = []
+    best = np.isnan(cases.mach)
+    for i in range(len(cases)):  # text only, per row: the numbers are all computed above
+        f, parts = int(res.flags[i]), []
+        speed = "at any speed" if best[i] else f"at M{cases.mach[i]:.2f}"
+        if f & s.CANNOT_CLIMB:
+            parts.append(f"cannot climb at {climb_fpm[i]:g} ft/min {speed} "
+                         f"(even at -2,000 ft)" if not best[i] else f"cannot climb at {climb_fpm[i]:g} ft/min at any speed")
+        if f & s.THRUST_DATA_MACH:
+            parts.append(f"M{cases.mach[i]:.2f} outside the thrust table" if not best[i] else "no speed in the thrust table")
+        if f & s.THRUST_DATA_TOP:
+            parts.append(f"still climbing at the thrust table top ({cases.top_m[i] / FT:,.0f} ft)")
+        if f & s.NO_BUFFET_AT_MACH and not best[i]:
+            parts.append(f"no buffet data at M{cases.mach[i]:.2f}: buffet not checked")
+        if f & s.ABOVE_MMO:
+            parts.append(f"M{cases.mach[i]:.2f} above MMO {cases.mmo[i]:.2f}")
+        if f & s.BELOW_VMO_FLOOR:
+            parts.append(f"M{res.mach[i]:.2f} exceeds VMO below {res.vmo_floor_m[i] / FT:,.0f} ft, "
+                         "above the other limits' ceiling")
+        if f & s.NO_COMMON_ALTITUDE:
+            parts.append("thrust and the other limits leave no common altitude")
+        if f & s.BELOW_FLOOR:
+            parts.append("limits cross below -2,000 ft")
+        if f & s.ABOVE_MODEL_TOP:
+            parts.append("no limit binds below the model top")
+        if cases.over_mtow[i]:
+            parts.append("above MTOW")
+        notes.append("; ".join(parts))
+    return notes
+
+
+def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
+    """One row per variant x engine x weight x ISA deviation x climb criterion."""
+    cases, index, res = solve(catalogue, conditions)
+    climb_fpm = index.climb_fpm
+    max_ft = _ft(res.max_altitude_m)
+    limit_names = np.array(list(s.LIMITS) + ["none"], dtype=object)
+    has_alt = np.isfinite(max_ft)
+    limit = np.where(has_alt, limit_names[np.where(res.limit >= 0, res.limit, len(s.LIMITS))],
+                     np.where(res.flags & s.ABOVE_MODEL_TOP, "none", None))
+    frame = pl.DataFrame({
+        "variant": np.asarray(index.variant_ids, dtype=object)[cases.variant_index].tolist(),
+        "engine": np.asarray(index.engine_ids, dtype=object)[cases.engine_index].tolist(),
+        "weight_kg": cases.weight_kg,
+        "isa_dev_c": cases.isa_dev_c,
+        "mach": np.where(has_alt | ~np.isnan(cases.mach), res.mach, np.nan),
+        "climb_fpm": climb_fpm,
+        "thrust_ceiling_ft": _ft(res.thrust_m),
+        "buffet_ceiling_ft": _ft(res.buffet_m),
+        "stall_ceiling_ft": _ft(res.stall_m),
+        "certified_ceiling_ft": _ft(res.certified_m),
+        "cabin_ceiling_ft": _ft(res.cabin_m),
+        "max_altitude_ft": max_ft,
+        "flight_level": np.where(has_alt, np.floor(np.where(has_alt, max_ft, 0.0) / 100.0), np.nan),
+        "limit": pl.Series(limit.tolist(), dtype=pl.String),
+        "note": _notes(cases, res, climb_fpm),
+        "over_mtow": cases.over_mtow,
+    }, nan_to_null=True).with_columns(pl.col("flight_level").cast(pl.Int64))
+    if conditions.target_fl_ft is not None:
+        frame = frame.with_columns(target_ft=pl.lit(float(conditions.target_fl_ft))).with_columns(
+            margin_ft=pl.col("max_altitude_ft") - pl.col("target_ft"),
+        ).with_columns(reaches_target=pl.col("margin_ft") >= 0)
+    return frame
+
+
+def variant_figures(catalogue, variant_id: str) -> dict:
+    """Derived figures of a variant: polar, wing loading, thrust-to-weight, absolute ceiling.
+
+    The absolute ceiling is the thrust ceiling at zero residual climb, best speed, MTOW, ISA.
+    """
+    v = catalogue.variants[variant_id]
+    ld_max, cl_star = best_lift_to_drag(v.cd0, v.k)
+    tw = {eid: v.engine_count * catalogue.engines[eid].static_thrust_kn * 1000.0 / (v.mtow_kg * G0)
+          for eid in v.engine_options}
+    cond = Conditions(mach="best", climb_fpm=(0.0,), variants=(variant_id,))
+    cases, index, res = solve(catalogue, cond)
+    absolute = dict(zip((index.engine_ids[i] for i in cases.engine_index), _ft(res.thrust_m).tolist()))
+    return {
+        "K": float(v.k),
+        "L/D max": float(ld_max),
+        "CL at L/D max": float(cl_star),
+        "Wing loading kg/m2": v.mtow_kg / v.wing_area_m2,
+        "T/W static at MTOW": tw,
+        "Absolute ceiling ft (MTOW, ISA)": {k: (None if np.isnan(x) else x) for k, x in absolute.items()},
+    }

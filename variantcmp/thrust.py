@@ -1,0 +1,101 @@
+"""Thrust lapse models: available thrust as a fraction of sea-level static thrust.
+
+Each function returns F / F_SLS for one engine at full rating; the solver multiplies by the
+engine count, static thrust and rating fraction.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .atmosphere import GAMMA, P0_PA, RHO0_KG_M3, T0_K
+
+
+def density_lapse_fraction(density_kg_m3, lapse_exponent=1.0, tropopause_density_kg_m3=None,
+                           lapse_exponent_above_tropopause=None):
+    """Thrust proportional to a power of density: F/F0 = (rho/rho0)^m.
+
+    Source: the classical density-ratio thrust lapse for jets (e.g. Raymer, *Aircraft Design: A
+    Conceptual Approach*, 6th ed., sec. 10.3; Torenbeek, *Synthesis of Subsonic Airplane Design*,
+    app. H). Above the tropopause an optional second exponent m2 applies to the density ratio
+    from the tropopause: F/F0 = sigma_11^m (rho/rho_11)^m2. No Mach dependence.
+    """
+    rho = np.asarray(density_kg_m3, dtype=float)
+    m = np.asarray(lapse_exponent, dtype=float)
+    frac = (rho / RHO0_KG_M3) ** m
+    if tropopause_density_kg_m3 is None or lapse_exponent_above_tropopause is None:
+        return frac
+    rho11 = np.asarray(tropopause_density_kg_m3, dtype=float)
+    m2 = np.asarray(lapse_exponent_above_tropopause, dtype=float)
+    above = rho < rho11
+    with np.errstate(invalid="ignore", divide="ignore"):
+        upper = (rho11 / RHO0_KG_M3) ** m * (rho / rho11) ** m2
+    return np.where(above, upper, frac)
+
+
+def stagnation_ratios(mach, temperature_k, pressure_pa):
+    """Total-temperature and total-pressure ratios theta0, delta0 (to sea-level standard).
+
+    Source: Mattingly, Heiser & Pratt, *Aircraft Engine Design*, 2nd ed. (AIAA 2002), eqs. 2.52a-b:
+    theta0 = (T/T_std)(1 + (gamma-1)/2 M^2), delta0 = (p/p_std)(1 + (gamma-1)/2 M^2)^(gamma/(gamma-1)).
+    """
+    ram = 1.0 + 0.5 * (GAMMA - 1.0) * np.asarray(mach, dtype=float) ** 2
+    theta0 = np.asarray(temperature_k) / T0_K * ram
+    delta0 = np.asarray(pressure_pa) / P0_PA * ram ** (GAMMA / (GAMMA - 1.0))
+    return theta0, delta0
+
+
+def turbofan_lapse_fraction(mach, temperature_k, pressure_pa, throttle_ratio=1.0):
+    """Installed full-throttle thrust lapse of a high-bypass turbofan.
+
+    Source: Mattingly, Heiser & Pratt, *Aircraft Engine Design*, 2nd ed. (AIAA 2002), eq. 2.54a
+    (high-bypass turbofan, maximum power):
+    alpha = delta0 (1 - 0.49 sqrt(M))                          for theta0 <= TR
+    alpha = delta0 (1 - 0.49 sqrt(M) - 3 (theta0 - TR)/(1.5 + M)) for theta0 > TR,
+    TR the throttle ratio (theta0 at which the engine reaches its temperature limit). Hot days
+    raise theta0 and so lower thrust once theta0 > TR. Clipped at zero thrust.
+    """
+    m = np.asarray(mach, dtype=float)
+    theta0, delta0 = stagnation_ratios(m, temperature_k, pressure_pa)
+    base = 1.0 - 0.49 * np.sqrt(m)
+    hot = 3.0 * np.maximum(theta0 - np.asarray(throttle_ratio, dtype=float), 0.0) / (1.5 + m)
+    return np.maximum(delta0 * (base - hot), 0.0)
+
+
+def hot_day_factor(isa_dev_c, flat_rate_isa_dev_c=None, hot_day_loss_per_c=0.0):
+    """Flat-rated thrust: 1 up to the flat-rate deviation, then falling linearly per degree.
+
+    factor = 1 - loss x max(0, dT - dT_flat), not below zero. Common practice approximation of a
+    flat-rated engine's hot-day loss (no single published source; see e.g. Torenbeek app. H for
+    the flat-rating concept).
+    """
+    dev = np.asarray(isa_dev_c, dtype=float)
+    if flat_rate_isa_dev_c is None:
+        return np.ones_like(dev)
+    flat = np.asarray(flat_rate_isa_dev_c, dtype=float)
+    loss = np.asarray(hot_day_loss_per_c, dtype=float)
+    # A NaN flat-rate deviation means the engine is not flat rated: no loss.
+    over = np.where(np.isnan(flat), 0.0, np.maximum(dev - np.nan_to_num(flat), 0.0))
+    return np.maximum(1.0 - loss * over, 0.0)
+
+
+class TableLapse:
+    """Thrust fraction read from a grid of pressure altitude (ft) x Mach at ISA.
+
+    Bilinear interpolation (scipy.interpolate.RegularGridInterpolator, method "linear"). A point
+    outside the grid gives NaN: the table's range is where the data stops, never extrapolated.
+    """
+
+    def __init__(self, altitude_ft, mach, fraction):
+        from scipy.interpolate import RegularGridInterpolator
+
+        self.altitude_ft = np.asarray(altitude_ft, dtype=float)
+        self.mach = np.asarray(mach, dtype=float)
+        self._interp = RegularGridInterpolator(
+            (self.altitude_ft, self.mach), np.asarray(fraction, dtype=float),
+            method="linear", bounds_error=False, fill_value=np.nan)
+
+    def __call__(self, altitude_ft, mach):
+        alt = np.asarray(altitude_ft, dtype=float)
+        m = np.broadcast_to(np.asarray(mach, dtype=float), alt.shape)
+        return self._interp(np.stack([alt.ravel(), m.ravel()], axis=-1)).reshape(alt.shape)

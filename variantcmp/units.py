@@ -1,0 +1,318 @@
+"""Units at the edges: conversion constants and parsers for what users type.
+
+Everything inside the package is SI; this module turns aviation units typed on
+the command line or in the terminal app (kg, t, lb, %mtow, ISA+15, ft/min,
+M.78, FL350) into plain numbers, and formats altitudes back as flight levels.
+Every parser raises :class:`OptionError` whose text names the option, quotes
+the bad text and says what is expected.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+
+# Exact by definition: international foot (1959), nautical mile (1929), pound (1959).
+FT_PER_M = 1 / 0.3048
+M_PER_FT = 0.3048
+KT_TO_MS = 1852 / 3600
+LB_TO_KG = 0.45359237
+FPM_TO_MS = 0.3048 / 60
+T_TO_KG = 1000.0
+
+# Named residual rate-of-climb criteria, ft/min (trade definitions; common practice).
+CLIMB_CRITERIA_FPM: dict[str, float] = {"absolute": 0.0, "service": 100.0, "cruise": 300.0}
+
+# Plausibility bounds: values outside are typing mistakes, not aircraft.
+MAX_WEIGHT_KG = 2.0e6
+MAX_WEIGHT_PCT_MTOW = 200.0
+ISA_DEV_RANGE_C = (-80.0, 70.0)
+MAX_CLIMB_FPM = 10000.0
+ALTITUDE_RANGE_FT = (-2000.0, 154000.0)  # model atmosphere spans -2,000 ft to about 47 km
+G_MARGIN_RANGE = (1.0, 2.5)
+
+_NUMBER = r"[+-]?(?:\d+(?:_\d+)*(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
+
+
+class OptionError(ValueError):
+    """A bad user value; str() is the one-line message to show."""
+
+
+def _fail(option: str, text: str, expected: str) -> OptionError:
+    return OptionError(f"{option}: cannot use {text.strip()!r}: expected {expected}")
+
+
+def _items(text: str, option: str, expected: str) -> list[str]:
+    """Split a comma list, refusing empty items ("1,,2") and empty input."""
+    if text is None or not str(text).strip():
+        raise _fail(option, str(text or ""), expected)
+    items = [item.strip() for item in str(text).split(",")]
+    if any(not item for item in items):
+        raise OptionError(f"{option}: empty item in {text.strip()!r}: expected {expected}")
+    return items
+
+
+def _number(body: str) -> float | None:
+    """The float in ``body`` if it is a plain finite number, else None."""
+    if not re.fullmatch(_NUMBER, body):
+        return None
+    value = float(body)
+    return value if math.isfinite(value) else None
+
+
+def _dedupe(values: list) -> list:
+    seen: list = []
+    for value in values:
+        if value not in seen:
+            seen.append(value)
+    return seen
+
+
+# --- weights -----------------------------------------------------------------
+
+@dataclass(frozen=True)
+class WeightSpec:
+    """A weight as typed: absolute (``unit="kg"``) or a share of each variant's MTOW."""
+
+    value: float
+    unit: str  # "kg" (t and lb already converted) or "%mtow"
+
+    def resolve_kg(self, mtow_kg: float) -> float:
+        """Mass in kg for a variant whose maximum take-off weight is ``mtow_kg``."""
+        if self.unit == "%mtow":
+            return self.value / 100.0 * mtow_kg
+        return self.value
+
+    def __str__(self) -> str:
+        if self.unit == "%mtow":
+            return f"{self.value:g} %MTOW"
+        return f"{self.value:,.0f} kg"
+
+
+_WEIGHT_EXPECTED = (
+    "a comma list of weights in kg, t, lb or %mtow, e.g. 62000,64.5t,140000lb,90%mtow"
+)
+_WEIGHT_UNITS = {
+    "": ("kg", 1.0), "kg": ("kg", 1.0), "kgs": ("kg", 1.0),
+    "t": ("kg", T_TO_KG), "tonne": ("kg", T_TO_KG), "tonnes": ("kg", T_TO_KG),
+    "lb": ("kg", LB_TO_KG), "lbs": ("kg", LB_TO_KG),
+    "%mtow": ("%mtow", 1.0), "%": ("%mtow", 1.0),
+}
+
+
+def parse_weight(text: str, option: str = "--weight") -> WeightSpec:
+    """One weight: "62000", "62000kg", "64.5t", "140000lb", "90%mtow", "mtow" (= 100 %MTOW)."""
+    raw = text.strip()
+    compact = re.sub(r"\s+", "", raw).lower()
+    if compact == "mtow":
+        return WeightSpec(100.0, "%mtow")
+    match = re.fullmatch(rf"({_NUMBER})([a-z%]*)", compact)
+    if not match or match.group(2) not in _WEIGHT_UNITS or _number(match.group(1)) is None:
+        raise _fail(option, raw, _WEIGHT_EXPECTED)
+    unit, factor = _WEIGHT_UNITS[match.group(2)]
+    value = _number(match.group(1)) * factor
+    if unit == "%mtow":
+        if not 0.0 < value <= MAX_WEIGHT_PCT_MTOW:
+            raise _fail(option, raw, f"a share of MTOW above 0 and at most {MAX_WEIGHT_PCT_MTOW:g} %")
+    elif not 0.0 < value <= MAX_WEIGHT_KG:
+        raise _fail(option, raw, f"a weight above 0 and at most {MAX_WEIGHT_KG:,.0f} kg")
+    return WeightSpec(value, unit)
+
+
+def parse_weights(text: str, option: str = "--weight") -> list[WeightSpec]:
+    """A comma list of weights, e.g. "62000, 64.5t, 140000lb, 90%mtow"; duplicates dropped."""
+    items = _items(text, option, _WEIGHT_EXPECTED)
+    # "62,000" splits into "62" and "000": refuse a bare three-digit group after a bare number.
+    for before, item in zip(items, items[1:]):
+        if re.fullmatch(r"\d{3}", item) and re.fullmatch(r"\d{1,3}", before):
+            raise OptionError(
+                f"{option}: {text.strip()!r} looks like a number with a thousands separator; "
+                "commas separate list items: write 62000 or 62t"
+            )
+    return _dedupe([parse_weight(item, option) for item in items])
+
+
+# --- temperature deviation ------------------------------------------------------
+
+_ISA_EXPECTED = (
+    "a comma list of ISA temperature deviations in degrees C, e.g. -10,0,15 or ISA+15,ISA-5"
+)
+
+
+def parse_isa_dev(text: str, option: str = "--isa") -> float:
+    """One deviation from ISA in degrees C: "15", "+20", "-10", "ISA+15", "isa-5", "ISA", "15C"."""
+    raw = text.strip()
+    compact = re.sub(r"\s+", "", raw).lower().replace("°", "")
+    if compact == "isa":
+        return 0.0
+    if compact.startswith("isa"):
+        compact = compact[3:]
+        if compact[:1] not in ("+", "-"):
+            raise _fail(option, raw, _ISA_EXPECTED)
+    if compact.endswith("c"):
+        compact = compact[:-1]
+    value = _number(compact)
+    if value is None:
+        raise _fail(option, raw, _ISA_EXPECTED)
+    low, high = ISA_DEV_RANGE_C
+    if not low <= value <= high:
+        raise _fail(option, raw, f"a deviation from {low:+g} to {high:+g} degrees C")
+    return value + 0.0  # -0.0 -> 0.0
+
+
+def parse_isa_devs(text: str, option: str = "--isa") -> list[float]:
+    """A comma list of deviations: "-10,0,15", "ISA+15", "isa-5", "+20"; duplicates dropped."""
+    return _dedupe([parse_isa_dev(item, option) for item in _items(text, option, _ISA_EXPECTED)])
+
+
+def format_isa_dev(isa_dev_c: float) -> str:
+    """15 -> "ISA+15", -5 -> "ISA-5", 0 -> "ISA"."""
+    if isa_dev_c == 0:
+        return "ISA"
+    return f"ISA{isa_dev_c:+g}"
+
+
+# --- residual rate of climb -----------------------------------------------------
+
+_CLIMB_EXPECTED = (
+    "absolute (0 ft/min), service (100 ft/min), cruise (300 ft/min) "
+    "or a rate in ft/min such as 250 or 250fpm"
+)
+
+
+def parse_climb(text: str, option: str = "--climb") -> tuple[float, str]:
+    """A residual rate-of-climb criterion -> (ft/min, label).
+
+    "absolute" -> (0, "absolute"), "service" -> (100, "service"), "cruise" -> (300, "cruise"),
+    "250", "250fpm" or "250 ft/min" -> (250, "250 ft/min"). A negative rate is refused.
+    """
+    raw = text.strip()
+    compact = re.sub(r"\s+", "", raw).lower()
+    if compact in CLIMB_CRITERIA_FPM:
+        return CLIMB_CRITERIA_FPM[compact], compact
+    for suffix in ("ft/min", "fpm", "ft/mn"):
+        if compact.endswith(suffix):
+            compact = compact[: -len(suffix)]
+            break
+    value = _number(compact)
+    if value is None:
+        raise _fail(option, raw, _CLIMB_EXPECTED)
+    if value < 0:
+        raise OptionError(
+            f"{option}: cannot use {raw!r}: a residual rate of climb must be 0 ft/min or more "
+            "(0 = absolute ceiling)"
+        )
+    if value > MAX_CLIMB_FPM:
+        raise _fail(option, raw, f"a rate of climb of at most {MAX_CLIMB_FPM:,.0f} ft/min")
+    value += 0.0
+    return value, f"{value:g} ft/min"
+
+
+def parse_climbs(text: str, option: str = "--climb") -> list[tuple[float, str]]:
+    """A comma list of climb criteria, e.g. "absolute,service,cruise" or "0,100,300"."""
+    parsed = [parse_climb(item, option) for item in _items(text, option, _CLIMB_EXPECTED)]
+    unique: dict[float, str] = {}
+    for fpm, label in parsed:
+        unique.setdefault(fpm, label)
+    return list(unique.items())
+
+
+# --- Mach -------------------------------------------------------------------------
+
+_MACH_EXPECTED = "best, cruise or a subsonic Mach number above 0 and below 1, e.g. 0.78 or M.78"
+
+
+def parse_mach(text: str, option: str = "--mach") -> float | str:
+    """"best" -> "best", "cruise" -> "cruise", "0.78", ".78", "M.78" or "M0.78" -> 0.78.
+
+    The models are subsonic: a Mach at or above 1, or at or below 0, is refused.
+    """
+    raw = text.strip()
+    compact = re.sub(r"\s+", "", raw).lower()
+    if compact in ("best", "cruise"):
+        return compact
+    if compact.startswith("m"):
+        compact = compact[1:]
+        if compact.startswith("."):
+            compact = "0" + compact
+    value = _number(compact)
+    if value is None:
+        raise _fail(option, raw, _MACH_EXPECTED)
+    if not 0.0 < value < 1.0:
+        raise _fail(option, raw, "a Mach above 0 and below 1 (the models are subsonic), best or cruise")
+    return value
+
+
+def format_mach(mach: float | None) -> str:
+    """0.78 -> "M0.78"; None/nan -> "—"."""
+    if mach is None or not math.isfinite(mach):
+        return "—"
+    return f"M{mach:.2f}"
+
+
+# --- altitude -------------------------------------------------------------------
+
+_FL_EXPECTED = "a flight level or pressure altitude, e.g. FL350, 350, 35000ft or 10668m"
+
+
+def parse_flight_level(text: str, option: str = "--target") -> float:
+    """A pressure altitude in ft from "FL350", "350" (a flight level), "35000ft", "35,000 ft" or "10668m".
+
+    A bare number below 1000 is a flight level; a bare number of 1000 or more is feet.
+    """
+    raw = text.strip()
+    compact = re.sub(r"[\s,]+", "", raw).lower()
+    if compact.startswith("fl"):
+        value = _number(compact[2:])
+        altitude_ft = None if value is None else value * 100.0
+    elif compact.endswith("ft"):
+        value = _number(compact[:-2])
+        altitude_ft = value
+    elif compact.endswith("m"):
+        value = _number(compact[:-1])
+        altitude_ft = None if value is None else value * FT_PER_M
+    else:
+        value = _number(compact)
+        if value is None:
+            altitude_ft = None
+        else:
+            altitude_ft = value * 100.0 if abs(value) < 1000 else value
+    if altitude_ft is None:
+        raise _fail(option, raw, _FL_EXPECTED)
+    low, high = ALTITUDE_RANGE_FT
+    if not low <= altitude_ft <= high:
+        raise _fail(option, raw, f"an altitude from {low:,.0f} ft to {high:,.0f} ft")
+    return altitude_ft + 0.0
+
+
+def format_flight_level(altitude_ft: float | None) -> str:
+    """37120 -> "FL371" (floor of ft/100, three digits); None/nan -> "—"."""
+    if altitude_ft is None or not math.isfinite(altitude_ft):
+        return "—"
+    level = math.floor(altitude_ft / 100.0)
+    if level < 0:
+        return f"FL-{-level:03d}"
+    return f"FL{level:03d}"
+
+
+def format_altitude_ft(altitude_ft: float | None) -> str:
+    """37120.4 -> "37,120"; None/nan -> "—". Rounded down so it never overstates a ceiling."""
+    if altitude_ft is None or not math.isfinite(altitude_ft):
+        return "—"
+    return f"{math.floor(altitude_ft):,d}"
+
+
+# --- load factor --------------------------------------------------------------------
+
+def parse_g_margin(text: str, option: str = "--g-margin") -> float:
+    """Buffet-onset load-factor margin: "1.3", "1.3g" -> 1.3 (1.0 = onset at 1 g)."""
+    raw = str(text).strip()
+    compact = re.sub(r"\s+", "", raw).lower().removesuffix("g")
+    value = _number(compact)
+    low, high = G_MARGIN_RANGE
+    if value is None:
+        raise _fail(option, raw, f"a load factor such as 1.3 (from {low:g} to {high:g} g)")
+    if not low <= value <= high:
+        raise _fail(option, raw, f"a load factor from {low:g} to {high:g} g")
+    return value
