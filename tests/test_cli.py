@@ -1,12 +1,16 @@
 """The command line as a user runs it: options, output formats, errors and exit codes."""
 
+import contextlib
 import io
 import json
 import re
+import shlex
 import subprocess
 import sys
 import types
+from pathlib import Path
 
+import numpy as np
 import polars as pl
 import pytest
 
@@ -180,6 +184,51 @@ def test_positional_catalogue_and_bundled_name(capsys):
     assert by_path == by_default == by_name
 
 
+def _pressure_altitude_ft(pressure_pa):
+    """Pressure altitude by the reference library ambiance (U.S. Standard Atmosphere 1976).
+
+    ambiance works in geometric altitude; pressure altitude is geopotential:
+    H = r0 h / (r0 + h), r0 = 6,356,766 m (U.S. Standard Atmosphere 1976, eq. 18).
+    """
+    from ambiance import Atmosphere
+
+    r0 = 6_356_766.0
+    h = np.linspace(-1_000.0, 30_000.0, 310_001)  # geometric m, 0.1 m steps
+    p = Atmosphere(h).pressure
+    geometric = np.interp(-np.asarray(pressure_pa), -p, h)
+    return r0 * geometric / (r0 + geometric) / 0.3048
+
+
+def test_closed_form_limits_match_a_reference_atmosphere(capsys, demo):
+    # End to end through the CLI: buffet, stall and cabin ceilings are closed forms in pressure.
+    # Lift with q = (gamma/2) p M^2 (Anderson, Introduction to Flight, eq. 4.83), gamma = 1.4:
+    #   buffet: n m g = 0.7 p M^2 S CL_buffet(M) at n = 1.3 (common practice)
+    #   stall:    m g = 0.7 p M^2 S cl_max
+    #   cabin:    p = p_ISA(cabin altitude) - max differential
+    g0 = 9.80665  # standard gravity (ISO 80000-3)
+    status, out, err = run(capsys, "ceilings", "--weight", "100%mtow", "--isa=0", "--format", "csv")
+    assert status == 0, err
+    frame = read_csv(out)
+    checked = 0
+    for row in frame.iter_rows(named=True):
+        v = demo.variants[row["variant"]]
+        m, mach, q_per_p = row["weight_kg"], row["mach"], 0.7 * row["mach"] ** 2
+        stall_p = m * g0 / (q_per_p * v.wing_area_m2 * v.cl_max)
+        assert row["stall_ceiling_ft"] == pytest.approx(_pressure_altitude_ft(stall_p), abs=2.0)
+        if v.has_buffet:
+            cl_buffet = np.interp(mach, v.buffet_mach, v.buffet_cl)
+            buffet_p = 1.3 * m * g0 / (q_per_p * v.wing_area_m2 * cl_buffet)
+            assert row["buffet_ceiling_ft"] == pytest.approx(_pressure_altitude_ft(buffet_p), abs=2.0)
+        if v.has_cabin:
+            from ambiance import Atmosphere
+
+            r0, cabin_m = 6_356_766.0, v.cabin_altitude_ft * 0.3048
+            cabin_p = Atmosphere(r0 * cabin_m / (r0 - cabin_m)).pressure[0] - v.max_cabin_dp_kpa * 1000
+            assert row["cabin_ceiling_ft"] == pytest.approx(_pressure_altitude_ft(cabin_p), abs=2.0)
+        checked += 1
+    assert checked == pairs(demo)
+
+
 # --- user errors: one message, exit 2, no traceback ---------------------------------------------
 
 @pytest.mark.parametrize(
@@ -303,3 +352,45 @@ def test_python_dash_m_runs_and_fails_cleanly():
                          capture_output=True, text=True, timeout=300)
     assert bad.returncode == 2
     assert "--mach" in bad.stderr and "Traceback" not in bad.stderr
+
+
+# --- the README shows real runs ----------------------------------------------------------------
+
+README = Path(__file__).resolve().parents[1] / "README.md"
+RUN_BLOCK = re.compile(
+    r"(<!-- ceilings-run:start[^\n]*-->\n```text\n\$ variantcmp (?P<args>[^\n]*)\n)(?P<out>.*?)"
+    r"(```\n<!-- ceilings-run:end -->)", re.S)
+
+
+def _fresh_output(args: str) -> str:
+    """Output of `variantcmp ARGS` as the README shows it (trailing blanks stripped)."""
+    buffer = io.StringIO()
+    with contextlib.redirect_stdout(buffer):
+        status = main(shlex.split(args))
+    assert status == 0, args
+    return "".join(line.rstrip() + "\n" for line in buffer.getvalue().splitlines())
+
+
+@pytest.mark.skipif(not README.is_file(), reason="README.md is not next to the tests")
+def test_readme_runs_are_real_and_current():
+    # The README's example output must be what the program prints today, never typed by hand.
+    # Regenerate with: python tests/test_cli.py --update-readme
+    blocks = list(RUN_BLOCK.finditer(README.read_text(encoding="utf-8")))
+    assert blocks, "README.md has no ceilings-run block"
+    for block in blocks:
+        assert block["out"] == _fresh_output(block["args"]), (
+            f"README run of 'variantcmp {block['args']}' is out of date: "
+            "python tests/test_cli.py --update-readme")
+
+
+def _update_readme() -> None:
+    text = README.read_text(encoding="utf-8")
+    text = RUN_BLOCK.sub(lambda m: m.group(1) + _fresh_output(m["args"]) + m.group(4), text)
+    README.write_text(text, encoding="utf-8")
+
+
+if __name__ == "__main__":
+    if sys.argv[1:] == ["--update-readme"]:
+        _update_readme()
+    else:
+        sys.exit("usage: python tests/test_cli.py --update-readme")

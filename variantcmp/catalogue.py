@@ -186,7 +186,7 @@ _TABLE_MACH = _Num("Mach numbers", 0, **_MACH)
 _TABLE_FRACTION = _Num("thrust fractions (thrust / static thrust at ISA)", 0, 1.5)
 
 _VARIANT_NUMS: dict[str, _Num] = {
-    "engine_count": _Num("the number of engines, a whole number", 1, 8, integer=True),
+    "engine_count": _Num("the number of engines", 1, 8, integer=True),
     "wing_area_m2": _Num("the reference wing area in m2", 0, 2000, lo_open=True),
     "aspect_ratio": _Num("the wing aspect ratio", 2, 40),
     "oswald_e": _Num("the Oswald efficiency factor", 0.3, 1.2),
@@ -293,14 +293,14 @@ class _Table:
             return None
         return self._number(key, self.raw[key], rule)
 
-    def _number(self, key: str, value: Any, rule: _Num, item: str = "") -> float | int | None:
-        what = rule.what if not item else f"{item} of {rule.what}"
+    def _number(self, key: str, value: Any, rule: _Num) -> float | int | None:
+        what = rule.what
         if isinstance(value, bool) or not isinstance(value, (int, float)):
             kind = "a whole number" if rule.integer else "a number"
             self.fail(key, f"expected {kind} ({what}), got {_describe(value)}")
             return None
         if rule.integer and not isinstance(value, int):
-            self.fail(key, f"expected a whole number ({what}) written without a decimal point, got {_describe(value)}")
+            self.fail(key, f"expected a whole number ({what}) written without a decimal point, got {value!r}")
             return None
         try:
             x = float(value)
@@ -349,7 +349,7 @@ class _Table:
         if len(value) < min_len:
             self.fail(key, f"expected at least {min_len} {rule.what}, got {len(value)}")
             return None
-        out = [self._number(f"{key}[{i}]", v, rule, item="one") for i, v in enumerate(value)]
+        out = [self._number(f"{key}[{i}]", v, rule) for i, v in enumerate(value)]
         if any(x is None for x in out):
             return None
         if increasing:
@@ -460,7 +460,7 @@ def _fraction_table(t: _Table, alt, mach) -> tuple[tuple[float, ...], ...] | Non
         if mach and len(row) != len(mach):
             t.fail(f"{key}[{i}]", f"expected {len(mach)} values (one per Mach in table_mach), got {len(row)}")
             return None
-        vals = [t._number(f"{key}[{i}][{j}]", v, _TABLE_FRACTION, item="one") for j, v in enumerate(row)]
+        vals = [t._number(f"{key}[{i}][{j}]", v, _TABLE_FRACTION) for j, v in enumerate(row)]
         if any(v is None for v in vals):
             return None
         out.append(tuple(vals))
@@ -539,13 +539,16 @@ def _engine_options(t: _Table, engine_ids: set[str]) -> tuple[str, ...] | None:
             t.fail(f"{key}[{i}]", f'engine "{ident}" is listed twice')
         elif ident not in engine_ids:
             known = sorted(engine_ids)
+            same_but_case = [k for k in known if k.lower() == ident.lower()]
             close = difflib.get_close_matches(ident, known, n=1, cutoff=0.6)
-            if close:
+            if same_but_case:
+                hint = f'; did you mean "{same_but_case[0]}"? (ids are case-sensitive)'
+            elif close:
                 hint = f'; did you mean "{close[0]}"?'
             elif known:
                 hint = f"; known engines: {', '.join(known)}"
             else:
-                hint = "; the catalogue defines no [[engine]]"
+                hint = ""
             t.fail(f"{key}[{i}]", f'no [[engine]] has id "{ident}"{hint}')
         out.append(ident)
     return tuple(out)
@@ -670,6 +673,8 @@ def load_catalogue(path: str | os.PathLike) -> Catalogue:
 
     engine_raw = _tables(doc, "engine", file, problems)
     variant_raw = _tables(doc, "variant", file, problems)
+    if not engine_raw and not any(p.key == "engine" for p in problems):
+        problems.append(Problem(file, "engine", "missing: expected at least one [[engine]] table"))
     all_engine_ids = {r["id"].strip() for r in engine_raw if isinstance(r.get("id"), str)}
 
     engines: dict[str, Engine] = {}
@@ -680,7 +685,7 @@ def load_catalogue(path: str | os.PathLike) -> Catalogue:
             engines[eng.id] = eng
     _duplicates(engine_raw, "engine", file, problems)
 
-    if not variant_raw and "variant" not in doc:
+    if not variant_raw and not any(p.key == "variant" for p in problems):
         problems.append(Problem(file, "variant", "missing: expected at least one [[variant]] table"))
     variants: dict[str, Variant] = {}
     for i, raw in enumerate(variant_raw):

@@ -274,6 +274,7 @@ def _print_ceilings_table(catalogue, conditions, climb_labels, frame) -> None:
     rows = frame.to_dicts()
     multi_climb = len(conditions.climb_fpm) > 1
     has_target = "margin_ft" in frame.columns
+    has_notes = any(row["note"] for row in rows)
 
     table = Table(
         title=f"{catalogue.title}: maximum altitudes",
@@ -296,7 +297,8 @@ def _print_ceilings_table(catalogue, conditions, climb_labels, frame) -> None:
         table.add_column(f"{header} ft", justify="right")
     if has_target:
         table.add_column("Margin ft", justify="right")
-    table.add_column("Note", overflow="fold", max_width=48)
+    if has_notes:
+        table.add_column("Note", overflow="fold", max_width=48)
 
     for i, row in enumerate(rows):
         variant = catalogue.variants.get(row["variant"])
@@ -321,15 +323,17 @@ def _print_ceilings_table(catalogue, conditions, climb_labels, frame) -> None:
         cells += [format_altitude_ft(_float_or_none(row[col])) for col, _ in _LIMIT_COLUMNS]
         if has_target:
             margin = _float_or_none(row["margin_ft"])
-            cells.append("—" if margin is None else f"{margin:+,.0f}")
-        cells.append(row["note"] or "")
+            # Rounded down like the altitudes, so a margin is never overstated.
+            cells.append("—" if margin is None else f"{math.floor(margin):+,d}")
+        if has_notes:
+            cells.append(row["note"] or "")
         last_of_variant = i + 1 == len(rows) or rows[i + 1]["variant"] != row["variant"]
         style = "yellow" if row.get("over_mtow") else None
         table.add_row(*cells, style=style, end_section=last_of_variant)
 
     console.print(table)
-    console.print("— = not available (see the note). Altitudes are pressure altitudes; "
-                  "flight levels and feet are rounded down.")
+    console.print("— = not available: the catalogue gives no data for that limit, or see the "
+                  "note. Pressure altitudes; flight levels and feet are rounded down.")
     _print_caution(stderr=False)
 
 
@@ -370,41 +374,48 @@ def _run_check(args) -> int:
 
 
 def _print_figures(console, catalogue) -> None:
-    """Derived figures per variant, when table.variant_figures is available."""
-    try:
-        from variantcmp.table import variant_figures
-    except ImportError:
-        return
+    """Derived figures from table.variant_figures: one row per variant x engine option.
+
+    Scalar figures belong to the variant (shown on its first row); dict figures are keyed by
+    engine id.
+    """
     from rich.table import Table
 
-    figures = Table(title="Derived figures", header_style="bold", title_justify="left")
-    rows: list[dict[str, str]] = []
-    for variant_id in catalogue.variants:
-        flat: dict[str, str] = {"Variant": variant_id}
-        for key, value in variant_figures(catalogue, variant_id).items():
-            if isinstance(value, dict):
-                for sub_key, sub_value in value.items():
-                    flat[f"{key} [{sub_key}]"] = _figure_text(key, sub_value)
-            else:
-                flat[key] = _figure_text(key, value)
-        rows.append(flat)
-    columns = list(dict.fromkeys(k for row in rows for k in row))
-    for column in columns:
-        figures.add_column(column, justify="left" if column == "Variant" else "right")
-    for row in rows:
-        figures.add_row(*(row.get(c, "") for c in columns))
-    console.print(figures)
+    from variantcmp.table import variant_figures
+
+    figures = {vid: variant_figures(catalogue, vid) for vid in catalogue.variants}
+    scalar_keys = list(dict.fromkeys(
+        k for f in figures.values() for k, v in f.items() if not isinstance(v, dict)))
+    engine_keys = list(dict.fromkeys(
+        k for f in figures.values() for k, v in f.items() if isinstance(v, dict)))
+    table = Table(title="Derived figures", header_style="bold", title_justify="left")
+    table.add_column("Variant")
+    for key in scalar_keys:
+        table.add_column(key, justify="right")
+    table.add_column("Engine")
+    for key in engine_keys:
+        table.add_column(key, justify="right")
+    for vid, fig in figures.items():
+        engines = catalogue.variants[vid].engine_options
+        for j, eid in enumerate(engines):
+            first = j == 0
+            cells = [vid if first else ""]
+            cells += [_figure_text(k, fig.get(k)) if first else "" for k in scalar_keys]
+            cells.append(eid)
+            cells += [_figure_text(k, (fig.get(k) or {}).get(eid)) for k in engine_keys]
+            table.add_row(*cells, end_section=j + 1 == len(engines))
+    console.print(table)
 
 
 def _figure_text(key: str, value) -> str:
-    if value is None:
-        return "—"
+    if value is None or isinstance(value, bool):
+        return "—" if value is None else str(value)
     if isinstance(value, (int, float)):
         if not math.isfinite(value):
             return "—"
-        if key.endswith("_ft"):
-            return format_flight_level(value)
-        return f"{value:,.4g}" if abs(value) < 1000 else f"{value:,.0f}"
+        if re.search(r"\bft\b", key):
+            return f"{format_altitude_ft(value)} ({format_flight_level(value)})"
+        return f"{value:,.0f}" if abs(value) >= 1000 else f"{value:.4g}"
     return str(value)
 
 
@@ -421,7 +432,7 @@ def _run_app(catalogue_text: str | None) -> int:
                   f"use '{PROG} ceilings' for headless results", file=sys.stderr)
             return EXIT_FAILURE
         raise
-    status = run_app(path)
+    status = run_app(str(path))
     return int(status or 0)
 
 

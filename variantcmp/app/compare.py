@@ -14,7 +14,9 @@ from variantcmp.caution import CAUTION
 
 from .form import FIELDS
 from .results import Results, export_frame
-from .view import COLUMNS_BY_KEY, ROW_KEY, Column, filter_rows, header, row_cells, sort_rows, visible_columns
+from .view import (
+    COLUMNS_BY_KEY, ROW_KEY, Column, filter_rows, header, justify, row_cells, sort_rows, visible_columns,
+)
 
 # How long a computation may run before the progress bar appears, s.
 BUSY_DELAY_S = 0.15
@@ -44,7 +46,6 @@ class CompareScreen(Screen):
         self.descending = False
         self.baseline_key: str | None = None
         self.view_df: pl.DataFrame | None = None  # rows as shown: filtered and sorted
-        self._headers: tuple[str, ...] = ()
         self._busy_timer = None
 
     # --- layout ------------------------------------------------------------------
@@ -159,18 +160,17 @@ class CompareScreen(Screen):
             if baseline is None:
                 self.baseline_key = None
         columns = visible_columns(df)
-        headers = tuple(header(c, self.sort_key, self.descending, baseline is not None) for c in columns)
+        headers = [header(c, self.sort_key, self.descending, baseline is not None) for c in columns]
+        rows = list(view.iter_rows(named=True))
+        labels, cells = justify(headers, [row_cells(columns, row, baseline) for row in rows])
         keep = self.cursor_key()
         scroll_x = table.scroll_x
-        if headers != self._headers:
-            table.clear(columns=True)
-            for column, label in zip(columns, headers):
-                table.add_column(label, key=column.key)
-            self._headers = headers
-        else:
-            table.clear()
-        for row in view.iter_rows(named=True):
-            table.add_row(*row_cells(columns, row, baseline), key=row[ROW_KEY])
+        # Rebuild columns too: their widths follow the padded cells.
+        table.clear(columns=True)
+        for column, label in zip(columns, labels):
+            table.add_column(label, key=column.key)
+        for row, row_text in zip(rows, cells):
+            table.add_row(*row_text, key=row[ROW_KEY])
         if keep is not None and keep in table.rows:
             table.move_cursor(row=table.get_row_index(keep), animate=False)
         table.scroll_x = scroll_x
@@ -256,7 +256,6 @@ class CompareScreen(Screen):
         if key is None:
             return
         self.baseline_key = None if key == self.baseline_key else key
-        self._headers = ()  # headers gain or lose their delta sign
         self.render_table()
 
     def action_inspect(self) -> None:

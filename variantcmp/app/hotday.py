@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-import polars as pl
 from rich.text import Text
 from textual import on, work
 from textual.app import ComposeResult
@@ -18,7 +17,7 @@ from variantcmp.units import OptionError, format_flight_level
 
 from .form import FIELDS_BY_KEY, parse_field
 from .results import Results, compute, export_frame
-from .view import COLUMNS_BY_KEY, LIMIT_GLYPHS, MAKES_IT, NONE, ROW_KEY, SHORT_OF_IT, cell
+from .view import COLUMNS_BY_KEY, MAKES_IT, NONE, ROW_KEY, SHORT_OF_IT, cell, justify
 
 LOOKUP_FIELDS = ("weight", "isa", "target")
 
@@ -130,27 +129,32 @@ class HotDayScreen(Screen):
         table.clear(columns=True)
         several = len(results.conditions.weights) > 1 or len(results.conditions.isa_devs_c) > 1
         level = format_flight_level(target) if target is not None else "target"
-        names = ["Variant", "Engine", f"Makes {level}", "By ft", "Max FL", "Limit"]
         extra = [COLUMNS_BY_KEY["weight"], COLUMNS_BY_KEY["isa"]] if several else []
-        for name in names + [c.header for c in extra] + ["Mach", "Note"]:
-            table.add_column(name)
+        headers = (["Variant", "Engine", f"Makes {level}", "By ft", "Max FL", "Limit"]
+                   + [c.header for c in extra] + ["Mach", "Note"])
+        rows = list(df.iter_rows(named=True))
+        cells = []
         made = 0
-        for row in df.iter_rows(named=True):
+        for row in rows:
             if target is None:
                 verdict, by = Text("set a target"), Text(NONE, justify="right")
-            elif row.get("reaches_target"):
-                made += 1
-                verdict, by = Text(f"{MAKES_IT} yes"), cell(COLUMNS_BY_KEY["margin"], row)
             else:
-                verdict, by = Text(f"{SHORT_OF_IT} no"), cell(COLUMNS_BY_KEY["margin"], row)
-            by = Text(by.plain.rstrip(f" {MAKES_IT}{SHORT_OF_IT}"), justify="right")
-            table.add_row(
-                row["variant"], row["engine"], verdict, by,
+                made += bool(row.get("reaches_target"))
+                mark = f"{MAKES_IT} yes" if row.get("reaches_target") else f"{SHORT_OF_IT} no"
+                verdict = Text(mark if row.get("margin_ft") is not None else f"{SHORT_OF_IT} no altitude")
+                by = cell(COLUMNS_BY_KEY["margin"], row)
+                by = Text(by.plain.rstrip(f" {MAKES_IT}{SHORT_OF_IT}"), justify="right")
+            cells.append([
+                Text(row["variant"]), Text(row["engine"]), verdict, by,
                 cell(COLUMNS_BY_KEY["fl"], row), cell(COLUMNS_BY_KEY["limit"], row),
                 *[cell(c, row) for c in extra],
-                cell(COLUMNS_BY_KEY["mach"], row), row.get("note") or "",
-                key=row[ROW_KEY],
-            )
+                cell(COLUMNS_BY_KEY["mach"], row), Text(row.get("note") or ""),
+            ])
+        labels, cells = justify(headers, cells)
+        for label in labels:
+            table.add_column(label)
+        for row, row_text in zip(rows, cells):
+            table.add_row(*row_text, key=row[ROW_KEY])
         if keep is not None and keep in table.rows:
             table.move_cursor(row=table.get_row_index(keep), animate=False)
         summary = self.query_one("#lookup-summary", Static)

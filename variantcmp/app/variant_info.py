@@ -48,7 +48,7 @@ def _value(key: str, value) -> str:
     if isinstance(value, float):
         if not math.isfinite(value):
             return NONE
-        if key.endswith("_ft"):
+        if key.endswith("_ft") or " ft" in key:
             return format_altitude_ft(value)
         if abs(value) >= 1000:
             return f"{value:,.0f}"

@@ -11,6 +11,7 @@ import math
 from dataclasses import dataclass
 
 import polars as pl
+from rich.cells import cell_len
 from rich.text import Text
 
 from variantcmp.units import format_altitude_ft, format_flight_level, format_isa_dev
@@ -128,8 +129,9 @@ def _finite(value) -> bool:
 
 
 def _signed_ft(value: float) -> str:
-    rounded = round(value)
-    return "±0" if rounded == 0 else f"{rounded:+,d}"
+    """A signed whole number of feet, rounded down like every altitude shown."""
+    whole = math.floor(value)
+    return "±0" if whole == 0 else f"{whole:+,d}"
 
 
 def cell(column: Column, row: dict, baseline: dict | None = None) -> Text:
@@ -144,7 +146,8 @@ def cell(column: Column, row: dict, baseline: dict | None = None) -> Text:
         delta = value - base
         if kind == "mach":
             return Text("±0" if abs(delta) < 5e-4 else f"{delta:+.3f}", justify=justify)
-        return Text(_signed_ft(delta), justify=justify)
+        # Difference of the shown (rounded-down) altitudes, so the columns add up on screen.
+        return Text(_signed_ft(math.floor(value) - math.floor(base)), justify=justify)
     if kind == "text":
         text = "" if value is None else str(value)
         if column.key == "variant" and baseline is not None and baseline.get(ROW_KEY) == row.get(ROW_KEY):
@@ -175,3 +178,21 @@ def cell(column: Column, row: dict, baseline: dict | None = None) -> Text:
 
 def row_cells(columns: list[Column], row: dict, baseline: dict | None = None) -> list[Text]:
     return [cell(column, row, baseline) for column in columns]
+
+
+def justify(headers: list[str], rows: list[list[Text]]) -> tuple[list[Text], list[list[Text]]]:
+    """Pad right-justified cells to their column's width (the table widget does not justify)."""
+    count = len(headers)
+    widths = [cell_len(h) for h in headers]
+    right = [False] * count
+    for row in rows:
+        for i, item in enumerate(row):
+            widths[i] = max(widths[i], item.cell_len)
+            right[i] = right[i] or item.justify == "right"
+    # A column reads as numbers when any of its cells is right-justified.
+    def pad(item: Text, i: int) -> Text:
+        if right[i] and item.cell_len < widths[i]:
+            return Text(" " * (widths[i] - item.cell_len) + item.plain)
+        return Text(item.plain)
+    padded_headers = [pad(Text(h), i) for i, h in enumerate(headers)]
+    return padded_headers, [[pad(item, i) for i, item in enumerate(row)] for row in rows]

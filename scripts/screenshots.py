@@ -1,0 +1,127 @@
+"""Regenerate the SVG screenshots of every screen of the terminal app into screenshots/.
+
+    python scripts/screenshots.py [--size 100x30] [--out screenshots]
+
+Drives the app headless with real keys (Textual's test pilot) on the bundled
+demo fleet, so the pictures show what a user sees. Run it after changing a screen.
+"""
+
+from __future__ import annotations
+
+import argparse
+import asyncio
+import tempfile
+from pathlib import Path
+
+from variantcmp.app import VariantCmpApp
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+async def settle(app, pilot) -> None:
+    """Wait for computations in worker threads and the redraw after them."""
+    await pilot.pause()
+    await app.workers.wait_for_complete()
+    await pilot.pause()
+
+
+async def type_into(pilot, selector: str, text: str) -> None:
+    """Focus a field, replace its text, and leave it with enter."""
+    await pilot.click(selector)
+    widget = pilot.app.screen.query_one(selector)
+    widget.value = ""
+    await pilot.press(*text)
+    await pilot.press("enter")
+
+
+async def shoot(size: tuple[int, int], out: Path) -> list[Path]:
+    out.mkdir(parents=True, exist_ok=True)
+    written: list[Path] = []
+
+    def save(app, name: str) -> None:
+        path = out / f"{name}.svg"
+        app.save_screenshot(str(path))
+        written.append(path)
+
+    app = VariantCmpApp(None)
+    async with app.run_test(size=size) as pilot:
+        await settle(app, pilot)
+        save(app, "compare")
+
+        # A target flight level, sorted by maximum altitude, with a pinned baseline.
+        await type_into(pilot, "#field-target", "FL350")
+        await settle(app, pilot)
+        await pilot.press("s")  # sort by Max FL, highest first
+        await pilot.press("down", "b")  # pin the second row
+        await settle(app, pilot)
+        save(app, "compare-baseline")
+
+        # A bad value is reported in place; the table keeps the last good conditions.
+        await type_into(pilot, "#field-weight", "62x")
+        await settle(app, pilot)
+        save(app, "compare-bad-input")
+        await type_into(pilot, "#field-weight", "100%mtow")
+        await pilot.press("b")  # unpin (cursor is still on the baseline row)
+        await settle(app, pilot)
+
+        # Hot-day look-up.
+        await pilot.press("h")
+        await settle(app, pilot)
+        await type_into(pilot, "#lookup-target", "FL350")
+        await settle(app, pilot)
+        save(app, "hot-day")
+        await pilot.press("escape")
+        await settle(app, pilot)
+
+        await pilot.press("i")
+        await settle(app, pilot)
+        save(app, "variant")
+        await pilot.press("escape")
+
+        await pilot.press("f1")
+        await settle(app, pilot)
+        save(app, "help")
+        await pilot.press("escape")
+
+        await pilot.press("e")
+        await settle(app, pilot)
+        save(app, "export")
+        await pilot.press("escape")
+
+        # A broken catalogue: its problems, in the app.
+        with tempfile.TemporaryDirectory() as tmp:
+            broken = Path(tmp) / "broken-fleet.toml"
+            broken.write_text(
+                '[catalogue]\ntitle = "Broken example"\n\n[[engine]]\nid = "e1"\nmodel = "density-lapse"\n'
+                'static_thrust_kn = -5\n\n[[variant]]\nid = "a1"\nengine_options = ["e9"]\n'
+                'engine_count = 2\nwing_area_m2 = 80\naspect_ratio = 9\noswald_e = 0.8\ncd0 = nan\n'
+                'cl_max = 1.4\nmtow_kg = 40000\ncruise_mach = 0.74\nwing_span_m = 30\n',
+                encoding="utf-8",
+            )
+            await pilot.press("o")
+            await settle(app, pilot)
+            field = app.screen.query_one("#path")
+            field.value = str(broken)
+            await pilot.press("enter")
+            await settle(app, pilot)
+            save(app, "catalogue-problems")
+            await pilot.press("escape")
+
+        app.action_toggle_theme()
+        await settle(app, pilot)
+        save(app, "compare-light")
+    return written
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--size", default="100x30", help="terminal size WIDTHxHEIGHT (default 100x30)")
+    parser.add_argument("--out", default=str(ROOT / "screenshots"), help="folder for the SVG files")
+    args = parser.parse_args()
+    width, height = (int(x) for x in args.size.lower().split("x"))
+    for path in asyncio.run(shoot((width, height), Path(args.out))):
+        print(path)
+
+
+if __name__ == "__main__":
+    main()

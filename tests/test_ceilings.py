@@ -1,0 +1,143 @@
+"""Ceiling solver: physical properties (hypothesis) and the cases the model cannot give."""
+
+import numpy as np
+import polars as pl
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from conftest import write_catalogue
+from variantcmp.table import Conditions, ceilings_table
+from variantcmp.units import WeightSpec
+
+SLACK_FT = 0.1  # root tolerance is about 0.01 ft
+LIMIT_COLS = ["thrust_ceiling_ft", "buffet_ceiling_ft", "stall_ceiling_ft", "certified_ceiling_ft", "cabin_ceiling_ft"]
+
+
+def _pct(*values):
+    return tuple(WeightSpec(v, "%mtow") for v in values)
+
+
+@settings(max_examples=25, deadline=None)
+@given(st.floats(55.0, 100.0), st.floats(1.0, 20.0), st.floats(-15.0, 35.0), st.sampled_from(["cruise", 0.72, "best"]))
+def test_ceilings_never_rise_with_weight(demo, w, dw, dev, mach):
+    # Physics fact: more weight needs more lift and thrust at the same altitude, so no limit's
+    # ceiling rises (textbook, e.g. Anderson, Aircraft Performance and Design ch. 5).
+    f = ceilings_table(demo, Conditions(weights=_pct(w, w + dw), isa_devs_c=(dev,), mach=mach))
+    light, heavy = f.filter(pl.col("weight_kg") < pl.col("weight_kg").max().over("variant")), None
+    heavy = f.filter(pl.col("weight_kg") == pl.col("weight_kg").max().over("variant"))
+    slack = SLACK_FT if mach != "best" else 5.0  # best speed: golden-section search on a flat optimum
+    for col in ["thrust_ceiling_ft", "buffet_ceiling_ft", "stall_ceiling_ft", "max_altitude_ft"]:
+        a, b = light[col].to_numpy(), heavy[col].to_numpy()
+        both = np.isfinite(a) & np.isfinite(b)
+        assert np.all(b[both] <= a[both] + slack), col
+
+
+@settings(max_examples=20, deadline=None)
+@given(st.floats(60.0, 100.0), st.floats(-15.0, 30.0), st.floats(1.0, 15.0))
+def test_hot_days(demo, w, dev, ddev):
+    # Above the flat-rate deviation thrust only falls, and at a fixed Mach the true airspeed term
+    # V T_ISA/T = M a0 sqrt(T)... falls too: thrust ceilings never rise with temperature deviation.
+    # Buffet is a pressure limit at fixed Mach: independent of the deviation (lift equation).
+    f = ceilings_table(demo, Conditions(weights=_pct(w), isa_devs_c=(max(dev, 15.0), max(dev, 15.0) + ddev)))
+    cool = f.filter(pl.col("isa_dev_c") == pl.col("isa_dev_c").min())
+    hot = f.filter(pl.col("isa_dev_c") == pl.col("isa_dev_c").max())
+    a, b = cool["thrust_ceiling_ft"].to_numpy(), hot["thrust_ceiling_ft"].to_numpy()
+    ok = np.isfinite(a) & np.isfinite(b)
+    assert np.all(b[ok] <= a[ok] + SLACK_FT)
+    np.testing.assert_allclose(cool["buffet_ceiling_ft"].to_numpy(), hot["buffet_ceiling_ft"].to_numpy())
+
+
+@settings(max_examples=20, deadline=None)
+@given(st.floats(50.0, 110.0), st.floats(-15.0, 35.0), st.sampled_from(["cruise", 0.7, "best"]))
+def test_max_altitude_within_every_limit_and_criteria_order(demo, w, dev, mach):
+    # Definition: the maximum altitude meets every limit at once. Trade definitions (common
+    # practice): cruise (300 ft/min) <= service (100 ft/min) <= absolute (0 ft/min) ceiling.
+    f = ceilings_table(demo, Conditions(weights=_pct(w), isa_devs_c=(dev,), mach=mach, climb_fpm=(0.0, 100.0, 300.0)))
+    for col in LIMIT_COLS:
+        both = f.filter(pl.col("max_altitude_ft").is_not_null() & pl.col(col).is_not_null())
+        assert (both["max_altitude_ft"] <= both[col] + SLACK_FT).all(), col
+    slack = SLACK_FT if mach != "best" else 5.0
+    t = f.pivot(on="climb_fpm", index=["variant", "engine"], values="thrust_ceiling_ft")
+    absolute, service, cruise = (t[c].to_numpy().astype(float) for c in ("0.0", "100.0", "300.0"))
+    ok = np.isfinite(absolute) & np.isfinite(service) & np.isfinite(cruise)
+    assert np.all(cruise[ok] <= service[ok] + slack) and np.all(service[ok] <= absolute[ok] + slack)
+
+
+def test_every_row_names_a_known_limit(demo):
+    f = ceilings_table(demo, Conditions(weights=_pct(60, 100, 120), isa_devs_c=(-10, 0, 20, 35)))
+    assert set(f["limit"].drop_nulls()) <= {"thrust", "buffet", "stall", "certified", "cabin", "none"}
+    # A row without an altitude always says why.
+    assert (f.filter(pl.col("max_altitude_ft").is_null())["note"].str.len_chars() > 0).all()
+
+
+def test_above_mtow_is_computed_and_flagged(demo):
+    f = ceilings_table(demo, Conditions(weights=_pct(100, 110)))
+    over = f.filter(pl.col("over_mtow"))
+    assert over.height == f.height // 2
+    assert over["note"].str.contains("above MTOW").all()
+
+
+def _engine(**kw):
+    e = {"id": "e1", "model": "density-lapse", "static_thrust_kn": 60.0, "lapse_exponent": 1.0}
+    e.update(kw)
+    return e
+
+
+def _variant(**kw):
+    v = {"id": "a1", "engine_options": ["e1"], "engine_count": 2, "wing_area_m2": 80.0, "aspect_ratio": 9.0,
+         "oswald_e": 0.8, "cd0": 0.022, "cl_max": 1.5, "mtow_kg": 40_000.0, "cruise_mach": 0.7}
+    v.update(kw)
+    return v
+
+
+def test_cannot_climb_reports_no_altitude(tmp_path):
+    cat = write_catalogue(tmp_path / "c.toml", [_engine(static_thrust_kn=5.0)], [_variant()])
+    for mach in ("cruise", "best"):
+        row = ceilings_table(cat, Conditions(mach=mach)).row(0, named=True)
+        assert row["max_altitude_ft"] is None and row["thrust_ceiling_ft"] is None and row["flight_level"] is None
+        assert row["limit"] is None
+        assert "cannot climb" in row["note"]
+
+
+def test_ceiling_above_model_top_is_flagged(tmp_path):
+    # No catalogue can be valid and that light, so make the case directly: huge thrust, a huge
+    # CLmax and nothing else: no limit binds below the model top, and the table says so.
+    import dataclasses
+
+    from variantcmp import solver
+    from variantcmp.table import _notes, selected_pairs
+    from variantcmp.cases import build_cases
+
+    cat = write_catalogue(tmp_path / "c.toml", [_engine(static_thrust_kn=1000.0, lapse_exponent=0.1)],
+                          [_variant(mtow_kg=500.0, cruise_mach=0.9)])
+    cases, index = build_cases(cat, selected_pairs(cat, Conditions()), lambda v: [500.0], [0.0], [300.0], "cruise", 1.3)
+    cases = dataclasses.replace(cases, cl_max=np.full(1, 1e4), weight_kg=np.full(1, 1.0))
+    res = solver.solve_ceilings(cases)
+    assert np.isposinf(res.max_altitude_m[0]) and res.limit[0] == -1
+    assert res.flags[0] & solver.ABOVE_MODEL_TOP
+    assert "model top" in _notes(cases, res, index.climb_fpm)[0]
+
+
+def test_thrust_table_top_is_not_extrapolated(tmp_path):
+    # A thrust table that stops at 20,000 ft while the aircraft still climbs there.
+    table = _engine(model="table", table_altitude_ft=[-2000.0, 0.0, 20000.0], table_mach=[0.0, 0.9],
+                    table_thrust_fraction=[[1.0, 0.9], [1.0, 0.9], [0.6, 0.55]])
+    del table["lapse_exponent"]
+    cat = write_catalogue(tmp_path / "c.toml", [table], [_variant()])
+    row = ceilings_table(cat, Conditions(weights=_pct(60))).row(0, named=True)
+    assert row["thrust_ceiling_ft"] is None and row["max_altitude_ft"] is None
+    assert "thrust table top" in row["note"]
+    # ...but a certified ceiling below the table top still gives an answer.
+    cat = write_catalogue(tmp_path / "d.toml", [table], [_variant(max_altitude_ft=15000.0)])
+    row = ceilings_table(cat, Conditions(weights=_pct(60))).row(0, named=True)
+    assert row["max_altitude_ft"] == pytest.approx(15000.0) and row["limit"] == "certified"
+
+
+def test_fixed_and_best_agree_where_best_mach_is_used(demo):
+    # Consistency: solving at the Mach that the best-speed search found gives the same altitude.
+    best = ceilings_table(demo, Conditions(mach="best"))
+    for row in best.head(4).iter_rows(named=True):
+        fixed = ceilings_table(demo, Conditions(mach=row["mach"], variants=(row["variant"],))).filter(
+            pl.col("engine") == row["engine"]).row(0, named=True)
+        assert fixed["max_altitude_ft"] == pytest.approx(row["max_altitude_ft"], abs=0.5)

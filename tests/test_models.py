@@ -1,0 +1,147 @@
+"""Model functions and closed-form ceilings against textbook results and hand calculations."""
+
+import math
+
+import numpy as np
+import pytest
+from ambiance import Atmosphere
+
+from conftest import write_catalogue
+from variantcmp import aero, thrust
+from variantcmp.atmosphere import G0, GAMMA, R_AIR, RHO0_KG_M3, isa_pressure_pa, isa_state
+from variantcmp.table import Conditions, ceilings_table
+from variantcmp.units import WeightSpec
+
+FT = 0.3048
+
+
+def test_mattingly_lapse_hand_values():
+    # Mattingly, Heiser & Pratt, Aircraft Engine Design 2nd ed., eq. 2.54a, worked by hand:
+    # M 0.8 at 11 km ISA: theta = 216.65/288.15 = 0.75187, delta = 22632/101325 = 0.22336,
+    # ram = 1 + 0.2*0.64 = 1.128, theta0 = 0.84811 <= TR 1.0, delta0 = 0.22336*1.128^3.5 = 0.34048,
+    # alpha = 0.34048 * (1 - 0.49*sqrt(0.8)) = 0.34048 * 0.56173 = 0.19126.
+    assert thrust.turbofan_lapse_fraction(0.8, 216.65, 22_632.06, 1.0) == pytest.approx(0.19126, abs=2e-5)
+    # Hot day at sea level, M 0.3, ISA+30: theta0 = (318.15/288.15)*1.018 = 1.12398 > TR 1.0,
+    # delta0 = 1.018^3.5 = 1.06443; alpha = 1.06443*(1 - 0.26838 - 3*0.12398/1.8) = 0.55880.
+    assert thrust.turbofan_lapse_fraction(0.3, 318.15, 101_325.0, 1.0) == pytest.approx(0.55880, abs=5e-5)
+    # Static sea-level standard gives the rated thrust exactly (alpha = 1 by definition).
+    assert thrust.turbofan_lapse_fraction(0.0, 288.15, 101_325.0, 1.0) == pytest.approx(1.0)
+
+
+def test_density_lapse_is_density_ratio_power():
+    # Density-ratio lapse (Raymer sec. 10.3): at rho = rho0/2 with m = 1, half the thrust.
+    assert thrust.density_lapse_fraction(RHO0_KG_M3 / 2, 1.0) == pytest.approx(0.5)
+    assert thrust.density_lapse_fraction(RHO0_KG_M3 / 2, 0.7) == pytest.approx(0.5**0.7)
+
+
+def test_flat_rating():
+    # Flat rating (common practice, no source): no loss up to the flat-rate deviation, then linear.
+    assert thrust.hot_day_factor(10.0, 15.0, 0.01) == pytest.approx(1.0)
+    assert thrust.hot_day_factor(25.0, 15.0, 0.01) == pytest.approx(0.9)
+
+
+def test_korn_lock_hand_values():
+    # Korn equation with sweep (Malone & Mason 1995; Mason, Configuration Aerodynamics ch. 7),
+    # worked by hand for kA 0.95, t/c 0.12, sweep 25 deg, CL 0.5: cos 25 = 0.906308,
+    # Mdd = 0.95/0.906308 - 0.12/0.821394 - 0.5/(10*0.744435) = 1.048209 - 0.146093 - 0.067165
+    # = 0.834951; Mcrit = Mdd - (0.1/80)^(1/3) = 0.834951 - 0.107722 = 0.727229;
+    # Lock: CDw = 20 (0.8 - 0.727229)^4 = 20 * 2.80433e-5 = 5.6087e-4 at M 0.8.
+    assert aero.korn_critical_mach(0.5, 0.12, 25.0, 0.95) == pytest.approx(0.727229, abs=1e-6)
+    assert aero.wave_drag_coefficient(0.8, 0.5, 0.12, 25.0, 0.95) == pytest.approx(5.6087e-4, rel=1e-4)
+    assert aero.wave_drag_coefficient(0.7, 0.5, 0.12, 25.0, 0.95) == 0.0  # below Mcrit
+
+
+def test_best_lift_to_drag_textbook():
+    # Anderson, Aircraft Performance and Design sec. 5.4: CL* = sqrt(CD0/K), CD = 2 CD0 there.
+    cd0, k = 0.02, 0.04
+    ld, cl = aero.best_lift_to_drag(cd0, k)
+    assert cl == pytest.approx(math.sqrt(cd0 / k))
+    assert cd0 + k * cl**2 == pytest.approx(2 * cd0)
+    assert ld == pytest.approx(cl / (2 * cd0))
+
+
+@pytest.mark.parametrize("h_m, dev", [(3_000.0, 0.0), (9_000.0, 0.0), (9_000.0, 20.0), (15_000.0, 0.0), (25_000.0, 0.0)])
+@pytest.mark.parametrize("mach", [0.3, 0.78])
+def test_energy_share_factor_against_total_energy(h_m, dev, mach):
+    # Derivation check: climb at constant Mach, E = z + V^2/(2 g0) with z the geopotential height.
+    # Numerically, with ambiance's (independent) ISA temperatures: dz/dh_p = T/T_ISA
+    # (hydrostatics), V = M sqrt(gamma R T). Then f = (dh_p/dE) (T/T_ISA).
+    dh = 1.0
+    hs = np.array([h_m - dh, h_m + dh])
+    t_isa = Atmosphere(Atmosphere.geop2geom_height(hs)).temperature
+    t = t_isa + dev
+    v2 = mach**2 * GAMMA * R_AIR * t
+    t_mid = Atmosphere(Atmosphere.geop2geom_height(np.array([h_m]))).temperature[0]
+    de_dhp = (t_mid + dev) / t_mid + (v2[1] - v2[0]) / (2 * dh) / (2 * G0)
+    f_numeric = (1.0 / de_dhp) * (t_mid + dev) / t_mid
+    _, _, lapse = isa_state(h_m)
+    assert aero.energy_share_factor(mach, t_mid + dev, t_mid, lapse) == pytest.approx(f_numeric, rel=1e-6)
+
+
+def test_energy_share_factor_magnitudes():
+    # Below the tropopause at ISA the factor is 1/(1 - 0.1332 M^2) (kinetic energy released as
+    # the true airspeed falls: f > 1); in the isothermal layer it is exactly 1.
+    m = 0.8
+    assert aero.energy_share_factor(m, 250.0, 250.0, -0.0065) == pytest.approx(1 / (1 - 0.13317 * m**2), rel=1e-4)
+    assert aero.energy_share_factor(m, 216.65, 216.65, 0.0) == 1.0
+
+
+def _simple(tmp_path, **variant):
+    engine = {"id": "e1", "model": "density-lapse", "static_thrust_kn": 60.0, "lapse_exponent": 1.0}
+    v = {"id": "a1", "engine_options": ["e1"], "engine_count": 2, "wing_area_m2": 80.0, "aspect_ratio": 9.0,
+         "oswald_e": 0.8, "cd0": 0.022, "cl_max": 1.5, "mtow_kg": 40_000.0, "cruise_mach": 0.78}
+    v.update(variant)
+    return write_catalogue(tmp_path / "simple.toml", [engine], [v])
+
+
+def test_absolute_ceiling_closed_form(tmp_path):
+    # Thrust proportional to density with a parabolic polar (Anderson, Aircraft Performance and
+    # Design, sec. 5.12): at the absolute ceiling n F0 sigma = W 2 sqrt(K CD0), flown at
+    # CL = sqrt(CD0/K) where CD = 2 CD0. The density is turned into a pressure altitude with
+    # ambiance (independent ISA).
+    cat = _simple(tmp_path)
+    k = 1 / (math.pi * 9.0 * 0.8)
+    w = 40_000.0 * G0
+    sigma = w * 2 * math.sqrt(k * 0.022) / (2 * 60_000.0)
+    h_ref = Atmosphere.from_density(sigma * 1.225).H[0]
+    frame = ceilings_table(cat, Conditions(weights=(WeightSpec(40_000.0, "kg"),), mach="best", climb_fpm=(0.0,)))
+    row = frame.row(0, named=True)
+    assert row["thrust_ceiling_ft"] * FT == pytest.approx(h_ref, abs=1.0)
+    assert row["max_altitude_ft"] == pytest.approx(row["thrust_ceiling_ft"], abs=1.0)
+    assert row["limit"] == "thrust"
+    # The best speed flies the polar at CL* (the optimum is flat in Mach: 1 % on CL).
+    p = float(isa_pressure_pa(row["max_altitude_ft"] * FT))
+    cl = aero.lift_coefficient(w, p, row["mach"], 80.0)
+    assert cl == pytest.approx(math.sqrt(0.022 / k), rel=0.01)
+    assert 0.022 + k * cl**2 == pytest.approx(2 * 0.022, rel=0.02)
+
+
+def test_buffet_ceiling_closed_form(demo):
+    # Lift at the buffet margin: n W = (gamma/2) p M^2 S CL_buffet(M) (Anderson, Introduction to
+    # Flight, eq. 4.83), CL_buffet read from the catalogue by linear interpolation.
+    frame = ceilings_table(demo, Conditions(weights=(WeightSpec(90.0, "%mtow"),), g_margin=1.3))
+    checked = 0
+    for row in frame.iter_rows(named=True):
+        v = demo.variants[row["variant"]]
+        if not v.buffet_mach:
+            continue
+        p = float(isa_pressure_pa(row["buffet_ceiling_ft"] * FT))
+        cl_b = np.interp(row["mach"], v.buffet_mach, v.buffet_cl)
+        lift = 0.5 * GAMMA * p * row["mach"] ** 2 * v.wing_area_m2 * cl_b
+        assert lift == pytest.approx(1.3 * row["weight_kg"] * G0, rel=1e-9)
+        checked += 1
+    assert checked > 0
+
+
+def test_stall_and_cabin_closed_forms(demo):
+    # Stall: W = (gamma/2) p M^2 S CLmax (Anderson eq. 4.83). Cabin: ambient pressure =
+    # cabin pressure (ISA at the cabin altitude) minus the maximum differential.
+    frame = ceilings_table(demo, Conditions())
+    for row in frame.iter_rows(named=True):
+        v = demo.variants[row["variant"]]
+        p = float(isa_pressure_pa(row["stall_ceiling_ft"] * FT))
+        assert 0.5 * GAMMA * p * row["mach"] ** 2 * v.wing_area_m2 * v.cl_max == pytest.approx(row["weight_kg"] * G0)
+        if v.max_cabin_dp_kpa is not None:
+            p_cab = float(isa_pressure_pa(row["cabin_ceiling_ft"] * FT))
+            expect = float(isa_pressure_pa(v.cabin_altitude_ft * FT)) - v.max_cabin_dp_kpa * 1000
+            assert p_cab == pytest.approx(expect)
