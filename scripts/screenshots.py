@@ -26,11 +26,10 @@ async def settle(app, pilot) -> None:
 
 
 async def type_into(pilot, selector: str, text: str) -> None:
-    """Focus a field, replace its text, and leave it with enter."""
-    await pilot.click(selector)
+    """Focus a field, replace its text at once (as a paste would), and leave it with enter."""
     widget = pilot.app.screen.query_one(selector)
-    widget.value = ""
-    await pilot.press(*text)
+    widget.focus()
+    widget.value = text
     await pilot.press("enter")
 
 

@@ -21,6 +21,7 @@ import os
 import re
 import shutil
 import sys
+import textwrap
 from collections.abc import Callable
 from pathlib import Path
 
@@ -59,6 +60,11 @@ class _Parser(argparse.ArgumentParser):
 def _formatter(prog: str) -> argparse.HelpFormatter:
     width = min(shutil.get_terminal_size((100, 24)).columns, 100)
     return argparse.RawDescriptionHelpFormatter(prog, max_help_position=30, width=width)
+
+
+def _wrap(text: str) -> str:
+    """Wrap prose for help screens (the raw formatter keeps examples' line breaks)."""
+    return textwrap.fill(text, width=min(shutil.get_terminal_size((100, 24)).columns, 100) - 2)
 
 
 # --- catalogue paths ---------------------------------------------------------------
@@ -146,7 +152,7 @@ def _float_or_none(value) -> float | None:
 CEILINGS_EPILOG = """\
 examples:
   variantcmp ceilings --weight 100%mtow --isa=0,15
-  variantcmp ceilings fleets/regional.toml --variant rx-200 --weight 62000,64.5t --isa=-10,0,15
+  variantcmp ceilings fernholt-regional --variant v88 --weight 42000,44.5t --isa=-10,0,15
   variantcmp ceilings --weight 90%mtow --isa ISA+20 --mach best --climb service --format csv
 
 weights: kg (default), t, lb or %mtow, comma separated; "mtow" = 100%mtow.
@@ -159,9 +165,10 @@ def _add_ceilings(subparsers) -> None:
     p = subparsers.add_parser(
         "ceilings",
         help="maximum altitudes of every variant x engine x weight x ISA deviation",
-        description="Compute the highest pressure altitude each limit allows (thrust at the "
-        "required residual rate of climb, buffet margin, stall, certified ceiling, cabin "
-        "pressure), the maximum altitude where all hold at once, and the limit that binds.",
+        description=_wrap("Compute the highest pressure altitude each limit allows (thrust at the "
+                          "required residual rate of climb, buffet margin, stall, certified "
+                          "ceiling, cabin pressure), the maximum altitude where all hold at once, "
+                          "and the limit that binds."),
         epilog=CEILINGS_EPILOG,
         formatter_class=_formatter,
         allow_abbrev=False,
@@ -343,8 +350,9 @@ def _add_check(subparsers) -> None:
     p = subparsers.add_parser(
         "check",
         help="validate a catalogue and summarise its engines and variants",
-        description="Validate a TOML fleet catalogue: every problem is listed as "
-        "file: key path: what is expected. A valid catalogue is summarised.",
+        description=_wrap("Validate a TOML fleet catalogue: every problem is listed as "
+                          "file: key path: what is expected. A valid catalogue is summarised "
+                          "with derived figures."),
         formatter_class=_formatter,
         allow_abbrev=False,
     )
@@ -452,7 +460,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog=PROG,
         description=MAIN_DESCRIPTION,
-        epilog=CAUTION,
+        epilog=_wrap(CAUTION),
         formatter_class=_formatter,
         allow_abbrev=False,
     )

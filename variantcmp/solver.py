@@ -321,16 +321,22 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         i = np.argmax(_objective(values.reshape(n, g)), axis=1)
         return grid[rows, np.maximum(i - 1, 0)], grid[rows, np.minimum(i + 1, g - 1)]
 
-    def max_alt_at(idx, m):
-        return _objective(_fixed_mach(phys.subset(idx) if idx.size != n else phys, m).max_altitude_m)
+    def score(res):
+        # Highest altitude first; where a flat limit (certified, cabin) makes many speeds equal,
+        # prefer the speed with the most room under the aerodynamic and thrust limits.
+        room = np.fmin(np.fmin(res.thrust_m, res.buffet_m), res.stall_m)
+        return _objective(res.max_altitude_m) + 1e-3 * np.where(np.isfinite(room), room, 0.0)
 
-    lo, hi = bracket(at_grid.max_altitude_m)
+    def max_alt_at(idx, m):
+        return score(_fixed_mach(phys.subset(idx) if idx.size != n else phys, m))
+
+    lo, hi = bracket(score(at_grid))
     m_best, _ = _golden_max(max_alt_at, lo, hi, BEST_MACH_ITERATIONS)
     # Keep the best grid point when the refinement found nothing better (flat or infeasible).
-    grid_best = np.argmax(_objective(at_grid.max_altitude_m.reshape(n, g)), axis=1)
+    grid_score = score(at_grid).reshape(n, g)
+    grid_best = np.argmax(grid_score, axis=1)
     final = _fixed_mach(phys, m_best)
-    grid_val = at_grid.max_altitude_m.reshape(n, g)[rows, grid_best]
-    worse = _objective(final.max_altitude_m) < _objective(grid_val)
+    worse = score(final) < grid_score[rows, grid_best]
     if worse.any():
         m_best = np.where(worse, grid[rows, grid_best], m_best)
         final = _fixed_mach(phys, m_best)
@@ -354,6 +360,9 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     stall_best = closed_form_ceilings_m(cs, cs.mach_high)[1]
 
     grid_flags = np.bitwise_or.reduce(at_grid.flags.reshape(n, g), axis=1)
+    # Where some speed still climbs at the top of the thrust table, the best-speed thrust
+    # ceiling lies beyond the data: unknown, not the best of the other speeds.
+    thrust_best[(grid_flags & THRUST_DATA_TOP).astype(bool)] = np.nan
     flags = final.flags.copy()
     nothing = np.isnan(final.max_altitude_m)
     # Explain a case no speed can fly by what every grid speed ran into.

@@ -5,13 +5,15 @@ from __future__ import annotations
 from pathlib import Path
 
 import polars as pl
+from rich.table import Table
+from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, Vertical
+from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.suggester import Suggester
-from textual.widgets import Button, DataTable, Footer, Input, Label, Static
+from textual.widgets import Button, Footer, Input, Label, Static
 
 from variantcmp.catalogue import Catalogue, Problem
 
@@ -70,6 +72,7 @@ class OpenDialog(ModalScreen[str | None]):
             yield Input(self.initial, id="path", suggester=PathSuggester((".toml",)))
             yield Static("", classes="dialog-error", id="open-error")
             yield Static("enter open · esc cancel", classes="dialog-hint")
+        yield Footer()
 
     @on(Input.Submitted)
     def submitted(self, event: Input.Submitted) -> None:
@@ -108,22 +111,27 @@ class ProblemsScreen(ModalScreen[None]):
         with Vertical(classes="dialog", id="problems-dialog") as box:
             box.border_title = f"{self.path.name}: {count} problem{'s' if count != 1 else ''}"
             yield Static(f"✗ The catalogue {self.path} did not load.", id="problems-head")
-            yield DataTable(id="problems", cursor_type="row", zebra_stripes=True)
+            with VerticalScroll(id="problems"):
+                yield Static(self._problems_table(), id="problems-list")
             kept = (f"the table keeps showing “{self.last_good.title}”"
                     if self.last_good else "no catalogue is loaded yet")
             yield Static(f"Fix the file and press l to reload, or o to open another; {kept}.",
                          classes="dialog-hint")
         yield Footer()
 
-    def on_mount(self) -> None:
-        table = self.query_one(DataTable)
-        table.add_columns("Where", "Problem")
+    def _problems_table(self) -> Table:
+        table = Table(box=None, padding=(0, 1), expand=True, show_edge=False)
+        table.add_column("Where", style="bold", ratio=2, overflow="fold")
+        table.add_column("Problem (what is expected)", ratio=5)
         for problem in self.problems:
-            where = problem.key or "(file)"
+            where = problem.key or "(whole file)"
             if problem.file and Path(problem.file).name != self.path.name:
                 where = f"{problem.file}: {where}"
-            table.add_row(where, problem.message)
-        table.focus()
+            table.add_row(Text(where), Text(problem.message))
+        return table
+
+    def on_mount(self) -> None:
+        self.query_one("#problems").focus()
 
     def action_reload(self) -> None:
         self.dismiss(None)
@@ -156,6 +164,7 @@ class ConfirmDialog(ModalScreen[bool]):
             with Horizontal(classes="buttons"):
                 yield Button(f"{self.yes} (y)", id="yes", variant="warning")
                 yield Button(f"{self.no} (n)", id="no", variant="primary")
+        yield Footer()
 
     def on_mount(self) -> None:
         self.query_one("#no", Button).focus()
@@ -185,6 +194,7 @@ class ExportDialog(ModalScreen[str | None]):
             yield Input(self.initial, id="path", suggester=PathSuggester())
             yield Static("", classes="dialog-error", id="export-error")
             yield Static("enter write · esc cancel", classes="dialog-hint")
+        yield Footer()
 
     def _error(self, message: str) -> None:
         self.query_one("#export-error", Static).update(message)

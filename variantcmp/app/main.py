@@ -54,6 +54,7 @@ class VariantCmpApp(App[int]):
         self.catalogue_signal: Signal[Catalogue | None] = Signal(self, "catalogue")
         self.busy_signal: Signal[bool] = Signal(self, "busy")
         self._generation = 0
+        self.last_export: str | None = None
 
     def on_mount(self) -> None:
         self.open_catalogue(self.catalogue_path)
@@ -140,7 +141,12 @@ class VariantCmpApp(App[int]):
             self.push_screen(VariantScreen(variant_id))
 
     def export_table(self, df: pl.DataFrame, stem: str) -> None:
-        self.push_screen(ExportDialog(df, f"{stem}.csv"))
+        def written(message: str | None) -> None:
+            if message:
+                self.last_export = message
+                self.notify(message, title="Export")
+
+        self.push_screen(ExportDialog(df, f"{stem}.csv"), written)
 
     def action_help(self) -> None:
         if not isinstance(self.screen, HelpScreen):

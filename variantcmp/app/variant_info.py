@@ -128,9 +128,9 @@ class VariantScreen(Screen):
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="variant-body"):
             yield Static(id="variant-head")
-            yield Static(id="variant-values")
             yield Static(id="variant-figures")
             yield Static(id="variant-engines")
+            yield Static(id="variant-values")
         yield Footer()
 
     def on_mount(self) -> None:
