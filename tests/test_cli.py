@@ -15,7 +15,7 @@ import polars as pl
 import pytest
 
 from variantcmp.caution import CAUTION
-from variantcmp.catalogue import demo_catalogue_path, load_catalogue
+from variantcmp.catalogue import demo_catalogue_path
 from variantcmp.cli import main
 
 REQUIRED_COLUMNS = [
@@ -27,11 +27,6 @@ LIMIT_COLUMNS = [
     "certified_ceiling_ft", "cabin_ceiling_ft",
 ]
 LIMIT_NAMES = {"thrust", "buffet", "stall", "certified", "cabin", "none"}
-
-
-@pytest.fixture(scope="module")
-def demo():
-    return load_catalogue(demo_catalogue_path())
 
 
 def pairs(catalogue):
@@ -154,6 +149,28 @@ def test_table_shows_flight_levels_limits_and_caution(capsys):
     assert re.search(r"FL\d{3}", out)
     assert re.search(r"\b(thrust|buffet|stall|certified|cabin)\b", out)
     assert squash(CAUTION) in squash(out)
+
+
+@pytest.mark.parametrize("width", [80, 100, 140])
+def test_narrow_terminal_never_cuts_numbers(capsys, monkeypatch, width):
+    # Rich shortens cells that do not fit ("38,…"); a cut altitude would mislead, so the CLI
+    # hides whole optional columns instead and keeps every shown number whole.
+    from rich.console import Console
+
+    import variantcmp.cli as cli
+
+    monkeypatch.setattr(cli, "_console", lambda stderr=False: Console(file=sys.stdout, width=width))
+    args = ["ceilings", "--weight", "100%mtow", "--isa=0,15", "--target", "FL370"]
+    status, out, err = run(capsys, *args)
+    assert status == 0, err
+    assert "…" not in out
+    monkeypatch.undo()
+    _, csv_out, _ = run(capsys, *args, "--format", "csv")
+    frame = read_csv(csv_out)
+    for value in frame["max_altitude_ft"].drop_nulls():
+        assert f"FL{int(value // 100):03d}" in out
+    for value in frame["thrust_ceiling_ft"].drop_nulls():
+        assert f"{int(value):,d}" in out
 
 
 def test_target_adds_margin_columns(capsys):
@@ -381,6 +398,18 @@ def test_readme_runs_are_real_and_current():
         assert block["out"] == _fresh_output(block["args"]), (
             f"README run of 'variantcmp {block['args']}' is out of date: "
             "python tests/test_cli.py --update-readme")
+
+
+@pytest.mark.skipif(not README.is_file(), reason="README.md is not next to the tests")
+def test_readme_documents_every_catalogue_key():
+    import dataclasses
+
+    from variantcmp.catalogue import Engine, Variant
+
+    text = README.read_text(encoding="utf-8")
+    for cls in (Engine, Variant):
+        for field in dataclasses.fields(cls):
+            assert f"`{field.name}`" in text, f"README's catalogue format lacks {cls.__name__}.{field.name}"
 
 
 def _update_readme() -> None:

@@ -42,10 +42,15 @@ def korn_critical_mach(cl, thickness_ratio, sweep_deg, korn_factor):
     (Virginia Tech), ch. 7: M_dd = kA/cos L - (t/c)/cos^2 L - CL/(10 cos^3 L);
     M_crit = M_dd - (0.1/80)^(1/3).
     """
+    m_crit0, slope = korn_coefficients(thickness_ratio, sweep_deg, korn_factor)
+    return m_crit0 - slope * np.asarray(cl)
+
+
+def korn_coefficients(thickness_ratio, sweep_deg, korn_factor):
+    """The Korn critical Mach as M_crit = M0 - s CL: returns (M0, s) (same source as above)."""
     cos_l = np.cos(np.radians(np.asarray(sweep_deg, dtype=float)))
-    m_dd = (np.asarray(korn_factor) / cos_l - np.asarray(thickness_ratio) / cos_l**2
-            - np.asarray(cl) / (10.0 * cos_l**3))
-    return m_dd - (0.1 / 80.0) ** (1.0 / 3.0)
+    m_crit0 = np.asarray(korn_factor) / cos_l - np.asarray(thickness_ratio) / cos_l**2 - (0.1 / 80.0) ** (1.0 / 3.0)
+    return m_crit0, 1.0 / (10.0 * cos_l**3)
 
 
 def wave_drag_coefficient(mach, cl, thickness_ratio, sweep_deg, korn_factor):
@@ -54,9 +59,15 @@ def wave_drag_coefficient(mach, cl, thickness_ratio, sweep_deg, korn_factor):
     Source: Lock's empirical rise as used by Malone & Mason (1995) and Mason, *Configuration
     Aerodynamics*, ch. 7. A NaN Korn factor means the variant has no compressibility data: 0.
     """
-    m_crit = korn_critical_mach(cl, thickness_ratio, sweep_deg, korn_factor)
-    over = np.maximum(np.asarray(mach) - m_crit, 0.0)
-    return np.where(np.isnan(over), 0.0, 20.0 * over**4)
+    m_crit0, slope = korn_coefficients(thickness_ratio, sweep_deg, korn_factor)
+    return lock_wave_drag(mach, m_crit0 - slope * np.asarray(cl))
+
+
+def lock_wave_drag(mach, critical_mach):
+    """Lock's fourth-power law CDw = 20 (M - M_crit)^4 above M_crit; NaN M_crit (no data): 0."""
+    over = np.fmax(np.asarray(mach) - critical_mach, 0.0)  # fmax: NaN -> 0
+    over *= over
+    return 20.0 * over * over
 
 
 def buffet_onset_cl(mach, buffet_mach, buffet_cl):

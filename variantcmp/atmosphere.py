@@ -62,6 +62,23 @@ MODEL_TOP_P_PA = float(LAYER_BASE_P_PA[-1] * _pressure_ratio(
     LAYER_LAPSE_K_PER_M[-1], MODEL_TOP_M - LAYER_BASE_M[-1], LAYER_BASE_T_K[-1]))
 
 
+def _log_pressure_coefficients():
+    """ln p = A + B ln T + C h within each layer (B = 0 in isothermal layers, C = 0 elsewhere).
+
+    The same hydrostatic solution as :func:`_pressure_ratio`, arranged so one expression serves
+    every layer without branches (speed: the solvers evaluate it millions of times).
+    """
+    lapse, t_b, p_b, h_b = LAYER_LAPSE_K_PER_M, LAYER_BASE_T_K, LAYER_BASE_P_PA, LAYER_BASE_M
+    iso = lapse == 0.0
+    expo = np.where(iso, 0.0, -G0 / (R_AIR * np.where(iso, 1.0, lapse)))
+    a = np.where(iso, np.log(p_b) + G0 * h_b / (R_AIR * t_b), np.log(p_b) - expo * np.log(t_b))
+    c = np.where(iso, -G0 / (R_AIR * t_b), 0.0)
+    return a, expo, c
+
+
+_LNP_A, _LNP_B, _LNP_C = _log_pressure_coefficients()
+
+
 def _layer_index(altitude_m):
     return np.clip(np.searchsorted(LAYER_BASE_M, altitude_m, side="right") - 1, 0, LAYER_BASE_M.size - 1)
 
@@ -96,8 +113,9 @@ def isa_state(altitude_m):
     """
     h = np.asarray(altitude_m, dtype=float)
     i = _layer_index(h)
-    lapse, t_base, dh = LAYER_LAPSE_K_PER_M[i], LAYER_BASE_T_K[i], h - LAYER_BASE_M[i]
-    return t_base + lapse * dh, LAYER_BASE_P_PA[i] * _pressure_ratio(lapse, dh, t_base), lapse
+    lapse = LAYER_LAPSE_K_PER_M[i]
+    t = LAYER_BASE_T_K[i] + lapse * (h - LAYER_BASE_M[i])
+    return t, np.exp(_LNP_A[i] + _LNP_B[i] * np.log(t) + _LNP_C[i] * h), lapse
 
 
 def pressure_altitude_m(pressure_pa):

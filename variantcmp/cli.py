@@ -274,71 +274,112 @@ def _conditions_caption(conditions, climb_labels: list[str]) -> str:
     return " | ".join(parts)
 
 
-def _print_ceilings_table(catalogue, conditions, climb_labels, frame) -> None:
-    from rich.table import Table
+# Columns dropped, in this order, when the table is wider than the terminal.
+_DROP_FOR_WIDTH = ("cabin_ceiling_ft", "certified_ceiling_ft", "stall_ceiling_ft", "pct_mtow",
+                   "max_ft", "mach")
 
-    console = _console()
+
+def _ceilings_cells(catalogue, conditions, frame) -> tuple[list[tuple[str, str, str]], list[dict]]:
+    """Column specs (key, header, justify) and the text of every cell, per row."""
     rows = frame.to_dicts()
-    multi_climb = len(conditions.climb_fpm) > 1
-    has_target = "margin_ft" in frame.columns
-    has_notes = any(row["note"] for row in rows)
+    # Two-line headers (name, unit) keep the columns as narrow as their numbers.
+    columns = [("variant", "Variant", "left"), ("engine", "Engine", "left"),
+               ("weight", "Weight\nkg", "right"), ("pct_mtow", "%\nMTOW", "right"),
+               ("isa", "ISA", "right")]
+    if len(conditions.climb_fpm) > 1:
+        columns.append(("climb", "Climb\nft/min", "right"))
+    columns += [("mach", "Mach", "right"), ("max_fl", "Max\nFL", "right"),
+                ("max_ft", "Max\nft", "right"), ("limit", "Limit", "left")]
+    columns += [(col, f"{header}\nft", "right") for col, header in _LIMIT_COLUMNS]
+    if "margin_ft" in frame.columns:
+        columns.append(("margin", "Margin\nft", "right"))
+    if any(row["note"] for row in rows):
+        columns.append(("note", "Note", "left"))
 
-    table = Table(
-        title=f"{catalogue.title}: maximum altitudes",
-        caption=_conditions_caption(conditions, climb_labels),
-        caption_justify="left",
-        header_style="bold",
-        show_lines=False,
-    )
-    table.add_column("Variant")
-    table.add_column("Engine")
-    table.add_column("Weight kg", justify="right")
-    table.add_column("ISA", justify="right")
-    if multi_climb:
-        table.add_column("Climb ft/min", justify="right")
-    table.add_column("Mach", justify="right")
-    table.add_column("Max FL", justify="right", style="bold")
-    table.add_column("Max ft", justify="right")
-    table.add_column("Limit", style="bold")
-    for _, header in _LIMIT_COLUMNS:
-        table.add_column(f"{header} ft", justify="right")
-    if has_target:
-        table.add_column("Margin ft", justify="right")
-    if has_notes:
-        table.add_column("Note", overflow="fold", max_width=48)
-
-    for i, row in enumerate(rows):
+    cells = []
+    for row in rows:
         variant = catalogue.variants.get(row["variant"])
         weight_kg = _float_or_none(row["weight_kg"])
         weight = "—" if weight_kg is None else f"{weight_kg:,.0f}"
+        pct_mtow = "—"
         if variant is not None and weight_kg is not None and variant.mtow_kg:
-            weight += f" ({100 * weight_kg / variant.mtow_kg:.0f}%)"
-        cells = [
-            row["variant"],
-            row["engine"],
-            weight,
-            format_isa_dev(row["isa_dev_c"]),
-        ]
-        if multi_climb:
-            cells.append(f"{row['climb_fpm']:g}")
-        cells += [
-            format_mach(_float_or_none(row["mach"])),
-            format_flight_level(_float_or_none(row["max_altitude_ft"])),
-            format_altitude_ft(_float_or_none(row["max_altitude_ft"])),
-            row["limit"] or "—",
-        ]
-        cells += [format_altitude_ft(_float_or_none(row[col])) for col, _ in _LIMIT_COLUMNS]
-        if has_target:
+            pct_mtow = f"{100 * weight_kg / variant.mtow_kg:.0f}"
+        max_ft = _float_or_none(row["max_altitude_ft"])
+        text = {
+            "variant": row["variant"], "engine": row["engine"], "weight": weight, "pct_mtow": pct_mtow,
+            "isa": format_isa_dev(row["isa_dev_c"]), "climb": f"{row['climb_fpm']:g}",
+            "mach": format_mach(_float_or_none(row["mach"])),
+            "max_fl": format_flight_level(max_ft), "max_ft": format_altitude_ft(max_ft),
+            "limit": row["limit"] or "—", "note": row["note"] or "",
+        }
+        for col, _ in _LIMIT_COLUMNS:
+            text[col] = format_altitude_ft(_float_or_none(row[col]))
+        if "margin_ft" in row:
             margin = _float_or_none(row["margin_ft"])
             # Rounded down like the altitudes, so a margin is never overstated.
-            cells.append("—" if margin is None else f"{math.floor(margin):+,d}")
-        if has_notes:
-            cells.append(row["note"] or "")
-        last_of_variant = i + 1 == len(rows) or rows[i + 1]["variant"] != row["variant"]
-        style = "yellow" if row.get("over_mtow") else None
-        table.add_row(*cells, style=style, end_section=last_of_variant)
+            text["margin"] = "—" if margin is None else f"{math.floor(margin):+,d}"
+        text["_variant"], text["_over_mtow"] = row["variant"], bool(row.get("over_mtow"))
+        cells.append(text)
+    return columns, cells
 
+
+def _build_table(title, caption, columns, cells):
+    from rich import box
+    from rich.table import Table
+
+    table = Table(title=title, caption=caption, caption_justify="left", header_style="bold",
+                  box=box.SIMPLE_HEAD, show_edge=False, padding=(0, 1, 0, 0))
+    for key, header, justify in columns:
+        if key == "note":
+            table.add_column(header, overflow="fold", min_width=16, max_width=48)  # see note_min
+        else:
+            # Numbers and ids never wrap or get cut (a truncated altitude would mislead): the
+            # columns are sized to fit, and "fold" would at worst break a number, never hide it.
+            table.add_column(header, justify=justify, no_wrap=True, overflow="fold",
+                             style="bold" if key in ("max_fl", "limit") else None)
+    for i, text in enumerate(cells):
+        last_of_variant = i + 1 == len(cells) or cells[i + 1]["_variant"] != text["_variant"]
+        table.add_row(*(text[key] for key, _, _ in columns),
+                      style="yellow" if text["_over_mtow"] else None, end_section=last_of_variant)
+    return table
+
+
+def _print_ceilings_table(catalogue, conditions, climb_labels, frame) -> None:
+    from rich.measure import Measurement
+
+    console = _console()
+    columns, cells = _ceilings_cells(catalogue, conditions, frame)
+    title = f"{catalogue.title}: maximum altitudes"
+    caption = _conditions_caption(conditions, climb_labels)
+
+    note_min = 16
+
+    def width_needed(cols) -> int:
+        """Width with every number whole and the note wrapped to its narrowest."""
+        fixed = [c for c in cols if c[0] != "note"]
+        table = _build_table(None, None, fixed, cells)
+        width = Measurement.get(console, console.options.update(width=10_000), table).maximum
+        return width + (note_min + 2 if len(fixed) < len(cols) else 0)
+
+    dropped: list[str] = []
+    for key in _DROP_FOR_WIDTH:
+        if width_needed(columns) <= console.width:
+            break
+        header = next((h for k, h, _ in columns if k == key), None)
+        if header is not None:
+            columns = [c for c in columns if c[0] != key]
+            dropped.append(header.replace("\n", " "))
+    table = _build_table(title, caption, columns, cells)
+    needed = width_needed(columns)
+    if needed > console.width:
+        # Still too wide: print at full width and let the terminal wrap rather than cut numbers.
+        from rich.console import Console
+
+        console = Console(file=sys.stdout, highlight=False, width=needed)
     console.print(table)
+    if dropped:
+        console.print(f"Hidden to fit the terminal: {', '.join(dropped)} "
+                      "(widen the window, or use --format csv for every column).")
     console.print("— = not available: the catalogue gives no data for that limit, or see the "
                   "note. Pressure altitudes; flight levels and feet are rounded down.")
     _print_caution(stderr=False)
@@ -448,6 +489,15 @@ def _run_app(catalogue_text: str | None) -> int:
 
 COMMANDS: list[Callable] = [_add_ceilings, _add_check]
 
+
+def _add_bench(subparsers) -> None:
+    from variantcmp.bench_cli import add_bench_command
+
+    add_bench_command(subparsers)
+
+
+COMMANDS.append(_add_bench)
+
 MAIN_DESCRIPTION = """\
 Compare the maximum altitudes of aircraft variants and engine options across
 weights and temperature deviations.
@@ -536,8 +586,12 @@ def main(argv: list[str] | None = None) -> int:
         if not argv:
             return _run_app(None)
         if argv[0] not in commands and not argv[0].startswith("-"):
-            if len(argv) == 1 and _looks_like_catalogue(argv[0]):
-                return _run_app(argv[0])
+            if _looks_like_catalogue(argv[0]):
+                if len(argv) == 1:
+                    return _run_app(argv[0])
+                raise UsageError(
+                    f"a catalogue alone opens the app and takes no options; for results run "
+                    f"'{PROG} ceilings {argv[0]} {' '.join(argv[1:])}'", PROG)
             hint = difflib.get_close_matches(argv[0], commands, n=1)
             if hint:
                 message = f"unknown command '{argv[0]}' (did you mean '{hint[0]}'?)"
@@ -567,6 +621,8 @@ def main(argv: list[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         # Output piped into `head` and the like: stop quietly.
-        devnull = os.open(os.devnull, os.O_WRONLY)
-        os.dup2(devnull, sys.stdout.fileno())
+        try:
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        except (OSError, ValueError, AttributeError):
+            pass  # stdout is not a real file (tests): nothing left to flush
         return EXIT_FAILURE

@@ -9,14 +9,16 @@ by a Mach grid and golden-section refinement. Everything is vectorised over case
 
 from __future__ import annotations
 
+import os
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 
 import numpy as np
 
-from .aero import energy_share_factor, wave_drag_coefficient
+from .aero import energy_share_factor, korn_coefficients, lock_wave_drag
 from .airspeed import pressure_for_cas_at_mach_pa
 from .atmosphere import G0, GAMMA, MODEL_TOP_M, R_AIR, isa_state, pressure_altitude_m, speed_of_sound_ms
-from .cases import FLOOR_M, FT, CaseSet
+from .cases import FLOOR_M, FT, MODEL_CODES, CaseSet
 from .thrust import density_lapse_fraction, hot_day_factor, turbofan_lapse_fraction
 
 LIMITS = ("thrust", "buffet", "stall", "certified", "cabin")
@@ -36,11 +38,12 @@ BELOW_FLOOR = 256  # the limits cross below -2,000 ft
 SCAN_LEVELS_M = np.concatenate([
     [FLOOR_M], np.arange(0.0, 21_000.0, 1_000.0), [22_500.0, 25_000.0, 28_000.0, 32_000.0,
                                                    38_000.0, 47_000.0, 60_000.0, MODEL_TOP_M]])
+QUICK_CL_FRACTION = 0.6
 ROOT_TOL_M = 0.003  # about 0.01 ft
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 12
 BEST_MACH_ITERATIONS = 18
-CHUNK = 32_768
+CHUNK = 65_536
 
 
 @dataclass
@@ -87,9 +90,20 @@ class ClimbPhysics:
                 self.groups.append((int(code), -1, np.flatnonzero(codes == code)))
         if len(self.groups) == 1:
             self.groups = [(self.groups[0][0], self.groups[0][1], slice(None))]
+        self._derived()
 
     def subset(self, index) -> "ClimbPhysics":
         return ClimbPhysics(self.cases.take(index))
+
+    def _derived(self):
+        """Per-case constants of the climb equation, computed once per case set."""
+        cs = self.cases
+        self.w_n = cs.weight_kg * G0
+        self.qs_per_pm2 = 0.5 * GAMMA * cs.wing_area_m2  # q S = (gamma/2) p M^2 S
+        self.thrust_n = cs.thrust_sls_n * hot_day_factor(cs.isa_dev_c, cs.flat_rate_isa_dev_c, cs.hot_day_loss_per_c)
+        self.m_crit0, self.m_crit_slope = korn_coefficients(cs.thickness_ratio, cs.sweep_deg, cs.korn_factor)
+        self.has_wave = bool(np.isfinite(self.m_crit0).any())
+        self.lapse_above = np.where(np.isnan(cs.lapse_exponent_above), cs.lapse_exponent, cs.lapse_exponent_above)
 
     def thrust_fraction(self, altitude_m, mach, t, p, rho, col):
         """F / (F_SLS at rating) for every case, each engine model on its own group."""
@@ -100,8 +114,7 @@ class ClimbPhysics:
             rows = (lambda a: np.broadcast_to(a, out.shape)[idx])
             if code == 0:
                 frac = density_lapse_fraction(rows(rho), sub(cs.lapse_exponent), sub(cs.tropopause_density_kg_m3),
-                                              np.where(np.isnan(sub(cs.lapse_exponent_above)), sub(cs.lapse_exponent),
-                                                       sub(cs.lapse_exponent_above)))
+                                              sub(self.lapse_above))
             elif code == 1:
                 frac = turbofan_lapse_fraction(rows(mach), rows(t), rows(p), sub(cs.throttle_ratio))
             else:
@@ -113,7 +126,8 @@ class ClimbPhysics:
         """Residual rate of climb (m/s of pressure altitude) at constant Mach.
 
         dh_p/dt = (F - D) V / W x (T_ISA / T) x f (total-energy equation, see
-        :func:`variantcmp.aero.energy_share_factor`). ``altitude_m`` is (N,) or (N, L).
+        :func:`variantcmp.aero.energy_share_factor`), D = q S (CD0 + K CL^2 + CDw) with the
+        Korn/Lock wave drag (:mod:`variantcmp.aero`). ``altitude_m`` is (N,) or (N, L).
         """
         cs = self.cases
         h = np.asarray(altitude_m, dtype=float)
@@ -121,17 +135,15 @@ class ClimbPhysics:
         m = col(cs.mach if mach is None else mach)
         t_isa, p, lapse = isa_state(h)
         t = t_isa + col(cs.isa_dev_c)
-        rho = p / (R_AIR * t)
-        w = col(cs.weight_kg) * G0
-        q_s = 0.5 * GAMMA * p * m * m * col(cs.wing_area_m2)
+        w = col(self.w_n)
+        q_s = col(self.qs_per_pm2) * (m * m) * p
         cl = w / q_s
-        cd = col(cs.cd0) + col(cs.k) * cl * cl
-        cd = cd + wave_drag_coefficient(m, cl, col(cs.thickness_ratio), col(cs.sweep_deg), col(cs.korn_factor))
-        drag = q_s * cd
-        thrust = col(cs.thrust_sls_n) * self.thrust_fraction(h, m, t, p, rho, col)
-        thrust = thrust * hot_day_factor(col(cs.isa_dev_c), col(cs.flat_rate_isa_dev_c), col(cs.hot_day_loss_per_c))
+        cd = col(cs.cd0) + col(cs.k) * (cl * cl)
+        if self.has_wave:
+            cd += lock_wave_drag(m, col(self.m_crit0) - col(self.m_crit_slope) * cl)
+        thrust = col(self.thrust_n) * self.thrust_fraction(h, m, t, p, p / (R_AIR * t), col)
         v = m * speed_of_sound_ms(t)
-        return (thrust - drag) * v / w * (t_isa / t) * energy_share_factor(m, t, t_isa, lapse)
+        return (thrust - q_s * cd) * v / w * (t_isa / t) * energy_share_factor(m, t, t_isa, lapse)
 
     def excess(self, altitude_m, mach=None):
         col = (lambda a: a[:, None]) if np.ndim(altitude_m) == 2 else (lambda a: a)
@@ -190,7 +202,37 @@ def _golden_max(func, a, b, iterations):
 
 
 def thrust_ceiling_m(phys: ClimbPhysics, mach):
-    """Highest pressure altitude (m) with the required residual climb at a Mach, and flags."""
+    """Highest pressure altitude (m) with the required residual climb at a Mach, and flags.
+
+    Quick bracket first: where the Mach flies the polar at 0.6 CL* (CL* at L/D max) the excess
+    climb rate is usually near its peak, and at CLmax far past it; the top root lies between.
+    Cases where that bracket does not hold go through the full altitude scan.
+    """
+    cs = phys.cases
+    n = len(cs)
+    top = np.minimum(cs.top_m, MODEL_TOP_M)
+    qs = phys.qs_per_pm2 * mach * mach
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        a = np.clip(pressure_altitude_m(phys.w_n / (qs * QUICK_CL_FRACTION * np.sqrt(cs.cd0 / cs.k))), cs.floor_m, top)
+        b = np.clip(pressure_altitude_m(phys.w_n / (qs * cs.cl_max)), cs.floor_m, top)
+        fa, fb = phys.excess(a, mach), phys.excess(b, mach)
+    # Table engines interpolate linearly between grid points, so their excess climb rate can
+    # have several humps: they always take the scan, which finds the highest root.
+    quick = (fa >= 0.0) & (fb < 0.0) & (b > a) & (cs.model_code != MODEL_CODES["table"])
+    if quick.all():
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            return _illinois(phys, mach, a, b, fa, fb), np.zeros(n, dtype=np.int32)
+    result, flags = np.full(n, np.nan), np.zeros(n, dtype=np.int32)
+    slow, fast = np.flatnonzero(~quick), np.flatnonzero(quick)
+    result[slow], flags[slow] = _scanned_thrust_ceiling_m(phys.subset(slow), mach[slow])
+    if fast.size:
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            result[fast] = _illinois(phys.subset(fast), mach[fast], a[fast], b[fast], fa[fast], fb[fast])
+    return result, flags
+
+
+def _scanned_thrust_ceiling_m(phys: ClimbPhysics, mach):
+    """Thrust ceiling bracketed by a coarse scan of altitudes (robust, slower)."""
     cs = phys.cases
     n = len(cs)
     flags = np.zeros(n, dtype=np.int32)
@@ -374,31 +416,35 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                     final.limit, flags, final.vmo_floor_m)
 
 
-def solve_ceilings(cases: CaseSet, chunk: int = CHUNK) -> Ceilings:
+def _solve_chunk(part: CaseSet) -> Ceilings:
+    best = np.isnan(part.mach)
+    if best.all():
+        return _best_speed(ClimbPhysics(part))
+    if not best.any():
+        return _fixed_mach(ClimbPhysics(part), part.mach)
+    fixed_idx, best_idx = np.flatnonzero(~best), np.flatnonzero(best)
+    a = _fixed_mach(ClimbPhysics(part.take(fixed_idx)), part.mach[fixed_idx])
+    b = _best_speed(ClimbPhysics(part.take(best_idx)))
+    order = np.argsort(np.concatenate([fixed_idx, best_idx]))
+    merged = Ceilings.concat([a, b])
+    return Ceilings(**{k: getattr(merged, k)[order] for k in Ceilings.__dataclass_fields__})
+
+
+def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, workers: int | None = None) -> Ceilings:
     """Every limit's ceiling and the maximum altitude for all cases (fixed Mach or best speed).
 
-    Cases whose ``mach`` is NaN are solved for the best speed.
+    Cases whose ``mach`` is NaN are solved for the best speed. Work goes in chunks (bounded
+    memory); several chunks run at once on threads, as numpy releases the GIL in its loops.
     """
-    parts = []
-    for start in range(0, max(len(cases), 1), chunk):
-        part = cases.take(slice(start, start + chunk))
-        if len(part) == 0:
-            break
-        best = np.isnan(part.mach)
-        if best.all():
-            parts.append(_best_speed(ClimbPhysics(part)))
-        elif not best.any():
-            parts.append(_fixed_mach(ClimbPhysics(part), part.mach))
-        else:
-            fixed_idx, best_idx = np.flatnonzero(~best), np.flatnonzero(best)
-            a = _fixed_mach(ClimbPhysics(part.take(fixed_idx)), part.mach[fixed_idx])
-            b = _best_speed(ClimbPhysics(part.take(best_idx)))
-            order = np.argsort(np.concatenate([fixed_idx, best_idx]))
-            merged = Ceilings.concat([a, b])
-            parts.append(Ceilings(**{k: getattr(merged, k)[order] for k in Ceilings.__dataclass_fields__}))
-    if not parts:
+    n = len(cases)
+    if n == 0:
         empty = np.empty(0)
         return Ceilings(empty, empty, empty, empty, empty, empty, empty, np.empty(0, np.int8), np.empty(0, np.int32),
                         empty)
-    return Ceilings.concat(parts)
-
+    chunk = max(1, chunk)
+    parts = [cases.take(slice(start, start + chunk)) for start in range(0, n, chunk)]
+    workers = min(len(parts), workers or min(2, os.cpu_count() or 1))
+    if workers <= 1:
+        return Ceilings.concat([_solve_chunk(p) for p in parts])
+    with ThreadPoolExecutor(max_workers=workers) as pool:
+        return Ceilings.concat(list(pool.map(_solve_chunk, parts)))

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from pathlib import Path
+from time import perf_counter
 
 import polars as pl
 from textual import work
@@ -54,6 +55,7 @@ class VariantCmpApp(App[int]):
         self.catalogue_signal: Signal[Catalogue | None] = Signal(self, "catalogue")
         self.busy_signal: Signal[bool] = Signal(self, "busy")
         self._generation = 0
+        self.requested_at = perf_counter()
         self.last_export: str | None = None
 
     def on_mount(self) -> None:
@@ -111,6 +113,7 @@ class VariantCmpApp(App[int]):
         if self.catalogue is None or self.conditions is None:
             return
         self._generation += 1
+        self.requested_at = perf_counter()
         self.busy_signal.publish(True)
         self._compute(self._generation, self.catalogue, self.conditions)
 

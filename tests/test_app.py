@@ -1,0 +1,511 @@
+"""The terminal app driven with real keys through Textual's test pilot.
+
+Each test runs the app headless at 80x24 (the smallest size it must serve) and
+checks what the user sees against `variantcmp.table.ceilings_table`, the same
+code path as `variantcmp ceilings`. Timings are printed (run with -s), never asserted.
+"""
+
+from __future__ import annotations
+
+import asyncio
+import io
+import shutil
+import time
+from dataclasses import replace
+from pathlib import Path
+
+import polars as pl
+import pytest
+from polars.testing import assert_frame_equal
+from rich.console import Console
+
+from variantcmp.app import VariantCmpApp
+from variantcmp.app.compare import CompareScreen
+from variantcmp.app.dialogs import ConfirmDialog, ExportDialog, OpenDialog, ProblemsScreen
+from variantcmp.app.help import HelpScreen
+from variantcmp.app.hotday import HotDayScreen
+from variantcmp.app.variant_info import VariantScreen
+from variantcmp.app.view import BASELINE_MARK, ROW_KEY
+from variantcmp.caution import CAUTION
+from variantcmp.catalogue import demo_catalogue_path, load_catalogue
+from variantcmp.table import Conditions, ceilings_table
+from variantcmp.units import WeightSpec, format_altitude_ft, format_flight_level
+
+SIZE = (80, 24)
+
+BROKEN = """\
+[catalogue]
+title = "Broken test fleet"
+
+[[engine]]
+id = "e1"
+model = "density-lapse"
+static_thrust_kn = -5
+
+[[variant]]
+id = "a1"
+engine_options = ["e1"]
+engine_count = 2
+wing_area_m2 = 80
+aspect_ratio = 9
+oswald_e = 0.8
+cd0 = 0.02
+cl_max = 1.4
+mtow_kg = 40000
+cruise_mach = 0.74
+wing_span_m = 30
+"""
+
+
+def run(test):
+    """Run an async pilot test from a plain test function (no pytest-asyncio needed)."""
+    return asyncio.run(test())
+
+
+async def settle(app, pilot) -> None:
+    """Let worker threads finish and the screens redraw with their results."""
+    await pilot.pause()
+    await app.workers.wait_for_complete()
+    await pilot.pause()
+
+
+async def replace_text(pilot, *text: str) -> None:
+    """Type into the focused field, replacing what it holds (fields select all on focus)."""
+    await pilot.pause()  # a focus() call takes effect on the next message
+    field = pilot.app.focused
+    field.select_all()
+    await pilot.press(*"".join(text))
+
+
+def shown_text(widget, width: int = 100) -> str:
+    """What a Static shows, as plain text (strings or Rich renderables)."""
+    content = widget.content
+    if isinstance(content, str):
+        return content
+    console = Console(width=width, record=True, file=io.StringIO())
+    console.print(content)
+    return console.export_text()
+
+
+def table_rows(screen, selector: str = "#table") -> list[list[str]]:
+    table = screen.query_one(selector)
+    return [[str(getattr(c, "plain", c)).strip() for c in table.get_row_at(i)] for i in range(table.row_count)]
+
+
+def column_index(screen, key: str) -> int:
+    table = screen.query_one("#table")
+    return [c.value for c in table.columns].index(key)
+
+
+def reference(conditions: Conditions) -> pl.DataFrame:
+    return ceilings_table(load_catalogue(demo_catalogue_path()), conditions)
+
+
+def shown_matches_reference(screen, conditions: Conditions) -> None:
+    """The numbers on screen are those of ceilings_table, row by row, in catalogue order."""
+    df = reference(conditions)
+    rows = table_rows(screen)
+    assert len(rows) == df.height
+    fl, ft, limit = (column_index(screen, k) for k in ("fl", "max_ft", "limit"))
+    for shown, expected in zip(rows, df.iter_rows(named=True)):
+        assert shown[0] == expected["variant"] and shown[1] == expected["engine"]
+        assert shown[fl] == format_flight_level(expected["max_altitude_ft"])
+        assert shown[ft] == format_altitude_ft(expected["max_altitude_ft"])
+        assert shown[limit].endswith(expected["limit"] or "—")
+
+
+def test_first_table_is_ceilings_table():
+    async def body():
+        start = time.perf_counter()
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            print(f"\nstart to first table: {(time.perf_counter() - start) * 1000:.0f} ms "
+                  f"(solver {app.results.compute_ms:.0f} ms)")
+            assert isinstance(app.screen, CompareScreen)
+            # Same frame as the headless command, column for column.
+            assert_frame_equal(app.results.df.drop(ROW_KEY), reference(Conditions()))
+            shown_matches_reference(app.screen, Conditions())
+            # The caution is on screen without any key press.
+            caution = app.screen.query_one("#caution")
+            assert caution.region.height >= 1 and shown_text(caution) == CAUTION
+    run(body)
+
+
+def test_each_condition_recomputes_like_the_cli():
+    edits = [  # (key to reach the field, text, what Conditions must then say)
+        ("c", "90%mtow", dict(weights=(WeightSpec(90.0, "%mtow"),))),
+        ("tab", "ISA+15", dict(isa_devs_c=(15.0,))),
+        ("tab", "FL350", dict(target_fl_ft=35000.0)),
+        ("tab", "M.74", dict(mach=0.74)),
+        ("tab", "service", dict(climb_fpm=(100.0,))),
+        ("tab", "1.5", dict(g_margin=1.5)),
+    ]
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            expected = Conditions()
+            for key, text, change in edits:
+                await pilot.press(key)
+                start = time.perf_counter()
+                await replace_text(pilot, text)
+                await settle(app, pilot)
+                print(f"\n{text!r}: last key to table {app.screen.update_ms:.0f} ms "
+                      f"(solver {app.results.compute_ms:.0f} ms; pilot typing {(time.perf_counter() - start):.2f} s)")
+                expected = replace(expected, **change)
+                assert app.conditions == expected
+                assert app.results.conditions == expected
+                shown_matches_reference(app.screen, expected)
+            assert "margin" in [c.value for c in app.screen.query_one("#table").columns]
+            # Best speed and a sweep over weights and deviations (one row per case).
+            await pilot.press("shift+tab", "shift+tab")
+            await replace_text(pilot, "best")
+            app.screen.query_one("#field-weight").focus()
+            await replace_text(pilot, "90%mtow,38t")
+            app.screen.query_one("#field-isa").focus()
+            await replace_text(pilot, "0,20")
+            await settle(app, pilot)
+            assert app.conditions.mach == "best"
+            assert len(table_rows(app.screen)) == 8 * 2 * 2
+            shown_matches_reference(app.screen, app.conditions)
+    run(body)
+
+
+def test_bad_input_is_shown_in_place_and_keeps_the_table():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            before = app.results
+            await pilot.press("c", "end", "x")  # "100%mtowx"
+            await settle(app, pilot)
+            errors = app.screen.query_one("#field-errors")
+            assert errors.display and "Weight" in shown_text(errors) and "100%mtowx" in shown_text(errors)
+            assert app.screen.query_one("#field-weight").has_class("-bad")
+            assert app.results is before  # last good conditions and table kept
+            await pilot.press("escape")
+            assert app.focused is app.screen.query_one("#table")
+            app.screen.query_one("#field-weight").focus()
+            await replace_text(pilot, "95%mtow")
+            await settle(app, pilot)
+            assert not errors.display
+            assert app.conditions.weights == (WeightSpec(95.0, "%mtow"),)
+    run(body)
+
+
+def test_sort_by_key_and_header_click():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            df = reference(Conditions())
+            fl = column_index(app.screen, "fl")
+            await pilot.press("s")  # first sort column: maximum altitude, highest first
+            await pilot.pause()
+            print(f"\nsort and redraw: {app.screen.render_ms:.1f} ms")
+            high_first = df.sort("max_altitude_ft", descending=True, maintain_order=True)
+            assert [r[fl] for r in table_rows(app.screen)] == [
+                format_flight_level(x) for x in high_first["max_altitude_ft"]]
+            await pilot.press("r")
+            assert [r[fl] for r in table_rows(app.screen)] == [
+                format_flight_level(x) for x in reversed(high_first["max_altitude_ft"].to_list())]
+            await pilot.press("s")  # next column: maximum altitude in ft, highest first again
+            assert app.screen.sort_key == "max_ft" and app.screen.descending
+            await pilot.press("S")
+            assert app.screen.sort_key == "fl"
+            # Click the Engine header: sort by engine; click again: reversed.
+            await pilot.click("#table", offset=(12, 0))
+            await pilot.pause()
+            engines = [r[1] for r in table_rows(app.screen)]
+            assert app.screen.sort_key == "engine" and engines == sorted(engines)
+            await pilot.click("#table", offset=(12, 0))
+            await pilot.pause()
+            assert [r[1] for r in table_rows(app.screen)] == sorted(engines, reverse=True)
+            # Sorting survives a condition change.
+            await pilot.press("c")
+            await replace_text(pilot, "95%mtow")
+            await settle(app, pilot)
+            assert app.screen.sort_key == "engine"
+    run(body)
+
+
+def test_filter_rows_by_text():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            df = reference(Conditions())
+            await pilot.press("slash")
+            await pilot.press(*"v88")
+            rows = table_rows(app.screen)
+            assert rows and {r[0] for r in rows} == {"v88"}
+            assert len(rows) == df.filter(pl.col("variant") == "v88").height
+            app.screen.query_one("#filter").value = "thrust"
+            await pilot.pause()
+            assert len(table_rows(app.screen)) == df.filter(pl.col("limit") == "thrust").height
+            app.screen.query_one("#filter").value = "no-such-thing"
+            await pilot.pause()
+            assert table_rows(app.screen) == []
+            await pilot.press("escape")
+            app.screen.query_one("#filter").value = ""
+            await pilot.pause()
+            assert len(table_rows(app.screen)) == df.height
+    run(body)
+
+
+def test_baseline_shows_differences():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            df = reference(Conditions()).to_dicts()
+            ft = column_index(app.screen, "max_ft")
+            await pilot.press("b")  # pin the first row
+            rows = table_rows(app.screen)
+            assert rows[0][0] == f"{BASELINE_MARK} {df[0]['variant']}"
+            assert rows[0][ft] == format_altitude_ft(df[0]["max_altitude_ft"])
+            header = app.screen.query_one("#table").columns
+            assert str(header[list(header)[ft]].label).strip().startswith("Δ")
+            for shown, row in zip(rows[1:], df[1:]):
+                delta = int(shown[ft].replace(",", "").replace("±", ""))
+                base = int(format_altitude_ft(df[0]["max_altitude_ft"]).replace(",", ""))
+                assert delta == int(format_altitude_ft(row["max_altitude_ft"]).replace(",", "")) - base
+            # The baseline follows condition changes.
+            await pilot.press("c")
+            await replace_text(pilot, "90%mtow")
+            await settle(app, pilot)
+            assert table_rows(app.screen)[0][0].startswith(BASELINE_MARK)
+            await pilot.press("escape", "b")  # cursor still on the baseline row: unpin
+            assert not table_rows(app.screen)[0][0].startswith(BASELINE_MARK)
+    run(body)
+
+
+def test_hot_day_lookup():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await pilot.press("h")
+            await settle(app, pilot)
+            screen = app.screen
+            assert isinstance(screen, HotDayScreen)
+            assert screen.query_one("#lookup-isa").value == "ISA+15"
+            assert app.focused is screen.query_one("#lookup-target")  # no target yet: type one
+            await pilot.press(*"FL360", "enter")
+            await settle(app, pilot)
+            expected = reference(Conditions(isa_devs_c=(15.0,), target_fl_ft=36000.0))
+            rows = table_rows(screen, "#lookup-table")
+            assert len(rows) == expected.height
+            by_pair = {(r["variant"], r["engine"]): r for r in expected.iter_rows(named=True)}
+            for shown in rows:
+                row = by_pair[(shown[0], shown[1])]
+                assert shown[2].endswith("yes") == bool(row["reaches_target"])
+                assert shown[4] == format_flight_level(row["max_altitude_ft"])
+                assert shown[5].endswith(row["limit"])
+            made = sum(bool(r["reaches_target"]) for r in by_pair.values())
+            assert shown_text(screen.query_one("#lookup-summary")).startswith(f"{made} of {expected.height} make FL360")
+            screen.query_one("#lookup-weight").focus()
+            await replace_text(pilot, "abc")
+            await settle(app, pilot)
+            assert "abc" in shown_text(screen.query_one("#lookup-errors"))
+            await pilot.press("escape", "escape")  # leave the field, then the screen
+            assert isinstance(app.screen, CompareScreen)
+    run(body)
+
+
+def test_inspect_variant():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            catalogue = app.catalogue
+            first = next(iter(catalogue.variants.values()))
+            await pilot.press("i")
+            await pilot.pause()
+            assert isinstance(app.screen, VariantScreen)
+            assert app.screen.variant_id == first.id
+            figures = app.screen.query_one("#variant-figures").content
+            engines = app.screen.query_one("#variant-engines").content
+            assert figures.row_count >= 4  # K, L/D max, CL*, wing loading
+            assert [c.header for c in engines.columns][1:] == list(first.engine_options)
+            await pilot.press("n")
+            assert app.screen.variant_id == list(catalogue.variants)[1]
+            await pilot.press("escape")
+            assert isinstance(app.screen, CompareScreen)
+            await pilot.press("down", "enter")  # enter on a row opens its variant too
+            assert isinstance(app.screen, VariantScreen)
+    run(body)
+
+
+def test_broken_catalogue_then_fixed_and_reloaded(tmp_path: Path):
+    fleet = tmp_path / "fleet.toml"
+    fleet.write_text(BROKEN, encoding="utf-8")
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            demo_title = app.catalogue.title
+            await pilot.press("c")
+            await replace_text(pilot, "95%mtow")
+            await settle(app, pilot)
+            await pilot.press("escape", "o")
+            assert isinstance(app.screen, OpenDialog)
+            app.screen.query_one("#path").value = str(tmp_path / "missing.toml")
+            await pilot.press("enter")
+            assert "no such file" in shown_text(app.screen.query_one("#open-error"))
+            app.screen.query_one("#path").value = str(fleet)
+            await pilot.press("enter")
+            await settle(app, pilot)
+            assert isinstance(app.screen, ProblemsScreen)
+            keys = shown_text(app.screen.query_one("#problems-list"), width=200)
+            assert "static_thrust_kn" in keys and "wing_span_m" in keys
+            # Nothing lost: the last good catalogue and the conditions stay.
+            assert app.catalogue.title == demo_title
+            assert app.conditions.weights == (WeightSpec(95.0, "%mtow"),)
+            # The user fixes the file and reloads.
+            shutil.copyfile(demo_catalogue_path(), fleet)
+            await pilot.press("l")
+            await settle(app, pilot)
+            assert isinstance(app.screen, CompareScreen)
+            assert app.catalogue.path == fleet and not app.problems
+            assert app.conditions.weights == (WeightSpec(95.0, "%mtow"),)
+            shown_matches_reference(app.screen, app.conditions)
+            # Broken again on reload from the compare screen: the list again, table kept.
+            fleet.write_text("[catalogue\n", encoding="utf-8")
+            await pilot.press("l")
+            await settle(app, pilot)
+            assert isinstance(app.screen, ProblemsScreen)
+            await pilot.press("escape")
+            assert isinstance(app.screen, CompareScreen) and app.catalogue.path == fleet
+    run(body)
+
+
+def test_start_on_a_broken_catalogue(tmp_path: Path):
+    fleet = tmp_path / "fleet.toml"
+    fleet.write_bytes(b"\x00\x01binary")
+
+    async def body():
+        app = VariantCmpApp(str(fleet))
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            assert isinstance(app.screen, ProblemsScreen) and app.catalogue is None
+            await pilot.press("escape")
+            assert "No catalogue loaded" in shown_text(app.screen.query_one("#status"))
+            for key in ("s", "b", "i", "e", "slash"):  # nothing to act on, nothing breaks
+                await pilot.press(key)
+            await pilot.press("escape")
+            shutil.copyfile(demo_catalogue_path(), fleet)
+            await pilot.press("l")
+            await settle(app, pilot)
+            assert app.catalogue is not None
+            shown_matches_reference(app.screen, Conditions())
+    run(body)
+
+
+def test_export_and_overwrite_only_when_confirmed(tmp_path: Path):
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            expected = reference(Conditions())
+            target = tmp_path / "ceilings.csv"
+            await pilot.press("e")
+            assert isinstance(app.screen, ExportDialog)
+            field = app.screen.query_one("#path")
+            field.value = str(tmp_path / "ceilings.xlsx")
+            await pilot.press("enter")
+            assert ".csv, .parquet or .json" in shown_text(app.screen.query_one("#export-error"))
+            field.value = str(target)
+            await pilot.press("enter")
+            await pilot.pause()
+            assert isinstance(app.screen, CompareScreen)
+            assert_frame_equal(pl.read_csv(target), expected, check_dtypes=False)
+            # Same name again: asks; "n" keeps the file untouched.
+            target.write_text("keep me", encoding="utf-8")
+            await pilot.press("e")
+            app.screen.query_one("#path").value = str(target)
+            await pilot.press("enter")
+            assert isinstance(app.screen, ConfirmDialog)
+            await pilot.press("n")
+            assert isinstance(app.screen, ExportDialog)
+            assert "Not written" in shown_text(app.screen.query_one("#export-error"))
+            assert target.read_text(encoding="utf-8") == "keep me"
+            # Enter on the focused button is "keep" as well: the safe choice has the focus.
+            await pilot.press("enter", "enter")
+            assert target.read_text(encoding="utf-8") == "keep me"
+            # "y" overwrites.
+            await pilot.press("enter", "y")
+            await pilot.pause()
+            assert isinstance(app.screen, CompareScreen)
+            assert_frame_equal(pl.read_csv(target), expected, check_dtypes=False)
+            # Parquet and JSON, of the filtered view.
+            app.screen.query_one("#filter").value = "v104"
+            await pilot.pause()
+            for name, read in (("c.parquet", pl.read_parquet), ("c.json", pl.read_json)):
+                await pilot.press("escape", "e")
+                app.screen.query_one("#path").value = str(tmp_path / name)
+                await pilot.press("enter")
+                await pilot.pause()
+                assert_frame_equal(read(tmp_path / name), expected.filter(pl.col("variant") == "v104"),
+                                   check_dtypes=False)
+            assert app.last_export and "c.json" in app.last_export
+    run(body)
+
+
+def test_help_lists_every_key_and_the_caution():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await pilot.press("f1")
+            assert isinstance(app.screen, HelpScreen)
+            shown = shown_text(app.screen.query_one("#help-text"))
+            assert " ".join(CAUTION.split()) in " ".join(shown.split())
+            for cls in (VariantCmpApp, CompareScreen, HotDayScreen, VariantScreen, ProblemsScreen, ExportDialog):
+                for binding in cls.BINDINGS:
+                    assert binding.description in shown
+            await pilot.press("escape")
+            assert isinstance(app.screen, CompareScreen)
+            await pilot.press("question_mark")
+            assert isinstance(app.screen, HelpScreen)
+            await pilot.press("question_mark")
+            assert isinstance(app.screen, CompareScreen)
+    run(body)
+
+
+def test_theme_toggle_resize_and_quit():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            assert app.current_theme.dark
+            await pilot.press("t")
+            assert not app.current_theme.dark
+            await pilot.press("t")
+            assert app.current_theme.dark
+            for size in ((200, 60), (60, 18), (80, 24)):
+                await pilot.resize_terminal(*size)
+                await pilot.pause()
+                assert app.screen.query_one("#table").region.height > 0
+                app.export_screenshot()  # renders without error at every size
+            await pilot.press("q")
+            await pilot.pause()
+        assert app.return_code == 0
+    run(body)
+
+
+def test_no_color(monkeypatch: pytest.MonkeyPatch):
+    monkeypatch.setenv("NO_COLOR", "1")
+
+    async def body():
+        app = VariantCmpApp(None)
+        assert app.no_color
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            svg = app.export_screenshot()
+            assert "Caution" in svg
+            shown_matches_reference(app.screen, Conditions())
+    run(body)

@@ -1,0 +1,28 @@
+"""A small benchmark run: the command works and vectorised and scalar answers agree."""
+
+import json
+
+from variantcmp.cli import main
+
+
+def test_bench_small_run_agrees_with_scalar_reference(capsys):
+    assert main(["bench", "--cases", "3000", "--best-cases", "200", "--scalar-cases", "150", "--format", "json"]) == 0
+    figures = json.loads(capsys.readouterr().out)
+    for key in ("cases", "seconds", "cases_per_s", "best_speed_cases_per_s", "scalar_cases_per_s", "speedup",
+                "max_abs_diff_ft", "grid_ms", "peak_rss_mb"):
+        assert key in figures
+    assert figures["cases"] == 3000
+    # Independent scalar method (floats, math, brentq): agreement within 1 ft is the target.
+    assert figures["max_abs_diff_ft"] is not None and figures["max_abs_diff_ft"] < 1.0
+    assert figures["scalar_mismatched_cases"] == 0
+
+
+def test_bench_table_output(capsys):
+    assert main(["bench", "--cases", "500", "--best-cases", "50", "--scalar-cases", "20"]) == 0
+    out = capsys.readouterr().out
+    assert "scalar" in out and "speed-up" in out and "Caution" in out
+
+
+def test_bench_rejects_bad_counts(capsys):
+    assert main(["bench", "--cases", "lots"]) == 2
+    assert "whole number" in capsys.readouterr().err
