@@ -14,6 +14,7 @@ import tempfile
 from pathlib import Path
 
 from variantcmp.app import VariantCmpApp
+from variantcmp.catalogue import demo_catalogue_path
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -88,23 +89,35 @@ async def shoot(size: tuple[int, int], out: Path) -> list[Path]:
         await pilot.press("escape")
 
         # A broken catalogue: its problems, in the app.
-        with tempfile.TemporaryDirectory() as tmp:
-            broken = Path(tmp) / "broken-fleet.toml"
-            broken.write_text(
-                '[catalogue]\ntitle = "Broken example"\n\n[[engine]]\nid = "e1"\nmodel = "density-lapse"\n'
-                'static_thrust_kn = -5\n\n[[variant]]\nid = "a1"\nengine_options = ["e9"]\n'
-                'engine_count = 2\nwing_area_m2 = 80\naspect_ratio = 9\noswald_e = 0.8\ncd0 = nan\n'
-                'cl_max = 1.4\nmtow_kg = 40000\ncruise_mach = 0.74\nwing_span_m = 30\n',
-                encoding="utf-8",
-            )
-            await pilot.press("o")
-            await settle(app, pilot)
-            field = app.screen.query_one("#path")
-            field.value = str(broken)
-            await pilot.press("enter")
-            await settle(app, pilot)
-            save(app, "catalogue-problems")
-            await pilot.press("escape")
+        # A fixed folder keeps the path in the picture the same from run to run.
+        folder = Path(tempfile.gettempdir()) / "variantcmp-screenshots"
+        folder.mkdir(exist_ok=True)
+        broken = folder / "broken-fleet.toml"
+        broken.write_text(
+            '[catalogue]\ntitle = "Broken example"\n\n[[engine]]\nid = "e1"\nmodel = "density-lapse"\n'
+            'static_thrust_kn = -5\n\n[[variant]]\nid = "a1"\nengine_options = ["e9"]\n'
+            'engine_count = 2\nwing_area_m2 = 80\naspect_ratio = 9\noswald_e = 0.8\ncd0 = nan\n'
+            'cl_max = 1.4\nmtow_kg = 40000\ncruise_mach = 0.74\nwing_span_m = 30\n',
+            encoding="utf-8",
+        )
+        await pilot.press("o")
+        await settle(app, pilot)
+        field = app.screen.query_one("#path")
+        field.value = str(broken)
+        await pilot.press("enter")
+        await settle(app, pilot)
+        save(app, "catalogue-problems")
+        await pilot.press("escape", "o")
+        await settle(app, pilot)
+        app.screen.query_one("#path").value = str(demo_catalogue_path())
+        await pilot.press("enter")
+        await settle(app, pilot)
+
+        # A sweep: one row per weight and deviation.
+        await type_into(pilot, "#field-weight", "90%mtow,100%mtow")
+        await type_into(pilot, "#field-isa", "0,15")
+        await settle(app, pilot)
+        save(app, "compare-sweep")
 
         app.action_toggle_theme()
         await settle(app, pilot)

@@ -8,7 +8,6 @@ solvers work on whole arrays and never loop over cases.
 from __future__ import annotations
 
 import dataclasses
-import itertools
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -146,7 +145,9 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
     for vid, eid in pairs:
         v, e = variants[vid], engines[eid]
         weights = np.asarray(weights_kg_per_variant(v), dtype=float)
-        grid = np.array(list(itertools.product(weights, dev, np.asarray(climbs_fpm, dtype=float))), dtype=float).reshape(-1, 3)
+        # Cartesian product, weight slowest and climb fastest (the documented row order).
+        mesh = np.meshgrid(weights, dev, np.asarray(climbs_fpm, dtype=float), indexing="ij")
+        grid = np.stack([m.ravel() for m in mesh], axis=1)
         n = grid.shape[0]
         if mach == "best":
             m = np.nan

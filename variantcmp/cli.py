@@ -487,7 +487,19 @@ def _run_app(catalogue_text: str | None) -> int:
 
 # --- parser and entry point -------------------------------------------------------------------
 
-COMMANDS: list[Callable] = [_add_ceilings, _add_check]
+# Commands that live in their own modules are registered through a lazy import: those modules
+# import this one for its helpers, so importing them at the top would be circular.
+
+def _add_envelope(subparsers) -> None:
+    from variantcmp.plots_cli import add_envelope_command
+
+    add_envelope_command(subparsers)
+
+
+def _add_sweep(subparsers) -> None:
+    from variantcmp.plots_cli import add_sweep_command
+
+    add_sweep_command(subparsers)
 
 
 def _add_bench(subparsers) -> None:
@@ -496,7 +508,8 @@ def _add_bench(subparsers) -> None:
     add_bench_command(subparsers)
 
 
-COMMANDS.append(_add_bench)
+#: One function per subcommand, in the order `variantcmp --help` lists them.
+COMMANDS: list[Callable] = [_add_ceilings, _add_envelope, _add_sweep, _add_check, _add_bench]
 
 MAIN_DESCRIPTION = """\
 Compare the maximum altitudes of aircraft variants and engine options across

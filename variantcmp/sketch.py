@@ -64,7 +64,7 @@ _BOUNDARY_KIND = {"stall_1g": "stall", "buffet_low_1g": "buffet_1g", "buffet_hig
                   "thrust_min": "thrust", "thrust_max": "thrust", "vmo": "vmo", "mmo": "mmo"}
 #: Overlaid cases and sweep series: one style each, tagged by number.
 SERIES_STYLES = (
-    LineStyle("", SOLID, "o", "1", "cyan"), LineStyle("", DASHED, "x", "2", "yellow"),
+    LineStyle("", SOLID, "o", "1", "cyan"), LineStyle("", DASHED, "+", "2", "yellow"),
     LineStyle("", DOTTED, "~", "3", "magenta"), LineStyle("", DASH_DOT, "#", "4", "green"),
     LineStyle("", LONG_DASH, "%", "5", "red"), LineStyle("", SPARSE, ":", "6", "blue"),
 )
@@ -324,8 +324,11 @@ class Plot:
             if all(ch == " " for ch in labels[max(0, start - 1):start + len(text) + 1]):
                 labels[start:start + len(text)] = list(text)
         name = f" {self.x_name}"
-        if all(ch == " " for ch in labels[w - len(name) - 1:]):
-            labels[w - len(name):] = list(name)
+        cut = w - len(name)
+        while cut > 0 and labels[cut - 1] != " ":  # drop a tick label the axis name would cut
+            cut -= 1
+        labels[cut:] = [" "] * (w - cut)
+        labels[w - len(name):] = list(name)
         lines.append("".join(axis)[:w].ljust(w))
         lines.append("".join(labels)[:w].ljust(w))
         spans += [[], []]
@@ -505,7 +508,7 @@ def draw_sweep(sw, width: int = 80, height: int = 24, ascii: bool = False) -> Dr
     cond = sw.conditions
     what = {"weight": "weight", "isa": "ISA deviation", "mach": "Mach"}[sw.over]
     speed = ("best Mach" if cond.mach == "best" else "cruise Mach" if cond.mach == "cruise" else f"M{cond.mach:.2f}")
-    title = f"Maximum altitude against {what}" + ("" if sw.over == "mach" else f"  at {speed}")
+    title = f"Max altitude vs {what}" + ("" if sw.over == "mach" else f"  {speed}")
     if sw.over != "weight" and len(cond.weights) == 1:
         title += f"  {cond.weights[0]}"
     if sw.over != "isa" and len(cond.isa_devs_c) == 1:

@@ -19,7 +19,7 @@ from .aero import energy_share_factor, korn_coefficients, lock_wave_drag
 from .airspeed import pressure_for_cas_at_mach_pa
 from .atmosphere import G0, GAMMA, MODEL_TOP_M, R_AIR, isa_state, pressure_altitude_m, speed_of_sound_ms
 from .cases import FLOOR_M, FT, MODEL_CODES, CaseSet
-from .thrust import density_lapse_fraction, hot_day_factor, turbofan_lapse_fraction
+from .thrust import density_lapse_fraction, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms
 
 LIMITS = ("thrust", "buffet", "stall", "certified", "cabin")
 
@@ -39,10 +39,12 @@ SCAN_LEVELS_M = np.concatenate([
     [FLOOR_M], np.arange(0.0, 21_000.0, 1_000.0), [22_500.0, 25_000.0, 28_000.0, 32_000.0,
                                                    38_000.0, 47_000.0, 60_000.0, MODEL_TOP_M]])
 QUICK_CL_FRACTION = 0.6
+WARM_HALF_WIDTH_M = 250.0
 ROOT_TOL_M = 0.003  # about 0.01 ft
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
-BEST_MACH_GRID = 12
+BEST_MACH_GRID = 8
 BEST_MACH_ITERATIONS = 18
+SMOOTH_ITERATIONS = 12
 CHUNK = 65_536
 
 
@@ -104,21 +106,35 @@ class ClimbPhysics:
         self.m_crit0, self.m_crit_slope = korn_coefficients(cs.thickness_ratio, cs.sweep_deg, cs.korn_factor)
         self.has_wave = bool(np.isfinite(self.m_crit0).any())
         self.lapse_above = np.where(np.isnan(cs.lapse_exponent_above), cs.lapse_exponent, cs.lapse_exponent_above)
+        self._terms = None
 
-    def thrust_fraction(self, altitude_m, mach, t, p, rho, col):
+    def _mach_terms(self, mach):
+        """Per-case constants that depend on the Mach only, cached for the Mach array in use."""
+        if self._terms is not None and self._terms[0] is mach:
+            return self._terms[1]
+        m = np.asarray(mach, dtype=float)
+        terms = {"m": m, "qs_per_p": self.qs_per_pm2 * m * m}
+        if any(code == 1 for code, _, _ in self.groups):
+            terms["turbofan"] = turbofan_mach_terms(m)
+        self._terms = (mach, terms)
+        return terms
+
+    def thrust_fraction(self, altitude_m, terms, t, p, col):
         """F / (F_SLS at rating) for every case, each engine model on its own group."""
         cs = self.cases
-        out = np.empty(np.broadcast_shapes(altitude_m.shape, col(cs.mach).shape))
+        out = np.empty(np.broadcast_shapes(np.shape(altitude_m), np.shape(t)))
         for code, tid, idx in self.groups:
             sub = (lambda a: col(a)[idx]) if not isinstance(idx, slice) else col
             rows = (lambda a: np.broadcast_to(a, out.shape)[idx])
             if code == 0:
-                frac = density_lapse_fraction(rows(rho), sub(cs.lapse_exponent), sub(cs.tropopause_density_kg_m3),
+                rho = rows(p) / (R_AIR * rows(t))
+                frac = density_lapse_fraction(rho, sub(cs.lapse_exponent), sub(cs.tropopause_density_kg_m3),
                                               sub(self.lapse_above))
             elif code == 1:
-                frac = turbofan_lapse_fraction(rows(mach), rows(t), rows(p), sub(cs.throttle_ratio))
+                frac = turbofan_lapse_from_terms(rows(t), rows(p), sub(cs.throttle_ratio),
+                                                 tuple(sub(x) for x in terms["turbofan"]))
             else:
-                frac = cs.tables[tid](rows(altitude_m) / FT, rows(mach))
+                frac = cs.tables[tid](rows(altitude_m) / FT, rows(col(terms["m"])))
             out[idx] = frac
         return out
 
@@ -132,18 +148,27 @@ class ClimbPhysics:
         cs = self.cases
         h = np.asarray(altitude_m, dtype=float)
         col = (lambda a: a[:, None]) if h.ndim == 2 else (lambda a: a)
-        m = col(cs.mach if mach is None else mach)
+        terms = self._mach_terms(cs.mach if mach is None else mach)
+        m = col(terms["m"])
         t_isa, p, lapse = isa_state(h)
         t = t_isa + col(cs.isa_dev_c)
+        q_s = col(terms["qs_per_p"]) * p
         w = col(self.w_n)
-        q_s = col(self.qs_per_pm2) * (m * m) * p
         cl = w / q_s
-        cd = col(cs.cd0) + col(cs.k) * (cl * cl)
+        cd = cl * cl
+        cd *= col(cs.k)
+        cd += col(cs.cd0)
         if self.has_wave:
             cd += lock_wave_drag(m, col(self.m_crit0) - col(self.m_crit_slope) * cl)
-        thrust = col(self.thrust_n) * self.thrust_fraction(h, m, t, p, p / (R_AIR * t), col)
-        v = m * speed_of_sound_ms(t)
-        return (thrust - q_s * cd) * v / w * (t_isa / t) * energy_share_factor(m, t, t_isa, lapse)
+        excess_n = self.thrust_fraction(h, terms, t, p, col)
+        excess_n *= col(self.thrust_n)
+        excess_n -= q_s * cd
+        ratio = t_isa / t
+        rate = excess_n * (m * speed_of_sound_ms(t))
+        rate /= w
+        rate *= ratio
+        rate *= energy_share_factor(m, t, t_isa, lapse)
+        return rate
 
     def excess(self, altitude_m, mach=None):
         col = (lambda a: a[:, None]) if np.ndim(altitude_m) == 2 else (lambda a: a)
@@ -201,16 +226,32 @@ def _golden_max(func, a, b, iterations):
     return np.where(best, c1, c2), np.where(best, f1, f2)
 
 
-def thrust_ceiling_m(phys: ClimbPhysics, mach):
+def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None):
     """Highest pressure altitude (m) with the required residual climb at a Mach, and flags.
 
-    Quick bracket first: where the Mach flies the polar at 0.6 CL* (CL* at L/D max) the excess
-    climb rate is usually near its peak, and at CLmax far past it; the top root lies between.
-    Cases where that bracket does not hold go through the full altitude scan.
+    With ``guess_m`` (the answer at a nearby speed) the root is first bracketed tightly around
+    it. Otherwise, or where that fails, a quick bracket: where the Mach flies the polar at 0.6 CL*
+    (CL* at L/D max) the excess climb rate is usually near its peak, and at CLmax far past it; the
+    top root lies between. Cases where neither holds go through the full altitude scan.
     """
     cs = phys.cases
     n = len(cs)
     top = np.minimum(cs.top_m, MODEL_TOP_M)
+    if guess_m is not None:
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            a = np.clip(guess_m - WARM_HALF_WIDTH_M, cs.floor_m, top)
+            b = np.clip(guess_m + WARM_HALF_WIDTH_M, cs.floor_m, top)
+            fa, fb = phys.excess(a, mach), phys.excess(b, mach)
+        warm = np.isfinite(guess_m) & (fa >= 0.0) & (fb < 0.0) & (b > a)
+        if warm.any():
+            result, flags = np.full(n, np.nan), np.zeros(n, dtype=np.int32)
+            cold, hot = np.flatnonzero(~warm), np.flatnonzero(warm)
+            if cold.size:
+                result[cold], flags[cold] = thrust_ceiling_m(phys.subset(cold), mach[cold])
+            sub = phys if hot.size == n else phys.subset(hot)
+            with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+                result[hot] = _illinois(sub, mach[hot], a[hot], b[hot], fa[hot], fb[hot])
+            return result, flags
     qs = phys.qs_per_pm2 * mach * mach
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         a = np.clip(pressure_altitude_m(phys.w_n / (qs * QUICK_CL_FRACTION * np.sqrt(cs.cd0 / cs.k))), cs.floor_m, top)
@@ -311,10 +352,29 @@ def closed_form_ceilings_m(cases: CaseSet, mach):
     return buffet, stall, cabin, vmo_floor
 
 
-def _fixed_mach(phys: ClimbPhysics, mach) -> Ceilings:
+def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=True) -> Ceilings:
+    """Every limit at a fixed Mach per case, and the maximum altitude where all are met.
+
+    With ``thrust_needed=False`` (only the maximum altitude is wanted) the thrust root is not
+    sought where thrust still climbs at the lowest of the other limits: its ceiling is then
+    reported as +inf (not computed) and does not bind.
+    """
     cs = phys.cases
-    thrust, flags = thrust_ceiling_m(phys, mach)
     buffet, stall, cabin, vmo_floor = closed_form_ceilings_m(cs, mach)
+    skipped = np.zeros(len(cs), dtype=bool)
+    if thrust_needed:
+        thrust, flags = thrust_ceiling_m(phys, mach, thrust_guess_m)
+    else:
+        other = np.fmin(np.fmin(np.where(np.isnan(buffet), np.inf, buffet), stall), np.fmin(cs.certified_m, cabin))
+        inside = np.isfinite(other) & (other >= cs.floor_m) & (other <= np.minimum(cs.top_m, MODEL_TOP_M))
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            skipped = inside & (phys.excess(np.where(inside, other, 0.0), mach) >= 0.0)
+        thrust, flags = np.full(len(cs), np.inf), np.zeros(len(cs), dtype=np.int32)
+        todo = np.flatnonzero(~skipped)
+        if todo.size:
+            sub = phys if todo.size == len(cs) else phys.subset(todo)
+            guess = None if thrust_guess_m is None else thrust_guess_m[todo]
+            thrust[todo], flags[todo] = thrust_ceiling_m(sub, mach[todo], guess)
     flags[(cs.buffet_id >= 0) & np.isnan(buffet)] |= NO_BUFFET_AT_MACH
     # A ceiling beyond the thrust table is unknown; the other limits may still bind below its top.
     thrust_for_min = np.where(flags & THRUST_DATA_TOP, np.inf, thrust)
@@ -333,7 +393,7 @@ def _fixed_mach(phys: ClimbPhysics, mach) -> Ceilings:
         low = max_alt < FLOOR_M
         flags[low] |= BELOW_FLOOR
     # Thrust may only work above the other limits' ceiling (high speed at low level): check there.
-    check = np.flatnonzero(np.isfinite(max_alt) & (limit > 0) & ~bad_vmo & ~low & ~bad_mmo)
+    check = np.flatnonzero(np.isfinite(max_alt) & (limit > 0) & ~bad_vmo & ~low & ~bad_mmo & ~skipped)
     if check.size:
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             e = phys.subset(check).excess(max_alt[check], mach[check])
@@ -355,40 +415,59 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     n, g = len(cs), BEST_MACH_GRID
     frac = np.linspace(0.0, 1.0, g)
     grid = cs.mach_low[:, None] + (cs.mach_high - cs.mach_low)[:, None] * frac[None, :]
-    rep = ClimbPhysics(cs.repeat(g))
-    at_grid = _fixed_mach(rep, grid.ravel())
+    # The grid speeds one after another, each thrust root started from the previous speed's.
+    columns, guess = [], None
+    for j in range(g):
+        columns.append(_fixed_mach(phys, np.ascontiguousarray(grid[:, j]), guess))
+        guess = columns[-1].thrust_m if guess is None else np.where(np.isfinite(columns[-1].thrust_m),
+                                                                    columns[-1].thrust_m, guess)
+    at_grid = Ceilings(**{k: np.stack([getattr(c, k) for c in columns], axis=1).ravel()
+                          for k in Ceilings.__dataclass_fields__})
     rows = np.arange(n)
+    thrust_grid = at_grid.thrust_m.reshape(n, g)
+    span = np.where(cs.mach_high > cs.mach_low, cs.mach_high - cs.mach_low, 1.0)
+
+    def thrust_guess(m):
+        """Thrust ceiling at a speed between grid speeds, interpolated: a start for the root."""
+        u = np.clip((m - cs.mach_low) / span * (g - 1), 0.0, g - 1.0)
+        j = np.minimum(u.astype(np.int64), g - 2) if g > 1 else np.zeros(n, dtype=np.int64)
+        lo_v, hi_v = thrust_grid[rows, j], thrust_grid[rows, np.minimum(j + 1, g - 1)]
+        mid = lo_v + (u - j) * (hi_v - lo_v)
+        return np.where(np.isfinite(mid), mid, np.where(np.isfinite(lo_v), lo_v, hi_v))
 
     def bracket(values):
         i = np.argmax(_objective(values.reshape(n, g)), axis=1)
         return grid[rows, np.maximum(i - 1, 0)], grid[rows, np.minimum(i + 1, g - 1)]
 
-    def score(res):
+    def score(res, m=None):
         # Highest altitude first; where a flat limit (certified, cabin) makes many speeds equal,
-        # prefer the speed with the most room under the aerodynamic and thrust limits.
-        room = np.fmin(np.fmin(res.thrust_m, res.buffet_m), res.stall_m)
+        # prefer the speed with the most room under the aerodynamic and thrust limits (a thrust
+        # ceiling not computed is taken from the grid).
+        thrust = res.thrust_m if m is None else np.where(np.isposinf(res.thrust_m), thrust_guess(m), res.thrust_m)
+        room = np.fmin(np.fmin(thrust, res.buffet_m), res.stall_m)
         return _objective(res.max_altitude_m) + 1e-3 * np.where(np.isfinite(room), room, 0.0)
 
     def max_alt_at(idx, m):
-        return score(_fixed_mach(phys.subset(idx) if idx.size != n else phys, m))
+        return score(_fixed_mach(phys, m, thrust_guess(m), thrust_needed=False), m)
 
     lo, hi = bracket(score(at_grid))
     m_best, _ = _golden_max(max_alt_at, lo, hi, BEST_MACH_ITERATIONS)
     # Keep the best grid point when the refinement found nothing better (flat or infeasible).
     grid_score = score(at_grid).reshape(n, g)
     grid_best = np.argmax(grid_score, axis=1)
-    final = _fixed_mach(phys, m_best)
+    final = _fixed_mach(phys, m_best, thrust_guess(m_best))
     worse = score(final) < grid_score[rows, grid_best]
     if worse.any():
         m_best = np.where(worse, grid[rows, grid_best], m_best)
-        final = _fixed_mach(phys, m_best)
+        final = _fixed_mach(phys, m_best, thrust_guess(m_best))
 
     # Each limit's own best-speed ceiling, reported beside the combined one.
     def thrust_at(idx, m):
-        return _objective(thrust_ceiling_m(phys.subset(idx) if idx.size != n else phys, m)[0])
+        return _objective(thrust_ceiling_m(phys, m, thrust_guess(m))[0])
 
+    # A smooth maximum: its altitude is second-order in the speed error, so fewer steps do.
     lo, hi = bracket(at_grid.thrust_m)
-    _, thrust_best = _golden_max(thrust_at, lo, hi, BEST_MACH_ITERATIONS)
+    _, thrust_best = _golden_max(thrust_at, lo, hi, SMOOTH_ITERATIONS)
     thrust_grid = _objective(at_grid.thrust_m.reshape(n, g)).max(axis=1)
     thrust_best = np.maximum.reduce([thrust_best, thrust_grid, _objective(final.thrust_m)])
 

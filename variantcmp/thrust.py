@@ -55,10 +55,25 @@ def turbofan_lapse_fraction(mach, temperature_k, pressure_pa, throttle_ratio=1.0
     TR the throttle ratio (theta0 at which the engine reaches its temperature limit). Hot days
     raise theta0 and so lower thrust once theta0 > TR. Clipped at zero thrust.
     """
+    return turbofan_lapse_from_terms(temperature_k, pressure_pa, throttle_ratio, turbofan_mach_terms(mach))
+
+
+def turbofan_mach_terms(mach):
+    """The Mach-only factors of :func:`turbofan_lapse_fraction` (computed once per Mach).
+
+    Returns (ram temperature ratio, ram pressure ratio, 1 - 0.49 sqrt(M), 1.5 + M); same source.
+    """
     m = np.asarray(mach, dtype=float)
-    theta0, delta0 = stagnation_ratios(m, temperature_k, pressure_pa)
-    base = 1.0 - 0.49 * np.sqrt(m)
-    hot = 3.0 * np.maximum(theta0 - np.asarray(throttle_ratio, dtype=float), 0.0) / (1.5 + m)
+    ram = 1.0 + 0.5 * (GAMMA - 1.0) * m * m
+    return ram, ram ** (GAMMA / (GAMMA - 1.0)), 1.0 - 0.49 * np.sqrt(m), 1.5 + m
+
+
+def turbofan_lapse_from_terms(temperature_k, pressure_pa, throttle_ratio, terms):
+    """:func:`turbofan_lapse_fraction` from precomputed :func:`turbofan_mach_terms` (same source)."""
+    ram, ram_p, base, denom = terms
+    theta0 = np.asarray(temperature_k) * (ram / T0_K)
+    delta0 = np.asarray(pressure_pa) * (ram_p / P0_PA)
+    hot = 3.0 * np.maximum(theta0 - np.asarray(throttle_ratio, dtype=float), 0.0) / denom
     return np.maximum(delta0 * (base - hot), 0.0)
 
 

@@ -168,13 +168,14 @@ class CompareScreen(Screen):
         columns = visible_columns(df)
         headers = [header(c, self.sort_key, self.descending, baseline is not None) for c in columns]
         rows = list(view.iter_rows(named=True))
-        labels, cells = justify(headers, [row_cells(columns, row, baseline) for row in rows])
+        cells = [row_cells(columns, row, baseline) for row in rows]
+        labels, widths = justify(headers, cells)
         keep = self.cursor_key()
         scroll_x = table.scroll_x
         # Rebuild columns too: their widths follow the padded cells.
         table.clear(columns=True)
-        for column, label in zip(columns, labels):
-            table.add_column(label, key=column.key)
+        for column, label, width in zip(columns, labels, widths):
+            table.add_column(label, key=column.key, width=width)
         for row, row_text in zip(rows, cells):
             table.add_row(*row_text, key=row[ROW_KEY])
         if keep is not None and keep in table.rows:

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from rich.text import Text
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -17,7 +16,7 @@ from variantcmp.units import OptionError, format_flight_level
 
 from .form import FIELDS_BY_KEY, parse_field
 from .results import Results, compute, export_frame
-from .view import COLUMNS_BY_KEY, MAKES_IT, NONE, ROW_KEY, SHORT_OF_IT, cell, justify
+from .view import COLUMNS_BY_KEY, MAKES_IT, NONE, ROW_KEY, SHORT_OF_IT, Cell, cell, justify
 
 LOOKUP_FIELDS = ("weight", "isa", "target")
 
@@ -137,22 +136,22 @@ class HotDayScreen(Screen):
         made = 0
         for row in rows:
             if target is None:
-                verdict, by = Text("set a target"), Text(NONE, justify="right")
+                verdict, by = Cell("set a target"), Cell(NONE, right=True)
             else:
                 made += bool(row.get("reaches_target"))
                 mark = f"{MAKES_IT} yes" if row.get("reaches_target") else f"{SHORT_OF_IT} no"
-                verdict = Text(mark if row.get("margin_ft") is not None else f"{SHORT_OF_IT} no altitude")
+                verdict = Cell(mark if row.get("margin_ft") is not None else f"{SHORT_OF_IT} no altitude")
                 by = cell(COLUMNS_BY_KEY["margin"], row)
-                by = Text(by.plain.rstrip(f" {MAKES_IT}{SHORT_OF_IT}"), justify="right")
+                by = Cell(by.plain.rstrip(f" {MAKES_IT}{SHORT_OF_IT}"), right=True)
             cells.append([
-                Text(row["variant"]), Text(row["engine"]), verdict, by,
+                Cell(row["variant"]), Cell(row["engine"]), verdict, by,
                 cell(COLUMNS_BY_KEY["fl"], row), cell(COLUMNS_BY_KEY["limit"], row),
                 *[cell(c, row) for c in extra],
-                cell(COLUMNS_BY_KEY["mach"], row), Text(row.get("note") or ""),
+                cell(COLUMNS_BY_KEY["mach"], row), Cell(row.get("note") or ""),
             ])
-        labels, cells = justify(headers, cells)
-        for label in labels:
-            table.add_column(label)
+        labels, widths = justify(headers, cells)
+        for label, width in zip(labels, widths):
+            table.add_column(label, width=width)
         for row, row_text in zip(rows, cells):
             table.add_row(*row_text, key=row[ROW_KEY])
         if keep is not None and keep in table.rows:

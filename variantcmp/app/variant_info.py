@@ -29,10 +29,21 @@ _NAMES = {
     "mtow_kg": "MTOW", "oew_kg": "OEW", "mmo": "MMO", "vmo_kt": "VMO",
     "max_altitude_ft": "certified maximum altitude", "oswald_e": "Oswald factor e",
     "ld_max": "best lift-to-drag ratio", "cl_star": "CL at best lift-to-drag",
+    "static_thrust_kn": "static thrust per engine", "flat_rate_isa_dev_c": "flat rated up to ISA+",
+    "lapse_exponent_above_tropopause": "lapse exponent above 11 km",
 }
+# Thrust-table grids are summarised in one line rather than listed value by value.
+_GRID_FIELDS = ("table_altitude_ft", "table_mach", "table_thrust_fraction")
+
+
+# Engine values that mean something only for one thrust model.
+_MODEL_FIELDS = {"lapse_exponent": "density-lapse", "lapse_exponent_above_tropopause": "density-lapse",
+                 "throttle_ratio": "turbofan"}
 
 
 def _name_and_unit(key: str) -> tuple[str, str]:
+    if key == "hot_day_loss_per_c":
+        return "thrust loss above flat rating", "fraction per °C"
     for suffix, unit in sorted(_UNITS, key=lambda item: -len(item[0])):
         if key.endswith(suffix):
             base = key[: -len(suffix)]
@@ -97,9 +108,9 @@ def engines_table(engines: list[Engine], per_engine: dict[str, dict]) -> Table:
     for engine in engines:
         table.add_column(engine.id, justify="right")
     names: list[str] = []
-    for engine in engines:
-        for key in [f.name for f in fields(engine) if f.name != "id"] + list(per_engine.get(engine.id, {})):
-            if key not in names:
+    for engine in engines:  # derived figures first, then the catalogue values
+        for key in list(per_engine.get(engine.id, {})) + [f.name for f in fields(engine) if f.name != "id"]:
+            if key not in names and key not in _GRID_FIELDS:
                 names.append(key)
     for key in names:
         label, unit = _name_and_unit(key)
@@ -108,10 +119,22 @@ def engines_table(engines: list[Engine], per_engine: dict[str, dict]) -> Table:
         for engine in engines:
             extra = per_engine.get(engine.id, {})
             value = extra[key] if key in extra else getattr(engine, key, None)
+            if _MODEL_FIELDS.get(key, engine.model) != engine.model:
+                value = None
             cells.append(_value(key, value))
         if any(c != NONE for c in cells):
             table.add_row(label, *cells)
+    if any(engine.table_altitude_ft for engine in engines):
+        table.add_row("thrust table", *[_grid_summary(engine) for engine in engines])
     return table
+
+
+def _grid_summary(engine: Engine) -> str:
+    if not engine.table_altitude_ft:
+        return NONE
+    alt, mach = engine.table_altitude_ft, engine.table_mach
+    return (f"{len(alt)} altitudes {format_altitude_ft(alt[0])} to {format_altitude_ft(alt[-1])} ft"
+            f" x {len(mach)} Mach {mach[0]:g} to {mach[-1]:g}")
 
 
 class VariantScreen(Screen):

@@ -41,6 +41,26 @@ MAKES_IT = "✓"
 SHORT_OF_IT = "✗"
 
 
+class Cell:
+    """The text of one table cell.
+
+    Not a Rich object and not a str: the table widget turns it into text only
+    when the row scrolls into view, and never reads it as markup.
+    """
+
+    __slots__ = ("plain", "right")
+
+    def __init__(self, plain: str, right: bool = False) -> None:
+        self.plain = plain
+        self.right = right  # a number: right-justified in its column
+
+    def __str__(self) -> str:
+        return self.plain
+
+    def __repr__(self) -> str:
+        return f"Cell({self.plain!r})"
+
+
 @dataclass(frozen=True)
 class Column:
     """One column of the compare table."""
@@ -134,65 +154,68 @@ def _signed_ft(value: float) -> str:
     return "±0" if whole == 0 else f"{whole:+,d}"
 
 
-def cell(column: Column, row: dict, baseline: dict | None = None) -> Text:
+def cell(column: Column, row: dict, baseline: dict | None = None) -> Cell:
     """The text of one cell; ``baseline`` (a row) turns difference columns into deltas."""
     value = row.get(column.source)
     kind = column.kind
-    justify = "right" if kind in _RIGHT else "left"
+    right = kind in _RIGHT
     if baseline is not None and column.diff and baseline.get(ROW_KEY) != row.get(ROW_KEY):
         base = baseline.get(column.source)
         if not (_finite(value) and _finite(base)):
-            return Text(NONE, justify=justify)
-        delta = value - base
+            return Cell(NONE, right)
         if kind == "mach":
-            return Text("±0" if abs(delta) < 5e-4 else f"{delta:+.3f}", justify=justify)
+            delta = value - base
+            return Cell("±0" if abs(delta) < 5e-4 else f"{delta:+.3f}", right)
         # Difference of the shown (rounded-down) altitudes, so the columns add up on screen.
-        return Text(_signed_ft(math.floor(value) - math.floor(base)), justify=justify)
+        return Cell(_signed_ft(math.floor(value) - math.floor(base)), right)
     if kind == "text":
         text = "" if value is None else str(value)
         if column.key == "variant" and baseline is not None and baseline.get(ROW_KEY) == row.get(ROW_KEY):
             text = f"{BASELINE_MARK} {text}"
-        return Text(text)
+        return Cell(text)
     if not _finite(value):
-        return Text(NONE, justify=justify)
+        return Cell(NONE, right)
     if kind == "ft":
-        return Text(format_altitude_ft(value), justify=justify)
+        return Cell(format_altitude_ft(value), right)
     if kind == "fl":
-        return Text(format_flight_level(value), justify=justify)
+        return Cell(format_flight_level(value), right)
     if kind == "limit":
-        return Text(f"{LIMIT_GLYPHS.get(value, '?')} {value}")
+        return Cell(f"{LIMIT_GLYPHS.get(value, '?')} {value}")
     if kind == "margin":
         mark = MAKES_IT if row.get("reaches_target") else SHORT_OF_IT
-        return Text(f"{_signed_ft(value)} {mark}", justify=justify)
+        return Cell(f"{_signed_ft(value)} {mark}", right)
     if kind == "mach":
-        return Text(f"{value:.3f}", justify=justify)
+        return Cell(f"{value:.3f}", right)
     if kind == "tonnes":
         mark = "*" if row.get("over_mtow") else ""
-        return Text(f"{value / 1000.0:.1f}{mark}", justify=justify)
+        return Cell(f"{value / 1000.0:.1f}{mark}", right)
     if kind == "isa":
-        return Text(format_isa_dev(value).removeprefix("ISA") or "0", justify=justify)
+        return Cell(format_isa_dev(value).removeprefix("ISA") or "0", right)
     if kind == "fpm":
-        return Text(f"{value:,.0f}", justify=justify)
-    return Text(str(value))
+        return Cell(f"{value:,.0f}", right)
+    return Cell(str(value))
 
 
-def row_cells(columns: list[Column], row: dict, baseline: dict | None = None) -> list[Text]:
+def row_cells(columns: list[Column], row: dict, baseline: dict | None = None) -> list[Cell]:
     return [cell(column, row, baseline) for column in columns]
 
 
-def justify(headers: list[str], rows: list[list[Text]]) -> tuple[list[Text], list[list[Text]]]:
-    """Pad right-justified cells to their column's width (the table widget does not justify)."""
-    count = len(headers)
+def justify(headers: list[str], rows: list[list[Cell]]) -> tuple[list[Text], list[int]]:
+    """Pad number cells (in place) to their column's width; the headers and the widths.
+
+    The table widget neither right-justifies nor needs to measure: it gets fixed widths.
+    """
     widths = [cell_len(h) for h in headers]
-    right = [False] * count
+    right = [False] * len(headers)
     for row in rows:
         for i, item in enumerate(row):
-            widths[i] = max(widths[i], item.cell_len)
-            right[i] = right[i] or item.justify == "right"
-    # A column reads as numbers when any of its cells is right-justified.
-    def pad(item: Text, i: int) -> Text:
-        if right[i] and item.cell_len < widths[i]:
-            return Text(" " * (widths[i] - item.cell_len) + item.plain)
-        return Text(item.plain)
-    padded_headers = [pad(Text(h), i) for i, h in enumerate(headers)]
-    return padded_headers, [[pad(item, i) for i, item in enumerate(row)] for row in rows]
+            width = cell_len(item.plain)
+            if width > widths[i]:
+                widths[i] = width
+            right[i] = right[i] or item.right
+    for row in rows:
+        for i, item in enumerate(row):
+            if right[i]:
+                item.plain = item.plain.rjust(widths[i] - cell_len(item.plain) + len(item.plain))
+    labels = [Text(h.rjust(widths[i] - cell_len(h) + len(h)) if right[i] else h) for i, h in enumerate(headers)]
+    return labels, widths
