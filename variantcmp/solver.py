@@ -44,7 +44,7 @@ ROOT_TOL_M = 0.003  # about 0.01 ft
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
 BEST_MACH_ITERATIONS = 18
-SMOOTH_ITERATIONS = 12
+SMOOTH_ITERATIONS = 6
 CHUNK = 65_536
 
 
@@ -66,6 +66,14 @@ class Ceilings:
     limit: np.ndarray  # index into LIMITS, -1 for none
     flags: np.ndarray
     vmo_floor_m: np.ndarray  # lowest altitude where the Mach stays within VMO (-inf: no VMO)
+
+    def take(self, index) -> "Ceilings":
+        return Ceilings(**{n: getattr(self, n)[index] for n in self.__dataclass_fields__})
+
+    def put(self, index, other: "Ceilings") -> None:
+        """Overwrite the cases at ``index`` with ``other``'s (same order)."""
+        for n in self.__dataclass_fields__:
+            getattr(self, n)[index] = getattr(other, n)
 
     @classmethod
     def concat(cls, parts: list["Ceilings"]) -> "Ceilings":
@@ -224,6 +232,58 @@ def _golden_max(func, a, b, iterations):
                           np.where(go_left, new, c2), np.where(go_left, fn, f2))
     best = f1 >= f2
     return np.where(best, c1, c2), np.where(best, f1, f2)
+
+
+def golden_max(func, a, b, iterations):
+    """Public name of the vectorised golden-section maximiser (used by the envelope solver)."""
+    return _golden_max(func, a, b, iterations)
+
+
+def _parabolic_max(func, grid, values, iterations):
+    """Vectorised successive parabolic interpolation for a smooth maximum, from a grid.
+
+    Each row of ``grid`` (speeds) with its ``values``; the bracket around the best grid point is
+    narrowed by the vertex of the parabola through the bracket ends and the best point, with a
+    golden-section step where the parabola is unusable (Brent, *Algorithms for Minimization
+    without Derivatives*, 1973, ch. 5). ``func(x)`` evaluates every row. Returns (x, f).
+    """
+    n, g = grid.shape
+    rows = np.arange(n)
+    i = np.argmax(values, axis=1)
+    a, b, c = grid[rows, np.maximum(i - 1, 0)], grid[rows, i], grid[rows, np.minimum(i + 1, g - 1)]
+    fa, fb, fc = values[rows, np.maximum(i - 1, 0)], values[rows, i], values[rows, np.minimum(i + 1, g - 1)]
+    for _ in range(iterations):
+        with np.errstate(invalid="ignore", divide="ignore"):
+            num = (b - a) ** 2 * (fb - fc) - (b - c) ** 2 * (fb - fa)
+            den = (b - a) * (fb - fc) - (b - c) * (fb - fa)
+            v = b - 0.5 * num / den
+        golden = np.where(c - b > b - a, b + (1 - GOLDEN) * (c - b), b - (1 - GOLDEN) * (b - a))
+        tiny = 1e-9 + 1e-6 * np.abs(c - a)
+        bad = ~np.isfinite(v) | (v <= a) | (v >= c) | (np.abs(v - b) < tiny)
+        v = np.where(bad, golden, v)
+        fv = func(v)
+        up = fv > fb
+        left = v < b
+        a, fa = np.where(up & ~left, b, np.where(~up & left, v, a)), np.where(up & ~left, fb, np.where(~up & left, fv, fa))
+        c, fc = np.where(up & left, b, np.where(~up & ~left, v, c)), np.where(up & left, fb, np.where(~up & ~left, fv, fc))
+        b, fb = np.where(up, v, b), np.where(up, fv, fb)
+    return b, fb
+
+
+def _interpolated_guess(cases: CaseSet, grid_values):
+    """Thrust ceiling between grid speeds, interpolated from the grid: a start for the root."""
+    n, g = grid_values.shape
+    rows = np.arange(n)
+    span = np.where(cases.mach_high > cases.mach_low, cases.mach_high - cases.mach_low, 1.0)
+
+    def guess(m):
+        u = np.clip((m - cases.mach_low) / span * (g - 1), 0.0, g - 1.0)
+        j = np.minimum(u.astype(np.int64), max(g - 2, 0))
+        lo_v, hi_v = grid_values[rows, j], grid_values[rows, np.minimum(j + 1, g - 1)]
+        mid = lo_v + (u - j) * (hi_v - lo_v)
+        return np.where(np.isfinite(mid), mid, np.where(np.isfinite(lo_v), lo_v, hi_v))
+
+    return guess
 
 
 def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None):
@@ -410,84 +470,89 @@ def _objective(values):
     return np.where(np.isnan(values), -np.inf, values)
 
 
+def _score(res: Ceilings, thrust_m):
+    """Highest altitude first; where a flat limit (certified, cabin) makes many speeds equal,
+    prefer the speed with the most room under the aerodynamic and thrust limits."""
+    room = np.fmin(np.fmin(thrust_m, res.buffet_m), res.stall_m)
+    return _objective(res.max_altitude_m) + 1e-3 * np.where(np.isfinite(room), room, 0.0)
+
+
 def _best_speed(phys: ClimbPhysics) -> Ceilings:
+    """Best speed per case: the Mach at which the feasible band closes highest.
+
+    1. The limits on a grid of speeds (each thrust root started from the previous speed's).
+    2. The thrust ceiling's own best speed, by parabolic refinement (a smooth maximum).
+    3. Where thrust, the certified or the cabin ceiling binds there, no speed does better (each is
+       an upper bound of the maximum altitude at every speed): done. Elsewhere (buffet or stall
+       binding, the coffin corner) a golden-section search on the combined maximum altitude.
+    """
     cs = phys.cases
     n, g = len(cs), BEST_MACH_GRID
-    frac = np.linspace(0.0, 1.0, g)
-    grid = cs.mach_low[:, None] + (cs.mach_high - cs.mach_low)[:, None] * frac[None, :]
-    # The grid speeds one after another, each thrust root started from the previous speed's.
+    rows = np.arange(n)
+    grid = cs.mach_low[:, None] + (cs.mach_high - cs.mach_low)[:, None] * np.linspace(0.0, 1.0, g)[None, :]
     columns, guess = [], None
     for j in range(g):
         columns.append(_fixed_mach(phys, np.ascontiguousarray(grid[:, j]), guess))
         guess = columns[-1].thrust_m if guess is None else np.where(np.isfinite(columns[-1].thrust_m),
                                                                     columns[-1].thrust_m, guess)
-    at_grid = Ceilings(**{k: np.stack([getattr(c, k) for c in columns], axis=1).ravel()
-                          for k in Ceilings.__dataclass_fields__})
-    rows = np.arange(n)
-    thrust_grid = at_grid.thrust_m.reshape(n, g)
-    span = np.where(cs.mach_high > cs.mach_low, cs.mach_high - cs.mach_low, 1.0)
+    at_grid = {k: np.stack([getattr(c, k) for c in columns], axis=1) for k in Ceilings.__dataclass_fields__}
+    thrust_grid = at_grid["thrust_m"]
+    guess_all = _interpolated_guess(cs, thrust_grid)
 
-    def thrust_guess(m):
-        """Thrust ceiling at a speed between grid speeds, interpolated: a start for the root."""
-        u = np.clip((m - cs.mach_low) / span * (g - 1), 0.0, g - 1.0)
-        j = np.minimum(u.astype(np.int64), g - 2) if g > 1 else np.zeros(n, dtype=np.int64)
-        lo_v, hi_v = thrust_grid[rows, j], thrust_grid[rows, np.minimum(j + 1, g - 1)]
-        mid = lo_v + (u - j) * (hi_v - lo_v)
-        return np.where(np.isfinite(mid), mid, np.where(np.isfinite(lo_v), lo_v, hi_v))
+    m_thrust, thrust_best = _parabolic_max(
+        lambda m: _objective(thrust_ceiling_m(phys, m, guess_all(m))[0]), grid, _objective(thrust_grid),
+        SMOOTH_ITERATIONS)
+    final = _fixed_mach(phys, m_thrust, guess_all(m_thrust))
+    m_best = m_thrust.copy()
 
-    def bracket(values):
-        i = np.argmax(_objective(values.reshape(n, g)), axis=1)
-        return grid[rows, np.maximum(i - 1, 0)], grid[rows, np.minimum(i + 1, g - 1)]
+    grid_res = Ceilings(**{k: v.ravel() for k, v in at_grid.items()})
+    grid_score = _score(grid_res, grid_res.thrust_m).reshape(n, g)
+    todo = np.flatnonzero(~(np.isfinite(final.max_altitude_m) & np.isin(final.limit, (0, 3, 4))))
+    if todo.size:
+        sub = phys.subset(todo)
+        guess_sub = _interpolated_guess(sub.cases, thrust_grid[todo])
+        gs = grid_score[todo]
+        i = np.argmax(gs, axis=1)
+        sg = grid[todo]
+        r = np.arange(todo.size)
+        lo, hi = sg[r, np.maximum(i - 1, 0)], sg[r, np.minimum(i + 1, g - 1)]
 
-    def score(res, m=None):
-        # Highest altitude first; where a flat limit (certified, cabin) makes many speeds equal,
-        # prefer the speed with the most room under the aerodynamic and thrust limits (a thrust
-        # ceiling not computed is taken from the grid).
-        thrust = res.thrust_m if m is None else np.where(np.isposinf(res.thrust_m), thrust_guess(m), res.thrust_m)
-        room = np.fmin(np.fmin(thrust, res.buffet_m), res.stall_m)
-        return _objective(res.max_altitude_m) + 1e-3 * np.where(np.isfinite(room), room, 0.0)
+        def combined(idx, m):
+            res = _fixed_mach(sub, m, guess_sub(m), thrust_needed=False)
+            return _score(res, np.where(np.isposinf(res.thrust_m), guess_sub(m), res.thrust_m))
 
-    def max_alt_at(idx, m):
-        return score(_fixed_mach(phys, m, thrust_guess(m), thrust_needed=False), m)
+        m_gold, _ = _golden_max(combined, lo, hi, BEST_MACH_ITERATIONS)
+        # The best of: the golden result, the best grid speed, the thrust-best speed.
+        candidates = [m_gold, sg[r, i], m_thrust[todo]]
+        results = [_fixed_mach(sub, m, guess_sub(m)) for m in candidates[:2]] + [final.take(todo)]
+        scores = np.stack([_score(res, res.thrust_m) for res in results])
+        pick = np.argmax(scores, axis=0)
+        for k, (m, res) in enumerate(zip(candidates, results)):
+            sel = np.flatnonzero(pick == k)
+            if sel.size:
+                m_best[todo[sel]] = m[sel]
+                final.put(todo[sel], res.take(sel))
 
-    lo, hi = bracket(score(at_grid))
-    m_best, _ = _golden_max(max_alt_at, lo, hi, BEST_MACH_ITERATIONS)
-    # Keep the best grid point when the refinement found nothing better (flat or infeasible).
-    grid_score = score(at_grid).reshape(n, g)
-    grid_best = np.argmax(grid_score, axis=1)
-    final = _fixed_mach(phys, m_best, thrust_guess(m_best))
-    worse = score(final) < grid_score[rows, grid_best]
-    if worse.any():
-        m_best = np.where(worse, grid[rows, grid_best], m_best)
-        final = _fixed_mach(phys, m_best, thrust_guess(m_best))
-
-    # Each limit's own best-speed ceiling, reported beside the combined one.
-    def thrust_at(idx, m):
-        return _objective(thrust_ceiling_m(phys, m, thrust_guess(m))[0])
-
-    # A smooth maximum: its altitude is second-order in the speed error, so fewer steps do.
-    lo, hi = bracket(at_grid.thrust_m)
-    _, thrust_best = _golden_max(thrust_at, lo, hi, SMOOTH_ITERATIONS)
-    thrust_grid = _objective(at_grid.thrust_m.reshape(n, g)).max(axis=1)
-    thrust_best = np.maximum.reduce([thrust_best, thrust_grid, _objective(final.thrust_m)])
+    thrust_best = np.maximum.reduce([thrust_best, _objective(thrust_grid).max(axis=1), _objective(final.thrust_m)])
 
     def buffet_at(idx, m):
-        return _objective(closed_form_ceilings_m(cs.take(idx), m)[0])
+        return _objective(closed_form_ceilings_m(cs, m)[0])
 
-    lo, hi = bracket(at_grid.buffet_m)
+    i = np.argmax(_objective(at_grid["buffet_m"]), axis=1)
+    lo, hi = grid[rows, np.maximum(i - 1, 0)], grid[rows, np.minimum(i + 1, g - 1)]
     _, buffet_best = _golden_max(buffet_at, lo, hi, BEST_MACH_ITERATIONS)
-    buffet_best = np.maximum.reduce([buffet_best, _objective(at_grid.buffet_m.reshape(n, g)).max(axis=1),
+    buffet_best = np.maximum.reduce([buffet_best, _objective(at_grid["buffet_m"]).max(axis=1),
                                      _objective(final.buffet_m)])
     stall_best = closed_form_ceilings_m(cs, cs.mach_high)[1]
 
-    grid_flags = np.bitwise_or.reduce(at_grid.flags.reshape(n, g), axis=1)
+    grid_flags = np.bitwise_or.reduce(at_grid["flags"], axis=1)
     # Where some speed still climbs at the top of the thrust table, the best-speed thrust
     # ceiling lies beyond the data: unknown, not the best of the other speeds.
     thrust_best[(grid_flags & THRUST_DATA_TOP).astype(bool)] = np.nan
     flags = final.flags.copy()
     nothing = np.isnan(final.max_altitude_m)
     # Explain a case no speed can fly by what every grid speed ran into.
-    flags[nothing] |= np.bitwise_and.reduce(at_grid.flags.reshape(n, g), axis=1)[nothing]
+    flags[nothing] |= np.bitwise_and.reduce(at_grid["flags"], axis=1)[nothing]
     flags[(grid_flags & THRUST_DATA_TOP).astype(bool)] |= THRUST_DATA_TOP
     unavailable = lambda v: np.where(np.isneginf(v), np.nan, v)  # noqa: E731
     return Ceilings(unavailable(thrust_best), np.where(cs.buffet_id >= 0, unavailable(buffet_best), np.inf),
