@@ -145,3 +145,22 @@ def test_stall_and_cabin_closed_forms(demo):
             p_cab = float(isa_pressure_pa(row["cabin_ceiling_ft"] * FT))
             expect = float(isa_pressure_pa(v.cabin_altitude_ft * FT)) - v.max_cabin_dp_kpa * 1000
             assert p_cab == pytest.approx(expect)
+
+
+def test_thrust_table_matches_scipy_bilinear():
+    # Reference: scipy.interpolate.RegularGridInterpolator(method="linear"), NaN outside the grid.
+    from scipy.interpolate import RegularGridInterpolator
+
+    alt = np.array([-2000.0, 0.0, 10000.0, 25000.0, 41000.0])
+    mach = np.array([0.0, 0.3, 0.6, 0.85])
+    frac = np.random.default_rng(3).uniform(0.1, 1.0, (alt.size, mach.size))
+    ours = thrust.TableLapse(alt, mach, frac)
+    ref = RegularGridInterpolator((alt, mach), frac, method="linear", bounds_error=False, fill_value=np.nan)
+    rng = np.random.default_rng(4)
+    pts_alt = np.concatenate([rng.uniform(-3000.0, 42000.0, 2000), alt, [41000.0, -2000.0]])
+    pts_mach = np.concatenate([rng.uniform(-0.05, 0.9, 2000), mach[[0, 1, 2, 3, 3]], [0.85, 0.0]])
+    expect = ref(np.stack([pts_alt, pts_mach], axis=1))
+    got = ours(pts_alt, pts_mach)
+    np.testing.assert_array_equal(np.isnan(got), np.isnan(expect))
+    ok = ~np.isnan(expect)
+    np.testing.assert_allclose(got[ok], expect[ok], rtol=1e-12, atol=1e-12)

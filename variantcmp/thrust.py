@@ -97,20 +97,31 @@ def hot_day_factor(isa_dev_c, flat_rate_isa_dev_c=None, hot_day_loss_per_c=0.0):
 class TableLapse:
     """Thrust fraction read from a grid of pressure altitude (ft) x Mach at ISA.
 
-    Bilinear interpolation (scipy.interpolate.RegularGridInterpolator, method "linear"). A point
-    outside the grid gives NaN: the table's range is where the data stops, never extrapolated.
+    Bilinear interpolation on the rectilinear grid (the "linear" method of
+    scipy.interpolate.RegularGridInterpolator, which the tests use as the reference; written in
+    numpy here because the solver calls it millions of times and importing scipy.interpolate
+    costs the terminal app half a second at start). A point outside the grid gives NaN: the
+    table's range is where the data stops, never extrapolated.
     """
 
     def __init__(self, altitude_ft, mach, fraction):
-        from scipy.interpolate import RegularGridInterpolator
-
         self.altitude_ft = np.asarray(altitude_ft, dtype=float)
         self.mach = np.asarray(mach, dtype=float)
-        self._interp = RegularGridInterpolator(
-            (self.altitude_ft, self.mach), np.asarray(fraction, dtype=float),
-            method="linear", bounds_error=False, fill_value=np.nan)
+        self.fraction = np.asarray(fraction, dtype=float)
+        self._flat = self.fraction.ravel()
 
     def __call__(self, altitude_ft, mach):
-        alt = np.asarray(altitude_ft, dtype=float)
-        m = np.broadcast_to(np.asarray(mach, dtype=float), alt.shape)
-        return self._interp(np.stack([alt.ravel(), m.ravel()], axis=-1)).reshape(alt.shape)
+        xs, ys = self.altitude_ft, self.mach
+        x = np.asarray(altitude_ft, dtype=float)
+        y = np.broadcast_to(np.asarray(mach, dtype=float), x.shape)
+        i = np.clip(np.searchsorted(xs, x, side="right") - 1, 0, xs.size - 2)
+        j = np.clip(np.searchsorted(ys, y, side="right") - 1, 0, ys.size - 2)
+        tx = (x - xs[i]) / (xs[i + 1] - xs[i])
+        ty = (y - ys[j]) / (ys[j + 1] - ys[j])
+        k = i * ys.size + j
+        z = self._flat
+        low = z[k] + ty * (z[k + 1] - z[k])
+        high = z[k + ys.size] + ty * (z[k + ys.size + 1] - z[k + ys.size])
+        out = low + tx * (high - low)
+        outside = (x < xs[0]) | (x > xs[-1]) | (y < ys[0]) | (y > ys[-1]) | np.isnan(x) | np.isnan(y)
+        return np.where(outside, np.nan, out)
