@@ -9,8 +9,10 @@ by a Mach grid and golden-section refinement. Everything is vectorised over case
 
 from __future__ import annotations
 
+import multiprocessing
 import os
-from concurrent.futures import ThreadPoolExecutor
+import sys
+from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass
 
 import numpy as np
@@ -38,14 +40,15 @@ BELOW_FLOOR = 256  # the limits cross below -2,000 ft
 SCAN_LEVELS_M = np.concatenate([
     [FLOOR_M], np.arange(0.0, 21_000.0, 1_000.0), [22_500.0, 25_000.0, 28_000.0, 32_000.0,
                                                    38_000.0, 47_000.0, 60_000.0, MODEL_TOP_M]])
-QUICK_CL_FRACTION = 0.6
+QUICK_CL_FRACTIONS = (0.6, 0.4, 0.25, 0.12)
 WARM_HALF_WIDTH_M = 250.0
 ROOT_TOL_M = 0.003  # about 0.01 ft
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
 BEST_MACH_ITERATIONS = 18
 SMOOTH_ITERATIONS = 6
-CHUNK = 65_536
+CHUNK = 16_384
+PARALLEL_MIN_CASES = 200_000
 
 
 @dataclass
@@ -184,10 +187,11 @@ class ClimbPhysics:
 
 
 def _illinois(phys: "ClimbPhysics", mach, a, b, fa, fb, tol=ROOT_TOL_M, max_iter=60):
-    """Vectorised Illinois (modified regula falsi) on the excess climb rate, fa >= 0 > fb.
+    """Vectorised modified regula falsi on the excess climb rate, fa >= 0 > fb.
 
-    Source: Dowell & Jarratt, "A modified regula falsi method for computing the root of an
-    equation", BIT 11 (1971) 168-174. Converged cases drop out once they are half the work.
+    Anderson-Bjorck variant (Anderson & Bjorck, "A new high order method of regula falsi type
+    for computing a root of an equation", BIT 13 (1973) 253-264) of the Illinois method (Dowell &
+    Jarratt, BIT 11 (1971) 168-174). Converged cases drop out once they are half the work.
     """
     a, b, fa, fb = (np.array(x, dtype=float) for x in (a, b, fa, fb))
     side = np.zeros(a.shape, dtype=np.int8)
@@ -207,8 +211,13 @@ def _illinois(phys: "ClimbPhysics", mach, a, b, fa, fb, tol=ROOT_TOL_M, max_iter
         c = np.clip(c, np.minimum(ai, bi), np.maximum(ai, bi))
         fc = sub.excess(c, m_sub)
         left = fc >= 0.0  # the root lies between c and b
-        fbi = np.where(left & (si == -1), 0.5 * fbi, fbi)
-        fai = np.where(~left & (si == 1), 0.5 * fai, fai)
+        # Anderson-Bjorck scaling of the endpoint kept twice running (Illinois would halve it).
+        with np.errstate(divide="ignore", invalid="ignore"):
+            m_left, m_right = 1.0 - fc / fai, 1.0 - fc / fbi
+        m_left = np.where(m_left > 0.0, m_left, 0.5)
+        m_right = np.where(m_right > 0.0, m_right, 0.5)
+        fbi = np.where(left & (si == -1), m_left * fbi, fbi)
+        fai = np.where(~left & (si == 1), m_right * fai, fai)
         a[idx], fa[idx] = np.where(left, c, ai), np.where(left, fc, fai)
         b[idx], fb[idx] = np.where(left, bi, c), np.where(left, fbi, fc)
         side[idx] = np.where(left, -1, 1)
@@ -313,23 +322,61 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None):
                 result[hot] = _illinois(sub, mach[hot], a[hot], b[hot], fa[hot], fb[hot])
             return result, flags
     qs = phys.qs_per_pm2 * mach * mach
+    cl_star = np.sqrt(cs.cd0 / cs.k)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        a = np.clip(pressure_altitude_m(phys.w_n / (qs * QUICK_CL_FRACTION * np.sqrt(cs.cd0 / cs.k))), cs.floor_m, top)
         b = np.clip(pressure_altitude_m(phys.w_n / (qs * cs.cl_max)), cs.floor_m, top)
-        fa, fb = phys.excess(a, mach), phys.excess(b, mach)
-    # Table engines interpolate linearly between grid points, so their excess climb rate can
-    # have several humps: they always take the scan, which finds the highest root.
-    quick = (fa >= 0.0) & (fb < 0.0) & (b > a) & (cs.model_code != MODEL_CODES["table"])
-    if quick.all():
-        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            return _illinois(phys, mach, a, b, fa, fb), np.zeros(n, dtype=np.int32)
+        fb = phys.excess(b, mach)
+        a, fa = b.copy(), fb.copy()
+        # Step down in lift coefficient until the aircraft climbs; the last level that did not
+        # climb closes the bracket from above. The excess has one hump (except table engines,
+        # checked below), so the root found is the top one.
+        for fraction in QUICK_CL_FRACTIONS:
+            open_ = np.flatnonzero(fa < 0.0)
+            if open_.size == 0:
+                break
+            h = np.clip(pressure_altitude_m(phys.w_n[open_] / (qs[open_] * fraction * cl_star[open_])),
+                        cs.floor_m[open_], top[open_])
+            e = phys.subset(open_).excess(h, mach[open_]) if open_.size < n else phys.excess(h, mach)
+            b[open_], fb[open_] = a[open_], fa[open_]
+            a[open_], fa[open_] = h, e
+    quick = (fa >= 0.0) & (fb < 0.0) & (b > a)
     result, flags = np.full(n, np.nan), np.zeros(n, dtype=np.int32)
-    slow, fast = np.flatnonzero(~quick), np.flatnonzero(quick)
-    result[slow], flags[slow] = _scanned_thrust_ceiling_m(phys.subset(slow), mach[slow])
+    fast = np.flatnonzero(quick)
     if fast.size:
+        sub = phys if fast.size == n else phys.subset(fast)
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            result[fast] = _illinois(phys.subset(fast), mach[fast], a[fast], b[fast], fa[fast], fb[fast])
+            result[fast] = _illinois(sub, mach[fast], a[fast], b[fast], fa[fast], fb[fast])
+        # Table engines interpolate linearly between grid altitudes, so their excess climb rate
+        # can have more than one hump: a case that still climbs somewhere above its root takes
+        # the scan, which finds the highest root.
+        table = fast[cs.model_code[fast] == MODEL_CODES["table"]]
+        if table.size:
+            quick[table[_climbs_above(phys.subset(table), mach[table], result[table], b[table])]] = False
+    slow = np.flatnonzero(~quick)
+    if slow.size:
+        result[slow], flags[slow] = _scanned_thrust_ceiling_m(phys.subset(slow), mach[slow])
     return result, flags
+
+
+TABLE_PROBES = 8
+
+
+def _climbs_above(phys: ClimbPhysics, mach, root_m, top_m):
+    """Whether each table-engine case climbs at a grid altitude (or midway) between root and top."""
+    cs = phys.cases
+    out = np.zeros(len(cs), dtype=bool)
+    for tid in np.unique(cs.table_id):
+        rows = np.flatnonzero(cs.table_id == tid)
+        nodes = cs.tables[tid].altitude_ft * FT
+        points = np.sort(np.concatenate([nodes, 0.5 * (nodes[1:] + nodes[:-1])]))
+        first = np.searchsorted(points, root_m[rows] + 1.0, side="left")
+        pick = np.minimum(first[:, None] + np.arange(TABLE_PROBES)[None, :], points.size - 1)
+        probes = np.minimum(points[pick], top_m[rows, None])
+        probes = np.where(probes > root_m[rows, None] + 1.0, probes, top_m[rows, None])
+        sub = phys if rows.size == len(cs) else phys.subset(rows)
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            out[rows] = (sub.excess(probes, mach[rows]) >= 0.0).any(axis=1)
+    return out
 
 
 def _scanned_thrust_ceiling_m(phys: ClimbPhysics, mach):
@@ -574,11 +621,12 @@ def _solve_chunk(part: CaseSet) -> Ceilings:
     return Ceilings(**{k: getattr(merged, k)[order] for k in Ceilings.__dataclass_fields__})
 
 
-def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, workers: int | None = None) -> Ceilings:
+def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, processes: int | None = None) -> Ceilings:
     """Every limit's ceiling and the maximum altitude for all cases (fixed Mach or best speed).
 
-    Cases whose ``mach`` is NaN are solved for the best speed. Work goes in chunks (bounded
-    memory); several chunks run at once on threads, as numpy releases the GIL in its loops.
+    Cases whose ``mach`` is NaN are solved for the best speed. Work goes in chunks sized for the
+    cache (bounded memory). Large jobs (``PARALLEL_MIN_CASES`` or more) are shared between
+    processes, one per core: numpy threads gained nothing here (measured), processes do.
     """
     n = len(cases)
     if n == 0:
@@ -587,8 +635,11 @@ def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, workers: int | None = Non
                         empty)
     chunk = max(1, chunk)
     parts = [cases.take(slice(start, start + chunk)) for start in range(0, n, chunk)]
-    workers = min(len(parts), workers or min(2, os.cpu_count() or 1))
-    if workers <= 1:
-        return Ceilings.concat([_solve_chunk(p) for p in parts])
-    with ThreadPoolExecutor(max_workers=workers) as pool:
-        return Ceilings.concat(list(pool.map(_solve_chunk, parts)))
+    if processes is None:
+        processes = min(2, os.cpu_count() or 1) if n >= PARALLEL_MIN_CASES else 1
+    processes = min(processes, len(parts))
+    if processes > 1 and sys.platform.startswith("linux"):
+        # fork: the workers inherit the imported modules; chunks and results travel pickled.
+        with ProcessPoolExecutor(processes, mp_context=multiprocessing.get_context("fork")) as pool:
+            return Ceilings.concat(list(pool.map(_solve_chunk, parts)))
+    return Ceilings.concat([_solve_chunk(p) for p in parts])
