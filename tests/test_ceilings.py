@@ -141,3 +141,17 @@ def test_fixed_and_best_agree_where_best_mach_is_used(demo):
         fixed = ceilings_table(demo, Conditions(mach=row["mach"], variants=(row["variant"],))).filter(
             pl.col("engine") == row["engine"]).row(0, named=True)
         assert fixed["max_altitude_ft"] == pytest.approx(row["max_altitude_ft"], abs=0.5)
+
+
+def test_process_pool_gives_the_same_answers(demo):
+    # Sharing a job between processes must not change a single number (consistency check).
+    from variantcmp import solver
+    from variantcmp.cases import build_cases
+    from variantcmp.table import selected_pairs
+
+    cases, _ = build_cases(demo, selected_pairs(demo, Conditions()), lambda v: np.linspace(0.6, 1.0, 7) * v.mtow_kg,
+                           np.linspace(-10, 30, 5), [300.0], "cruise", 1.3)
+    serial = solver.solve_ceilings(cases, chunk=50, processes=1)
+    shared = solver.solve_ceilings(cases, chunk=50, processes=2)
+    for name in ("thrust_m", "buffet_m", "max_altitude_m", "limit", "flags"):
+        np.testing.assert_array_equal(getattr(serial, name), getattr(shared, name))

@@ -192,8 +192,8 @@ def scalar_max_altitude_m(v, e, mass, dev, mach, climb_ms, g_margin):
 # ----------------------------------------------------------------------------- the run
 
 
-def _peak_rss_mb() -> float:
-    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0  # KiB on Linux
+def _peak_rss_mb(who=resource.RUSAGE_SELF) -> float:
+    return resource.getrusage(who).ru_maxrss / 1024.0  # KiB on Linux
 
 
 def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases: int = 100_000) -> dict:
@@ -253,5 +253,6 @@ def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases:
         "grid_cases": frame.height,
         "grid_ms": grid_s * 1000.0,
         "peak_rss_mb": _peak_rss_mb(),
+        "peak_rss_worker_mb": _peak_rss_mb(resource.RUSAGE_CHILDREN),
         "climb_fpm": 300.0 if fixed.climb_ms.size == 0 else float(fixed.climb_ms[0] / FPM),
     }

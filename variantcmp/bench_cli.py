@@ -63,6 +63,7 @@ def _run(args) -> int:
     console.print(f"speed-up of the vectorised solver over the scalar loop: {f['speedup']:,.0f}x per case")
     console.print(f"largest vectorised - scalar difference: {diff}; cases where only one finds an altitude: "
                   f"{f['scalar_mismatched_cases']}")
-    console.print(f"demo grid: {f['grid_ms']:.1f} ms; peak memory {f['peak_rss_mb']:,.0f} MB")
+    console.print(f"demo grid: {f['grid_ms']:.1f} ms; peak memory {f['peak_rss_mb']:,.0f} MB "
+                  f"(largest worker process {f['peak_rss_worker_mb']:,.0f} MB)")
     console.print(f"[yellow]{CAUTION}[/]")
     return 0

@@ -634,12 +634,24 @@ def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, processes: int | None = N
         return Ceilings(empty, empty, empty, empty, empty, empty, empty, np.empty(0, np.int8), np.empty(0, np.int32),
                         empty)
     chunk = max(1, chunk)
-    parts = [cases.take(slice(start, start + chunk)) for start in range(0, n, chunk)]
+    bounds = [(start, min(start + chunk, n)) for start in range(0, n, chunk)]
     if processes is None:
         processes = min(2, os.cpu_count() or 1) if n >= PARALLEL_MIN_CASES else 1
-    processes = min(processes, len(parts))
+    processes = min(processes, len(bounds))
     if processes > 1 and sys.platform.startswith("linux"):
-        # fork: the workers inherit the imported modules; chunks and results travel pickled.
-        with ProcessPoolExecutor(processes, mp_context=multiprocessing.get_context("fork")) as pool:
-            return Ceilings.concat(list(pool.map(_solve_chunk, parts)))
-    return Ceilings.concat([_solve_chunk(p) for p in parts])
+        # fork: the workers inherit the case arrays (no copy is sent); only results come back.
+        global _FORKED_CASES
+        _FORKED_CASES = cases
+        try:
+            with ProcessPoolExecutor(processes, mp_context=multiprocessing.get_context("fork")) as pool:
+                return Ceilings.concat(list(pool.map(_solve_forked_chunk, bounds)))
+        finally:
+            _FORKED_CASES = None
+    return Ceilings.concat([_solve_chunk(cases.take(slice(a, b))) for a, b in bounds])
+
+
+_FORKED_CASES: CaseSet | None = None
+
+
+def _solve_forked_chunk(bounds: tuple[int, int]) -> Ceilings:
+    return _solve_chunk(_FORKED_CASES.take(slice(*bounds)))
