@@ -122,7 +122,7 @@ def _buffet_branches(cs, cl_needed_at_mach1):
     j = np.argmax(capacity, axis=1)
     rows = np.arange(n)
     one = lambda m: m * m * s.buffet_cl_at(cs, m)  # noqa: E731
-    peak_m, peak = s._golden_max(lambda _i, m: _finite(one(m)), grid[rows, np.maximum(j - 1, 0)],
+    peak_m, peak = s.golden_max(lambda _i, m: _finite(one(m)), grid[rows, np.maximum(j - 1, 0)],
                                  grid[rows, np.minimum(j + 1, BUFFET_MACH_GRID - 1)], PEAK_ITERATIONS)
     better = capacity[rows, j] > peak
     peak_m, peak = np.where(better, grid[rows, j], peak_m), np.where(better, capacity[rows, j], peak)
@@ -167,7 +167,7 @@ def _thrust_peak(phys, h):
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             return _finite(phys.excess(h, m))
 
-    peak_m, peak = s._golden_max(excess, grid[rows, np.maximum(j - 1, 0)],
+    peak_m, peak = s.golden_max(excess, grid[rows, np.maximum(j - 1, 0)],
                                  grid[rows, np.minimum(j + 1, THRUST_MACH_GRID - 1)], THRUST_PEAK_ITERATIONS)
     better = e_obj[rows, j] > peak
     peak_m, peak = np.where(better, grid[rows, j], peak_m), np.where(better, e_obj[rows, j], peak)
@@ -257,14 +257,17 @@ def _binding(out, names, clip, clip_name, edge, is_open):
     return np.where(is_open, labels[np.argmin(dist, axis=0)], "")
 
 
+def _limit_terms(cs, h, mach):
+    """What the point-by-point limit checks need at (h, Mach): physics, p, CL, buffet CL, cabin ceiling."""
+    _, p, _ = isa_state(h)
+    cl = lift_coefficient(cs.weight_kg * G0, p, mach, cs.wing_area_m2)
+    _, _, cabin, _ = s.closed_form_ceilings_m(cs, mach)
+    return s.ClimbPhysics(cs), p, cl, s.buffet_cl_at(cs, mach), cabin
+
+
 def _feasible_at_mach(cs, h, mach):
     """Whether every limit holds at a fixed Mach (the defining equations, point by point)."""
-    phys = s.ClimbPhysics(cs)
-    _, p, _ = isa_state(h)
-    w = cs.weight_kg * G0
-    cl = lift_coefficient(w, p, mach, cs.wing_area_m2)
-    cl_b = s.buffet_cl_at(cs, mach)
-    _, _, cabin, _ = s.closed_form_ceilings_m(cs, mach)
+    phys, p, cl, cl_b, cabin = _limit_terms(cs, h, mach)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         ok = (cl <= cs.cl_max) & (np.isnan(cl_b) | (cs.g_margin * cl <= cl_b))
         ok &= phys.excess(h, mach) >= 0.0
@@ -502,12 +505,7 @@ def _summary(cs, specs, top_m, marked_m) -> pl.DataFrame:
 
 def _failing_limit(cs, h, mach) -> list[str]:
     """The limit that fails first just above a fixed-Mach maximum altitude (names for the summary)."""
-    phys = s.ClimbPhysics(cs)
-    _, p, _ = isa_state(h)
-    w = cs.weight_kg * G0
-    cl = lift_coefficient(w, p, mach, cs.wing_area_m2)
-    cl_b = s.buffet_cl_at(cs, mach)
-    _, _, cabin, _ = s.closed_form_ceilings_m(cs, mach)
+    phys, p, cl, cl_b, cabin = _limit_terms(cs, h, mach)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         fails = {
             "certified": h > cs.certified_m,
