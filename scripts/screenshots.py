@@ -64,6 +64,23 @@ async def shoot(size: tuple[int, int], out: Path) -> list[Path]:
         await pilot.press("b")  # unpin (cursor is still on the baseline row)
         await settle(app, pilot)
 
+        # Envelope of the row under the cursor, then three marked rows overlaid.
+        await pilot.press("v")
+        await settle(app, pilot)
+        save(app, "envelope")
+        await pilot.press("escape", "home", "m", "down", "m", "down", "m", "v")
+        await settle(app, pilot)
+        save(app, "envelope-overlay")
+        # Sweeps of the marked rows: the hot-day curve and maximum altitude against weight.
+        await pilot.press("w", "d")
+        await settle(app, pilot)
+        save(app, "sweep-isa")
+        await pilot.press("w")
+        await settle(app, pilot)
+        save(app, "sweep-weight")
+        await pilot.press("escape", "M")  # back to the compare screen, marks cleared
+        await settle(app, pilot)
+
         # Hot-day look-up.
         await pilot.press("h")
         await settle(app, pilot)

@@ -10,6 +10,7 @@ from __future__ import annotations
 import asyncio
 import io
 import shutil
+import threading
 import time
 from dataclasses import replace
 from pathlib import Path
@@ -21,13 +22,17 @@ from rich.console import Console
 
 from variantcmp.app import VariantCmpApp
 from variantcmp.app.compare import CompareScreen
+from variantcmp.app import envelope_screen
 from variantcmp.app.dialogs import ConfirmDialog, ExportDialog, OpenDialog, ProblemsScreen
+from variantcmp.app.envelope_screen import EnvelopeScreen
 from variantcmp.app.help import HelpScreen
 from variantcmp.app.hotday import HotDayScreen
+from variantcmp.app.sweep_screen import SweepScreen
 from variantcmp.app.variant_info import VariantScreen
 from variantcmp.app.view import BASELINE_MARK, ROW_KEY
 from variantcmp.caution import CAUTION
 from variantcmp.catalogue import demo_catalogue_path, load_catalogue
+from variantcmp.envelope import envelopes_for_rows
 from variantcmp.table import Conditions, ceilings_table
 from variantcmp.units import WeightSpec, format_altitude_ft, format_flight_level
 
@@ -464,7 +469,8 @@ def test_help_lists_every_key_and_the_caution():
             assert isinstance(app.screen, HelpScreen)
             shown = shown_text(app.screen.query_one("#help-text"))
             assert " ".join(CAUTION.split()) in " ".join(shown.split())
-            for cls in (VariantCmpApp, CompareScreen, HotDayScreen, VariantScreen, ProblemsScreen, ExportDialog):
+            for cls in (VariantCmpApp, CompareScreen, HotDayScreen, EnvelopeScreen, SweepScreen, VariantScreen,
+                        ProblemsScreen, ExportDialog):
                 for binding in cls.BINDINGS:
                     assert binding.description in shown
             await pilot.press("escape")
@@ -508,4 +514,232 @@ def test_no_color(monkeypatch: pytest.MonkeyPatch):
             svg = app.export_screenshot()
             assert "Caution" in svg
             shown_matches_reference(app.screen, Conditions())
+    run(body)
+
+
+# --- envelope and sweep views -------------------------------------------------------------------
+# The drawings themselves are checked in test_sketch.py and the envelopes against the solver in
+# test_envelope.py; here: the views follow the compare screen and the shared conditions, compute
+# in a worker, and redraw (without recomputing) on resize and on a new speed axis.
+
+BRAILLE = range(0x2800, 0x2900)
+
+
+class Gate:
+    """Wraps a solver call so that it waits in its worker thread until the test opens the gate."""
+
+    def __init__(self, func) -> None:
+        self.func, self.open, self.calls = func, threading.Event(), 0
+
+    def __call__(self, *args, **kwargs):
+        self.calls += 1
+        assert self.open.wait(10), "the test never opened the gate"
+        return self.func(*args, **kwargs)
+
+
+def sketch_lines(screen) -> list[str]:
+    return screen.sketch.plain.splitlines()
+
+
+def test_envelope_of_the_selected_row_in_a_worker_with_speed_axes(monkeypatch: pytest.MonkeyPatch):
+    gate = Gate(envelopes_for_rows)
+    monkeypatch.setattr(envelope_screen, "envelopes_for_rows", gate)
+    rows = reference(Conditions()).to_dicts()
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await pilot.press("down", "v")  # the second row
+            await pilot.pause()
+            screen = app.screen
+            assert isinstance(screen, EnvelopeScreen)
+            # Computing: said so, and the keys still work meanwhile.
+            assert screen.busy and "computing" in shown_text(screen.query_one("#sketch-status"))
+            assert screen.query_one("#sketch-busy").display
+            assert "Computing the envelope of v70/brannick-74" in screen.sketch.plain
+            assert shown_text(screen.query_one("#caution")) == CAUTION
+            await pilot.press("x")  # speed axis while the worker runs
+            assert screen.speed == "tas"
+            gate.open.set()
+            await settle(app, pilot)
+            assert not screen.busy and not screen.query_one("#sketch-busy").display
+            print(f"\nenvelope of one row: solver {screen.compute_ms:.0f} ms, drawing {screen.sketch.draw_ms:.1f} ms")
+            lines = sketch_lines(screen)
+            assert lines[0].startswith(f"Envelope {rows[1]['variant']} / {rows[1]['engine']}  "
+                                       f"{rows[1]['weight_kg'] / 1000:.1f} t  ISA")
+            text = screen.sketch.plain
+            assert "TAS kt" in text and "FL200" in text  # axis labels
+            assert "S stall, CL max at 1 g" in text and "B buffet onset at 1.3 g" in text  # legend
+            top = screen.result.summary.row(0, named=True)
+            assert f"▲ top {format_flight_level(top['top_ft'])}" in text  # the top, marked and noted
+            assert "Envelope of v70/brannick-74 (row 2 of 8)" in shown_text(screen.query_one("#sketch-status"))
+            # Other speed axes and the ASCII fallback are redraws of the same computation.
+            await pilot.press("x")
+            assert "CAS kt" in screen.sketch.plain
+            await pilot.press("x")
+            assert sketch_lines(screen)[-9:] and "Mach" in screen.sketch.plain
+            assert any(ord(ch) in BRAILLE for ch in screen.sketch.plain)
+            await pilot.press("a")
+            await pilot.pause()
+            assert not any(ord(ch) in BRAILLE for ch in screen.sketch.plain)
+            assert "^ top" in screen.sketch.plain and app.sketch_ascii
+            await pilot.press("a")
+            assert gate.calls == 1 and screen.computations == 1
+            # Next and previous row of the compare screen; back there on the row last shown.
+            await pilot.press("n")
+            await settle(app, pilot)
+            assert sketch_lines(screen)[0].startswith(f"Envelope {rows[2]['variant']} / {rows[2]['engine']}")
+            await pilot.press("p", "p")
+            await settle(app, pilot)
+            assert sketch_lines(screen)[0].startswith(f"Envelope {rows[0]['variant']} / {rows[0]['engine']}")
+            await pilot.press("escape")
+            await pilot.pause()
+            assert isinstance(app.screen, CompareScreen)
+            assert app.screen.cursor_key() == rows[0]["variant"] + "|" + rows[0]["engine"] + "|0"
+    run(body)
+
+
+def test_envelope_redraws_on_resize_without_recomputing():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await pilot.press("v")
+            await settle(app, pilot)
+            screen = app.screen
+            assert screen.computations == 1
+            for width, height in ((120, 40), (200, 60), (50, 14), (80, 24)):
+                before = screen.sketch.draw_count
+                started = time.perf_counter()
+                await pilot.resize_terminal(width, height)
+                await pilot.pause()
+                size = screen.sketch.content_size
+                lines = sketch_lines(screen)
+                print(f"\nresize to {width}x{height}: redraw {screen.sketch.draw_ms:.1f} ms "
+                      f"(resize to screen {(time.perf_counter() - started) * 1000:.0f} ms)")
+                if size.width >= 40 and size.height >= 12:
+                    assert screen.sketch.draw_count == before + 1
+                    assert len(lines) == size.height and {len(line) for line in lines} == {size.width}
+                    assert "Mach" in lines[-1] or "Mach" in "".join(lines)
+                else:
+                    assert "Enlarge the terminal" in screen.sketch.plain
+                assert shown_text(screen.query_one("#caution")) == CAUTION
+                assert screen.computations == 1  # never recomputed for a new size
+    run(body)
+
+
+def test_marked_rows_are_overlaid():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            df = reference(Conditions()).to_dicts()
+            await pilot.press("m", "down", "m", "down", "m", "down", "m")  # a fourth is refused
+            shown = table_rows(app.screen)
+            assert [r[0] for r in shown[:4]] == [f"#1 {df[0]['variant']}", f"#2 {df[1]['variant']}",
+                                                 f"#3 {df[2]['variant']}", df[3]["variant"]]
+            assert len(app.marked_keys) == 3 and "3 marked" in shown_text(app.screen.query_one("#status"))
+            await pilot.press("v")
+            await settle(app, pilot)
+            screen = app.screen
+            text = screen.sketch.plain
+            assert sketch_lines(screen)[0].startswith("Envelopes: feasible band of 3 cases")
+            for number, row in enumerate(df[:3], start=1):  # the legend names each marked row by its number
+                assert f" {number} {row['variant']}/{row['engine']} " in text
+            assert text.count("▲") >= 3 and "FL" in text
+            assert "Overlay of #1 v70/ossel-78, #2 v70/brannick-74, #3 v88/ossel-78" in shown_text(
+                screen.query_one("#sketch-status"))
+            # Unmark the second: two left, renumbered; the view follows.
+            await pilot.press("escape", "up", "up", "m")  # the cursor was on the fourth row
+            assert [r[0] for r in table_rows(app.screen)[:3]] == [f"#1 {df[0]['variant']}", df[1]["variant"],
+                                                                 f"#2 {df[2]['variant']}"]
+            await pilot.press("v")
+            await settle(app, pilot)
+            assert sketch_lines(app.screen)[0].startswith("Envelopes: feasible band of 2 cases")
+            # Clear the marks: the envelope of the row under the cursor again.
+            await pilot.press("escape", "M", "v")
+            await settle(app, pilot)
+            assert sketch_lines(app.screen)[0].startswith(f"Envelope {df[1]['variant']} / {df[1]['engine']}")
+    run(body)
+
+
+def test_envelope_follows_the_conditions():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await pilot.press("v")
+            await settle(app, pilot)
+            screen = app.screen
+            assert "45.2 t" not in sketch_lines(screen)[0] and "38.5 t" in sketch_lines(screen)[0]
+            await pilot.press("c")  # back to the compare screen, in the first condition field
+            assert isinstance(app.screen, CompareScreen)
+            await replace_text(pilot, "90%mtow")
+            app.screen.query_one("#field-g_margin").focus()
+            await replace_text(pilot, "1.5")
+            await settle(app, pilot)
+            assert screen.computations == 1  # hidden: nothing computed for it yet
+            await pilot.press("escape", "v")
+            await settle(app, pilot)
+            assert app.screen is screen and screen.computations == 2
+            lines = sketch_lines(screen)
+            assert f"{0.9 * 38500 / 1000:.1f} t" in lines[0] and "buffet margin 1.5 g" in lines[0]
+            assert "B buffet onset at 1.5 g" in screen.sketch.plain
+    run(body)
+
+
+def test_sweep_views_follow_the_compare_rows_and_conditions():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            await pilot.press("w")
+            await settle(app, pilot)
+            screen = app.screen
+            assert isinstance(screen, SweepScreen)
+            text = screen.sketch.plain
+            status = shown_text(screen.query_one("#sketch-status"))
+            print(f"\nweight sweep, 8 pairs: solver {screen.compute_ms:.0f} ms")
+            assert sketch_lines(screen)[0].startswith("Max altitude vs weight")
+            assert "weight t" in text and "limit along the curves: T thrust" in text and "FL" in text
+            assert "6 curves" in status and "2 more not drawn" in status  # six line styles
+            assert shown_text(screen.query_one("#caution")) == CAUTION
+            # The curves at MTOW end where the compare table says.
+            frame = screen.result.sweep.frame
+            for row in reference(Conditions()).iter_rows(named=True):
+                point = frame.filter((pl.col("variant") == row["variant"]) & (pl.col("engine") == row["engine"])
+                                     & ((pl.col("weight_kg") - row["weight_kg"]).abs() < 1e-6))
+                if point.height:
+                    assert point["max_altitude_ft"][0] == pytest.approx(row["max_altitude_ft"], abs=1.0)
+            await pilot.press("d")
+            await settle(app, pilot)
+            assert sketch_lines(screen)[0].startswith("Max altitude vs ISA deviation")
+            assert "ISA dev °C" in screen.sketch.plain
+            await pilot.press("m")
+            await settle(app, pilot)
+            assert sketch_lines(screen)[0].startswith("Max altitude vs Mach")
+            assert screen.computations == 3
+            # Filter on the compare screen: the sweep draws those rows only.
+            await pilot.press("escape", "slash", *"v88", "enter", "w")
+            await settle(app, pilot)
+            assert app.screen is screen and screen.over == "mach"
+            assert "3 curves, the rows shown" in shown_text(screen.query_one("#sketch-status"))
+            assert set(screen.result.sweep.frame["variant"]) == {"v88"}
+            # A condition changed on the compare screen: recomputed on return.
+            await pilot.press("escape", "c")
+            await replace_text(pilot, "90%mtow")
+            await settle(app, pilot)
+            await pilot.press("escape", "w")
+            await settle(app, pilot)
+            assert screen.computations == 5 and "90 %MTOW" in sketch_lines(screen)[0]
+            # A sweep once computed for these conditions is drawn again at once.
+            await pilot.press("d")
+            await settle(app, pilot)
+            await pilot.press("m")
+            await pilot.pause()
+            assert screen.computations == 6 and not screen.busy
+            await pilot.press("v")
+            await settle(app, pilot)
+            assert isinstance(app.screen, EnvelopeScreen)
     run(body)

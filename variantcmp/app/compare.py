@@ -17,27 +17,37 @@ from variantcmp.caution import CAUTION
 from .form import FIELDS
 from .results import Results, export_frame
 from .view import (
-    COLUMNS_BY_KEY, ROW_KEY, Column, filter_rows, header, justify, row_cells, sort_rows, visible_columns,
+    COLUMNS_BY_KEY, MAX_MARKED, ROW_KEY, Column, filter_rows, header, justify, mark_sign, row_cells, sort_rows,
+    visible_columns,
 )
 
+# The drawing views share one footer entry, so the compare screen's keys fit in 80 columns.
+_DRAW = Binding.Group("Draw")
 # How long a computation may run before the progress bar appears, s.
 BUSY_DELAY_S = 0.15
 
 
 class CompareScreen(Screen):
-    """Main screen. Later views (envelopes, sweeps) read `selected_row()` and the app's conditions."""
+    """Main screen. The drawing views read the app's conditions and the rows this screen hands over
+    (`app.focus_key`, `app.shown_keys`, `app.marked_keys`)."""
 
     BINDINGS = [
         Binding("c", "focus_conditions", "Conditions"),
-        Binding("slash", "focus_filter", "Filter"),
+        Binding("slash", "focus_filter", "Filter", show=False),  # the field's label shows the key
         Binding("s", "sort_next", "Sort"),
         Binding("S", "sort_previous", "Sort back", show=False),
         Binding("r", "reverse_sort", "Reverse sort", show=False),
         Binding("b", "baseline", "Baseline"),
-        Binding("i", "inspect", "Inspect"),
+        Binding("i", "inspect", "Inspect", show=False),  # enter on a row does it too
         Binding("h", "hot_day", "Hot day"),
-        Binding("e", "export", "Export"),
-        Binding("o", "open", "Open"),
+        Binding("m", "mark", "Mark", tooltip=f"mark or unmark the row for the envelope overlay, up to {MAX_MARKED}"),
+        Binding("M", "clear_marks", "Clear marks", show=False, tooltip="unmark every row"),
+        Binding("v", "envelope", "Envelope", group=_DRAW,
+                tooltip="speed-altitude envelope of the marked rows, else of the row under the cursor"),
+        Binding("w", "sweeps", "Sweeps", group=_DRAW,
+                tooltip="max altitude against weight, ISA deviation or Mach for the marked rows, else the rows shown"),
+        Binding("e", "export", "Export", show=False),
+        Binding("o", "open", "Open", show=False),
         Binding("l", "reload", "Reload", show=False),
         Binding("escape", "focus_table", "Back to table", show=False),
     ]
@@ -70,12 +80,12 @@ class CompareScreen(Screen):
                     )
         yield Static("", id="field-errors")
         with Horizontal(id="status-row"):
-            yield Label("Filter", classes="field-label")
+            yield Label("/ Filter", classes="field-label")
             yield Input(placeholder="variant, engine, limit", id="filter", compact=True)
             yield Static("", id="status")
             yield ProgressBar(total=None, show_eta=False, show_percentage=False, id="busy")
         yield DataTable(id="table", cursor_type="row", zebra_stripes=True, fixed_columns=2)
-        yield Footer()
+        yield Footer(compact=True)  # many keys: keep the row short at 80 columns
 
     def on_mount(self) -> None:
         self.query_one("#conditions").border_title = "Conditions"
@@ -165,10 +175,14 @@ class CompareScreen(Screen):
             baseline = found[0] if found else None
             if baseline is None:
                 self.baseline_key = None
+        keys = set(df[ROW_KEY].to_list())
+        self.app.marked_keys = [k for k in self.app.marked_keys if k in keys]  # rows gone with the conditions
+        marks = {k: i + 1 for i, k in enumerate(self.app.marked_keys)}
+        self.app.shown_keys = view[ROW_KEY].to_list()
         columns = visible_columns(df)
         headers = [header(c, self.sort_key, self.descending, baseline is not None) for c in columns]
         rows = list(view.iter_rows(named=True))
-        cells = [row_cells(columns, row, baseline) for row in rows]
+        cells = [row_cells(columns, row, baseline, marks.get(row[ROW_KEY])) for row in rows]
         labels, widths = justify(headers, cells)
         keep = self.cursor_key()
         scroll_x = table.scroll_x
@@ -181,6 +195,7 @@ class CompareScreen(Screen):
         if keep is not None and keep in table.rows:
             table.move_cursor(row=table.get_row_index(keep), animate=False)
         table.scroll_x = scroll_x
+        self.app.focus_key = self.cursor_key()
         self.render_ms = (perf_counter() - started) * 1000.0
         if fresh:  # from the change (a key in a field, a reload) to this table
             self.update_ms = (perf_counter() - self.app.requested_at) * 1000.0
@@ -194,6 +209,8 @@ class CompareScreen(Screen):
         if self.baseline_key is not None:
             variant, engine, _ = self.baseline_key.split("|")
             parts.append(f"baseline {variant}/{engine}")
+        if self.app.marked_keys:
+            parts.append(f"{len(self.app.marked_keys)} marked")
         parts.append(f"updated in {self.update_ms:.0f} ms")
         self.query_one("#status", Static).update(" · ".join(parts))
 
@@ -226,6 +243,17 @@ class CompareScreen(Screen):
     @on(DataTable.RowSelected)
     def row_selected(self) -> None:
         self.action_inspect()
+
+    @on(DataTable.RowHighlighted)
+    def row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        self.app.focus_key = event.row_key.value
+
+    def on_screen_resume(self) -> None:
+        # The envelope view steps through rows: come back on the row it showed last.
+        table = self.query_one(DataTable)
+        key = self.app.focus_key
+        if key is not None and key in table.rows and key != self.cursor_key():
+            table.move_cursor(row=table.get_row_index(key), animate=False)
 
     # --- actions ------------------------------------------------------------------
 
@@ -267,6 +295,39 @@ class CompareScreen(Screen):
             return
         self.baseline_key = None if key == self.baseline_key else key
         self.render_table()
+
+    def action_mark(self) -> None:
+        key = self.cursor_key()
+        if key is None:
+            return
+        marked = self.app.marked_keys
+        if key in marked:
+            marked.remove(key)
+        elif len(marked) >= MAX_MARKED:
+            self.notify(f"At most {MAX_MARKED} rows can be overlaid: unmark one (m on a {mark_sign(1)} row) "
+                        "or clear them all (M).", title="Mark", severity="warning")
+            return
+        else:
+            marked.append(key)
+        self.render_table()
+
+    def action_clear_marks(self) -> None:
+        if self.app.marked_keys:
+            self.app.marked_keys.clear()
+            self.render_table()
+
+    def action_envelope(self) -> None:
+        if self.cursor_key() is None and not self.app.marked_keys:
+            self.notify("No row to draw.", title="Envelope")
+            return
+        self.app.focus_key = self.cursor_key()
+        self.app.switch_mode("envelope")
+
+    def action_sweeps(self) -> None:
+        if not self.app.shown_keys and not self.app.marked_keys:
+            self.notify("No rows to sweep.", title="Sweeps")
+            return
+        self.app.switch_mode("sweep")
 
     def action_inspect(self) -> None:
         row = self.selected_row()

@@ -14,7 +14,11 @@ from textual.widgets import Footer, Static
 from variantcmp.caution import CAUTION
 
 from .form import FIELDS
-from .view import BASELINE_MARK, LIMIT_GLYPHS, LIMIT_MEANINGS, MAKES_IT, NONE, SHORT_OF_IT
+from variantcmp.sketch import (
+    LIMIT_LETTERS, MARKED_MARK, MARKED_MARK_ASCII, NO_ALTITUDE_MARK, TOP_MARK, TOP_MARK_ASCII,
+)
+
+from .view import BASELINE_MARK, LIMIT_GLYPHS, LIMIT_MEANINGS, MAKES_IT, MAX_MARKED, NONE, SHORT_OF_IT, mark_sign
 
 TABLE_KEYS = [
     ("↑ ↓ pgup pgdn home end", "move in a table"),
@@ -32,7 +36,12 @@ def _bindings(cls) -> list[tuple[str, str]]:
             binding = Binding(*binding)
         keys = [key.strip() for key in binding.key.split(",")]
         shown = " / ".join(_key_display(key, binding) for key in keys)
-        rows.append((shown, binding.description or binding.action))
+        does = binding.description or binding.action
+        if binding.group is not None:  # shown together in the footer under the group's name
+            does = f"{binding.group.description}: {does}"
+        if binding.tooltip:  # the footer's word is short; say what it does
+            does = f"{does} ({binding.tooltip})"
+        rows.append((shown, does))
     return rows
 
 
@@ -55,14 +64,17 @@ def _keys_table(title: str, rows: list[tuple[str, str]]) -> Table:
 def help_renderable() -> Group:
     from .compare import CompareScreen
     from .dialogs import ConfirmDialog, ExportDialog, OpenDialog, ProblemsScreen
+    from .envelope_screen import EnvelopeScreen
     from .hotday import HotDayScreen
     from .main import VariantCmpApp
+    from .sweep_screen import SweepScreen
     from .variant_info import VariantScreen
 
     parts = [Text(CAUTION, style="bold"), Text("")]
     for title, cls in (
         ("Everywhere", VariantCmpApp), ("Compare screen", CompareScreen),
-        ("Hot-day check", HotDayScreen), ("Variant screen", VariantScreen),
+        ("Hot-day check", HotDayScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
+        ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),
         ("Export dialog", ExportDialog), ("Overwrite question", ConfirmDialog),
     ):
@@ -74,12 +86,26 @@ def help_renderable() -> Group:
     signs = [(f"{LIMIT_GLYPHS[name]} {name}", LIMIT_MEANINGS[name]) for name in LIMIT_GLYPHS]
     signs += [
         (BASELINE_MARK, "the pinned baseline row; Δ columns show other rows minus it"),
+        (" ".join(mark_sign(i + 1) for i in range(MAX_MARKED)),
+         "rows marked for the envelope overlay (m); the number tags the row's curve"),
         (f"{MAKES_IT} / {SHORT_OF_IT}", "reaches / does not reach the target flight level"),
         ("*", "weight above the variant's MTOW (computed, and flagged)"),
         (NONE, "no value: the model cannot give one (see the note)"),
         ("Max FL", "flight level of the maximum altitude, rounded down"),
     ]
-    parts += [_keys_table("Signs in the tables", signs)]
+    parts += [_keys_table("Signs in the tables", signs), Text("")]
+    letters = " ".join(LIMIT_LETTERS.values())
+    drawings = [
+        (f"{TOP_MARK} / {TOP_MARK_ASCII}", "top of the envelope, where the feasible speed band closes"),
+        (f"{MARKED_MARK} / {MARKED_MARK_ASCII}", "highest altitude on the marked Mach line (cruise Mach or the "
+                                                  "Speed field's Mach)"),
+        (letters, "binding limit along a sweep curve: "
+                  + ", ".join(f"{letter} {name}" for name, letter in LIMIT_LETTERS.items())),
+        (NO_ALTITUDE_MARK, "no altitude at that point of a sweep"),
+        ("line styles", "each boundary or curve has its own dash pattern and letter; the legend under "
+                        "the drawing explains them, so colour is never needed"),
+    ]
+    parts += [_keys_table("Signs in the drawings", drawings)]
     return Group(*parts)
 
 

@@ -18,8 +18,10 @@ from .compare import CompareScreen
 from .dialogs import ExportDialog, OpenDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
 from .help import HelpScreen
+from .envelope_screen import EnvelopeScreen
 from .hotday import HotDayScreen
 from .results import Results, compute
+from .sweep_screen import SweepScreen
 from .variant_info import VariantScreen
 
 DARK_THEME = "textual-dark"
@@ -33,8 +35,7 @@ class VariantCmpApp(App[int]):
     TITLE = "variantcmp"
     ENABLE_COMMAND_PALETTE = False
     # Top-level views, each keeping its own state while the user switches between them.
-    # Envelope and sweep views (a later issue) join here.
-    MODES = {"compare": CompareScreen, "hotday": HotDayScreen}
+    MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen}
     DEFAULT_MODE = "compare"
     BINDINGS = [
         Binding("f1,question_mark", "help", "Help"),
@@ -57,6 +58,11 @@ class VariantCmpApp(App[int]):
         self._generation = 0
         self.requested_at = perf_counter()
         self.last_export: str | None = None
+        # What the compare screen hands to the drawing views (row keys of the shared table).
+        self.focus_key: str | None = None  # the row under the compare cursor
+        self.shown_keys: list[str] = []  # rows the compare screen shows, in its order
+        self.marked_keys: list[str] = []  # rows marked for the envelope overlay, in mark order
+        self.sketch_ascii = False  # plain-ASCII drawings for dumb terminals
 
     def on_mount(self) -> None:
         self.open_catalogue(self.catalogue_path)

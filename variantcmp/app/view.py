@@ -37,6 +37,9 @@ LIMIT_MEANINGS: dict[str, str] = {
     "none": "no limit found below the model top",
 }
 BASELINE_MARK = "◆"
+# Rows marked for the envelope overlay carry their overlay number (the drawing's curve tag).
+MAX_MARKED = 3
+MARK_PREFIX = "#"
 MAKES_IT = "✓"
 SHORT_OF_IT = "✗"
 
@@ -154,8 +157,14 @@ def _signed_ft(value: float) -> str:
     return "±0" if whole == 0 else f"{whole:+,d}"
 
 
-def cell(column: Column, row: dict, baseline: dict | None = None) -> Cell:
-    """The text of one cell; ``baseline`` (a row) turns difference columns into deltas."""
+def mark_sign(number: int) -> str:
+    """The sign of the ``number``-th marked row (1-based): the tag of its curve in the overlay."""
+    return f"{MARK_PREFIX}{number}"
+
+
+def cell(column: Column, row: dict, baseline: dict | None = None, marked: int | None = None) -> Cell:
+    """The text of one cell; ``baseline`` (a row) turns difference columns into deltas;
+    ``marked`` (1-based) is the row's place among the rows marked for the envelope overlay."""
     value = row.get(column.source)
     kind = column.kind
     right = kind in _RIGHT
@@ -172,6 +181,8 @@ def cell(column: Column, row: dict, baseline: dict | None = None) -> Cell:
         text = "" if value is None else str(value)
         if column.key == "variant" and baseline is not None and baseline.get(ROW_KEY) == row.get(ROW_KEY):
             text = f"{BASELINE_MARK} {text}"
+        if column.key == "variant" and marked is not None:
+            text = f"{mark_sign(marked)} {text}"
         return Cell(text)
     if not _finite(value):
         return Cell(NONE, right)
@@ -196,8 +207,9 @@ def cell(column: Column, row: dict, baseline: dict | None = None) -> Cell:
     return Cell(str(value))
 
 
-def row_cells(columns: list[Column], row: dict, baseline: dict | None = None) -> list[Cell]:
-    return [cell(column, row, baseline) for column in columns]
+def row_cells(columns: list[Column], row: dict, baseline: dict | None = None,
+              marked: int | None = None) -> list[Cell]:
+    return [cell(column, row, baseline, marked) for column in columns]
 
 
 def justify(headers: list[str], rows: list[list[Cell]]) -> tuple[list[Text], list[int]]:
