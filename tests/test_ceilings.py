@@ -36,16 +36,35 @@ def test_ceilings_never_rise_with_weight(demo, w, dw, dev, mach):
 @settings(max_examples=20, deadline=None)
 @given(st.floats(60.0, 100.0), st.floats(-15.0, 30.0), st.floats(1.0, 15.0))
 def test_hot_days(demo, w, dev, ddev):
-    # Above the flat-rate deviation thrust only falls, and at a fixed Mach the true airspeed term
-    # V T_ISA/T = M a0 sqrt(T)... falls too: thrust ceilings never rise with temperature deviation.
-    # Buffet is a pressure limit at fixed Mach: independent of the deviation (lift equation).
+    # At a fixed Mach on a warmer day (same pressure altitude): the true airspeed V = M a rises as
+    # sqrt(T) but the climb rate scales with V T_ISA/T, i.e. 1/sqrt(T), and above the flat-rate
+    # deviation thrust only falls (definition of flat rating, common practice, no source), so
+    # thrust ceilings never rise with the deviation (climb equation: Anderson, Aircraft
+    # Performance and Design, sec. 5.11).
     f = ceilings_table(demo, Conditions(weights=_pct(w), isa_devs_c=(max(dev, 15.0), max(dev, 15.0) + ddev)))
     cool = f.filter(pl.col("isa_dev_c") == pl.col("isa_dev_c").min())
     hot = f.filter(pl.col("isa_dev_c") == pl.col("isa_dev_c").max())
     a, b = cool["thrust_ceiling_ft"].to_numpy(), hot["thrust_ceiling_ft"].to_numpy()
     ok = np.isfinite(a) & np.isfinite(b)
     assert np.all(b[ok] <= a[ok] + SLACK_FT)
-    np.testing.assert_allclose(cool["buffet_ceiling_ft"].to_numpy(), hot["buffet_ceiling_ft"].to_numpy())
+
+
+@settings(max_examples=10, deadline=None)
+@given(st.floats(60.0, 100.0), st.floats(-10.0, 15.0))
+def test_buffet_ceiling_ignores_the_day_and_flat_rating_holds_thrust(demo, w, dev):
+    # Buffet onset at a fixed Mach is a pressure limit, n W = (gamma/2) p M^2 S CL_b (Anderson,
+    # Introduction to Flight, eq. 4.83): the same at ISA and ISA+dev. A flat-rated engine keeps
+    # its ISA thrust up to its flat-rate deviation (definition of flat rating, common practice,
+    # no source): with a table engine (thrust read at ISA) the thrust ceiling then moves only by
+    # the climb-rate terms, a few hundred ft at most, not by the thousands a density lapse gives.
+    f = ceilings_table(demo, Conditions(weights=_pct(w), isa_devs_c=(0.0, dev)))
+    isa = f.filter(pl.col("isa_dev_c") == 0.0)
+    day = f.filter(pl.col("isa_dev_c") == dev) if dev != 0.0 else isa
+    np.testing.assert_allclose(isa["buffet_ceiling_ft"].to_numpy(), day["buffet_ceiling_ft"].to_numpy())
+    flat = [i for i, e in enumerate(isa["engine"]) if demo.engines[e].flat_rate_isa_dev_c is not None]
+    assert flat
+    moved = np.abs(isa["thrust_ceiling_ft"].to_numpy()[flat] - day["thrust_ceiling_ft"].to_numpy()[flat])
+    assert np.all(moved < 400.0)
 
 
 @settings(max_examples=20, deadline=None)
@@ -65,6 +84,7 @@ def test_max_altitude_within_every_limit_and_criteria_order(demo, w, dev, mach):
 
 
 def test_every_row_names_a_known_limit(demo):
+    # Self-consistency (the contract for the limit column), no external source.
     f = ceilings_table(demo, Conditions(weights=_pct(60, 100, 120), isa_devs_c=(-10, 0, 20, 35)))
     assert set(f["limit"].drop_nulls()) <= {"thrust", "buffet", "stall", "certified", "cabin", "none"}
     # A row without an altitude always says why.
@@ -135,7 +155,7 @@ def test_thrust_table_top_is_not_extrapolated(tmp_path):
 
 
 def test_fixed_and_best_agree_where_best_mach_is_used(demo):
-    # Consistency: solving at the Mach that the best-speed search found gives the same altitude.
+    # Self-consistency, no external source: solving at the Mach that the best-speed search found gives the same altitude.
     best = ceilings_table(demo, Conditions(mach="best"))
     for row in best.head(4).iter_rows(named=True):
         fixed = ceilings_table(demo, Conditions(mach=row["mach"], variants=(row["variant"],))).filter(
@@ -144,7 +164,7 @@ def test_fixed_and_best_agree_where_best_mach_is_used(demo):
 
 
 def test_process_pool_gives_the_same_answers(demo):
-    # Sharing a job between processes must not change a single number (consistency check).
+    # Self-consistency, no external source: sharing a job between processes changes no number.
     from variantcmp import solver
     from variantcmp.cases import build_cases
     from variantcmp.table import selected_pairs
@@ -155,3 +175,28 @@ def test_process_pool_gives_the_same_answers(demo):
     shared = solver.solve_ceilings(cases, chunk=50, processes=2)
     for name in ("thrust_m", "buffet_m", "max_altitude_m", "limit", "flags"):
         np.testing.assert_array_equal(getattr(serial, name), getattr(shared, name))
+
+
+def test_thrust_table_floor_is_respected(tmp_path):
+    # A thrust table from 10,000 ft up: nothing below it may be claimed (no extrapolation), and the
+    # note names the table's lowest altitude, not -2,000 ft.
+    table = _engine(model="table", table_altitude_ft=[10000.0, 20000.0, 40000.0], table_mach=[0.0, 0.9],
+                    table_thrust_fraction=[[0.7, 0.65], [0.5, 0.46], [0.2, 0.19]])
+    del table["lapse_exponent"]
+    cat = write_catalogue(tmp_path / "c.toml", [table], [_variant()])
+    row = ceilings_table(cat, Conditions(mach=0.3, weights=(WeightSpec(60_000.0, "kg"),))).row(0, named=True)
+    assert row["max_altitude_ft"] is None or row["max_altitude_ft"] >= 10000.0
+    if row["max_altitude_ft"] is None:
+        assert "10,000 ft" in row["note"]
+    heavy = ceilings_table(cat, Conditions(mach=0.3, weights=(WeightSpec(120_000.0, "kg"),))).row(0, named=True)
+    assert heavy["max_altitude_ft"] is None
+    assert "10,000 ft" in heavy["note"] and "-2,000" not in heavy["note"]
+
+
+def test_limits_below_the_atmosphere_model_are_not_numbers(demo):
+    # At a very low Mach the stall "ceiling" lies far below the model's -5,000 m bottom (ISO 2533
+    # range): it is unavailable, not a number like -100,000 ft.
+    f = ceilings_table(demo, Conditions(mach=0.05))
+    assert f["stall_ceiling_ft"].drop_nulls().min() is None or f["stall_ceiling_ft"].drop_nulls().min() > -16_500
+    assert f["max_altitude_ft"].is_null().all()
+    assert (f["note"].str.len_chars() > 0).all()  # and each row says why

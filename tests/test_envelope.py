@@ -92,9 +92,14 @@ def climb_rate_fpm(fleet, variant, engine, weight_kg, isa_dev, alt_ft, mach):
     n = v.engine_count * e.static_thrust_kn * 1000 * e.rating_fraction
     if e.model == "turbofan":
         f = n * thrust.turbofan_lapse_fraction(mach, temp, p, e.throttle_ratio)
+        f = f * thrust.hot_day_factor(isa_dev, e.flat_rate_isa_dev_c, e.hot_day_loss_per_c)
     elif e.model == "density-lapse":
-        rho11 = isa_pressure_pa(11_000.0) / (R_AIR * (216.65 + isa_dev))
-        f = n * thrust.density_lapse_fraction(rho, e.lapse_exponent, rho11, e.lapse_exponent_above_tropopause)
+        # Flat rated: thrust held at its ISA value up to the flat-rate deviation (definition of
+        # flat rating, common practice, no source), so the lapse sees ISA density.
+        dev_seen = 0.0 if e.flat_rate_isa_dev_c is not None else isa_dev
+        rho_seen = p / (R_AIR * (t_isa + dev_seen))
+        rho11 = isa_pressure_pa(11_000.0) / (R_AIR * (216.65 + dev_seen))
+        f = n * thrust.density_lapse_fraction(rho_seen, e.lapse_exponent, rho11, e.lapse_exponent_above_tropopause)
         f = f * thrust.hot_day_factor(isa_dev, e.flat_rate_isa_dev_c, e.hot_day_loss_per_c)
     else:
         table = thrust.TableLapse(e.table_altitude_ft, e.table_mach, e.table_thrust_fraction)

@@ -122,7 +122,7 @@ def pressure_altitude_m(pressure_pa):
     """Geopotential pressure altitude (m) at which the ISA pressure equals ``pressure_pa``.
 
     Inverse of :func:`isa_pressure_pa` (ISO 2533). Pressures below the model top's give ``+inf``
-    (above the model: callers flag it); pressures above sea level extend layer 0 downward.
+    and pressures above the model bottom's (-5,000 m) ``-inf``: outside the model, callers flag it.
     """
     p = np.asarray(pressure_pa, dtype=float)
     # Base pressures fall with altitude: search the ascending negated sequence.
@@ -133,7 +133,7 @@ def pressure_altitude_m(pressure_pa):
         safe = np.where(lapse == 0.0, 1.0, lapse)
         dh = np.where(lapse == 0.0, t_base * phi, t_base * np.expm1(lapse * phi) / safe)
     h = LAYER_BASE_M[i] + dh
-    return np.where(p < MODEL_TOP_P_PA, np.inf, h)
+    return np.where(p < MODEL_TOP_P_PA, np.inf, np.where(h < MODEL_BOTTOM_M, -np.inf, h))
 
 
 def density_kg_m3(pressure_pa, temperature_k):

@@ -123,8 +123,9 @@ def _scalar_excess(v, e, mass, dev, mach, climb_ms, h):
         if mach > mcrit:
             cd += 20 * (mach - mcrit) ** 4
     if e.model == "density-lapse":
-        rho = p / (_R * t)
-        rho11 = 22632.0401 / (_R * (216.65 + dev))
+        seen = 0.0 if e.flat_rate_isa_dev_c is not None else dev  # flat rated: ISA thrust held
+        rho = p / (_R * (t_isa + seen))
+        rho11 = 22632.0401 / (_R * (216.65 + seen))
         m2 = e.lapse_exponent_above_tropopause or e.lapse_exponent
         frac = (rho / 1.225) ** e.lapse_exponent if rho >= rho11 else (rho11 / 1.225) ** e.lapse_exponent * (rho / rho11) ** m2
     elif e.model == "turbofan":

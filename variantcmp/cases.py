@@ -178,7 +178,9 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
             "lapse_exponent_above": _nan(e.lapse_exponent_above_tropopause),
             "throttle_ratio": e.throttle_ratio,
             "flat_rate_isa_dev_c": _nan(e.flat_rate_isa_dev_c), "hot_day_loss_per_c": e.hot_day_loss_per_c,
-            "tropopause_density_kg_m3": LAYER_BASE_P_PA[1] / (R_AIR * (LAYER_BASE_T_K[1] + grid[:, 1])),
+            # Flat-rated engines see ISA density in their lapse (see solver.ClimbPhysics).
+            "tropopause_density_kg_m3": LAYER_BASE_P_PA[1] / (
+                R_AIR * (LAYER_BASE_T_K[1] + (0.0 if e.flat_rate_isa_dev_c is not None else grid[:, 1]))),
             "floor_m": floor_m, "top_m": top_m, "mach_low": m_low, "mach_high": m_high,
             "variant_index": variant_order.index(vid), "engine_index": engine_order.index(eid),
             "model_code": MODEL_CODES[e.model], "table_id": table_ids.get(eid, -1),

@@ -215,7 +215,7 @@ _ENGINE_COMMON = ("id", "label", "model", "static_thrust_kn", "rating_fraction")
 _HOT_DAY = ("flat_rate_isa_dev_c", "hot_day_loss_per_c")
 _ENGINE_MODEL_KEYS = {
     "density-lapse": ("lapse_exponent", "lapse_exponent_above_tropopause") + _HOT_DAY,
-    "turbofan": ("throttle_ratio",),
+    "turbofan": ("throttle_ratio",) + _HOT_DAY,
     "table": ("table_altitude_ft", "table_mach", "table_thrust_fraction") + _HOT_DAY,
 }
 _ENGINE_KEYS = _ENGINE_COMMON + tuple(dict.fromkeys(k for ks in _ENGINE_MODEL_KEYS.values() for k in ks))
@@ -401,11 +401,8 @@ def _engine(t: _Table) -> Engine | None:
         for key in _ENGINE_KEYS:
             if key not in allowed:
                 owners = [m for m, ks in _ENGINE_MODEL_KEYS.items() if key in ks]
-                why = ""
-                if model == "turbofan" and key in _HOT_DAY:
-                    why = ": a turbofan's hot-day loss follows from its throttle_ratio"
                 elsewhere[key] = (
-                    f'not used by model "{model}"{why}; it belongs to model '
+                    f'not used by model "{model}"; it belongs to model '
                     f"{' or '.join(repr(o) for o in owners)}"
                 )
     t.unknown_keys(allowed, elsewhere)
@@ -416,7 +413,7 @@ def _engine(t: _Table) -> Engine | None:
         if key in allowed
     }
 
-    if model and model != "turbofan":
+    if model:
         given = [k for k in _HOT_DAY if t.has(k)]
         if len(given) == 1:
             other = _HOT_DAY[1] if given[0] == _HOT_DAY[0] else _HOT_DAY[0]

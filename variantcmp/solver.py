@@ -42,7 +42,8 @@ SCAN_LEVELS_M = np.concatenate([
                                                    38_000.0, 47_000.0, 60_000.0, MODEL_TOP_M]])
 QUICK_CL_FRACTIONS = (0.6, 0.4, 0.25, 0.12)
 WARM_HALF_WIDTH_M = 250.0
-ROOT_TOL_M = 0.003  # about 0.01 ft
+ROOT_TOL_M = 0.003
+CO_LIMIT_M = 10.0  # two limits this close both bind (e.g. thrust and buffet at the coffin corner)  # about 0.01 ft
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
 BEST_MACH_ITERATIONS = 18
@@ -69,6 +70,7 @@ class Ceilings:
     limit: np.ndarray  # index into LIMITS, -1 for none
     flags: np.ndarray
     vmo_floor_m: np.ndarray  # lowest altitude where the Mach stays within VMO (-inf: no VMO)
+    co_limit: np.ndarray  # a second limit binding within CO_LIMIT_M of the first (band closure), -1 none
 
     def take(self, index) -> "Ceilings":
         return Ceilings(**{n: getattr(self, n)[index] for n in self.__dataclass_fields__})
@@ -117,6 +119,7 @@ class ClimbPhysics:
         self.m_crit0, self.m_crit_slope = korn_coefficients(cs.thickness_ratio, cs.sweep_deg, cs.korn_factor)
         self.has_wave = bool(np.isfinite(self.m_crit0).any())
         self.lapse_above = np.where(np.isnan(cs.lapse_exponent_above), cs.lapse_exponent, cs.lapse_exponent_above)
+        self.flat_rated = ~np.isnan(cs.flat_rate_isa_dev_c)
         self._terms = None
 
     def _mach_terms(self, mach):
@@ -138,7 +141,9 @@ class ClimbPhysics:
             sub = (lambda a: col(a)[idx]) if not isinstance(idx, slice) else col
             rows = (lambda a: np.broadcast_to(a, out.shape)[idx])
             if code == 0:
-                rho = rows(p) / (R_AIR * rows(t))
+                # A flat-rated engine holds its ISA thrust up to the flat-rate deviation (the loss
+                # above it is hot_day_factor): its lapse sees ISA density, not the day's.
+                rho = rows(p / (R_AIR * np.where(col(self.flat_rated), t - col(cs.isa_dev_c), t)))
                 frac = density_lapse_fraction(rho, sub(cs.lapse_exponent), sub(cs.tropopause_density_kg_m3),
                                               sub(self.lapse_above))
             elif code == 1:
@@ -289,7 +294,8 @@ def _interpolated_guess(cases: CaseSet, grid_values):
         u = np.clip((m - cases.mach_low) / span * (g - 1), 0.0, g - 1.0)
         j = np.minimum(u.astype(np.int64), max(g - 2, 0))
         lo_v, hi_v = grid_values[rows, j], grid_values[rows, np.minimum(j + 1, g - 1)]
-        mid = lo_v + (u - j) * (hi_v - lo_v)
+        with np.errstate(invalid="ignore"):  # inf - inf where a speed is above the model top
+            mid = lo_v + (u - j) * (hi_v - lo_v)
         return np.where(np.isfinite(mid), mid, np.where(np.isfinite(lo_v), lo_v, hi_v))
 
     return guess
@@ -497,19 +503,23 @@ def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=Tru
         flags[bad_mmo] |= ABOVE_MMO
         bad_vmo = max_alt < vmo_floor
         flags[bad_vmo] |= BELOW_VMO_FLOOR
-        low = max_alt < FLOOR_M
+        low = max_alt < cs.floor_m  # -2,000 ft, or the lowest altitude of the thrust table
         flags[low] |= BELOW_FLOOR
     # Thrust may only work above the other limits' ceiling (high speed at low level): check there.
     check = np.flatnonzero(np.isfinite(max_alt) & (limit > 0) & ~bad_vmo & ~low & ~bad_mmo & ~skipped)
     if check.size:
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             e = phys.subset(check).excess(max_alt[check], mach[check])
-        flags[check[e < 0.0]] |= NO_COMMON_ALTITUDE
+        flags[check[~(e >= 0.0)]] |= NO_COMMON_ALTITUDE  # NaN (no thrust data there) fails too
     dead = (flags & (ABOVE_MMO | BELOW_VMO_FLOOR | NO_COMMON_ALTITUDE | BELOW_FLOOR)).astype(bool)
     max_alt[dead] = np.nan
     limit[dead | np.isnan(max_alt)] = -1
+    with np.errstate(invalid="ignore"):
+        others = np.where(np.isnan(stack), np.inf, stack)
+        others[limit.clip(0), np.arange(len(cs))] = np.inf
+        co = np.where((limit >= 0) & (others.min(axis=0) - max_alt <= CO_LIMIT_M), np.argmin(others, axis=0), -1)
     return Ceilings(thrust, buffet, stall, cs.certified_m.copy(), cabin, max_alt, np.asarray(mach, dtype=float).copy(),
-                    limit.astype(np.int8), flags, vmo_floor)
+                    limit.astype(np.int8), flags, vmo_floor, co.astype(np.int8))
 
 
 def _objective(values):
@@ -604,7 +614,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     unavailable = lambda v: np.where(np.isneginf(v), np.nan, v)  # noqa: E731
     return Ceilings(unavailable(thrust_best), np.where(cs.buffet_id >= 0, unavailable(buffet_best), np.inf),
                     stall_best, final.certified_m, final.cabin_m, final.max_altitude_m, m_best,
-                    final.limit, flags, final.vmo_floor_m)
+                    final.limit, flags, final.vmo_floor_m, final.co_limit)
 
 
 def _solve_chunk(part: CaseSet) -> Ceilings:
@@ -632,7 +642,7 @@ def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, processes: int | None = N
     if n == 0:
         empty = np.empty(0)
         return Ceilings(empty, empty, empty, empty, empty, empty, empty, np.empty(0, np.int8), np.empty(0, np.int32),
-                        empty)
+                        empty, np.empty(0, np.int8))
     chunk = max(1, chunk)
     bounds = [(start, min(start + chunk, n)) for start in range(0, n, chunk)]
     if processes is None:

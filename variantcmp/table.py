@@ -78,27 +78,31 @@ def _notes(cases, res, climb_fpm) -> list[str]:
     best = np.isnan(cases.mach)
     for i in range(len(cases)):  # text only, per row: the numbers are all computed above
         f, parts = int(res.flags[i]), []
-        speed = "at any speed" if best[i] else f"at M{cases.mach[i]:.2f}"
+        speed = "at any speed" if best[i] else f"at M{cases.mach[i]:.3f}"
+        floor_ft = cases.floor_m[i] / FT
+        lowest = "-2,000 ft" if floor_ft <= -1999.0 else f"{floor_ft:,.0f} ft, the thrust table's lowest altitude"
         if f & s.CANNOT_CLIMB:
-            parts.append(f"cannot climb at {climb_fpm[i]:g} ft/min {speed} "
-                         f"(even at -2,000 ft)" if not best[i] else f"cannot climb at {climb_fpm[i]:g} ft/min at any speed")
+            parts.append(f"cannot climb at {climb_fpm[i]:g} ft/min {speed}"
+                         + ("" if best[i] else f" at any altitude from {lowest} up"))
         if f & s.THRUST_DATA_MACH:
-            parts.append(f"M{cases.mach[i]:.2f} outside the thrust table" if not best[i] else "no speed in the thrust table")
+            parts.append(f"M{cases.mach[i]:.3f} outside the thrust table" if not best[i] else "no speed in the thrust table")
         if f & s.THRUST_DATA_TOP:
             parts.append(f"still climbing at the thrust table top ({cases.top_m[i] / FT:,.0f} ft)")
         if f & s.NO_BUFFET_AT_MACH and not best[i]:
-            parts.append(f"no buffet data at M{cases.mach[i]:.2f}: buffet not checked")
+            parts.append(f"no buffet data at M{cases.mach[i]:.3f}: buffet not checked")
         if f & s.ABOVE_MMO:
-            parts.append(f"M{cases.mach[i]:.2f} above MMO {cases.mmo[i]:.2f}")
+            parts.append(f"M{cases.mach[i]:.3f} above MMO {cases.mmo[i]:.3f}")
         if f & s.BELOW_VMO_FLOOR:
-            parts.append(f"M{res.mach[i]:.2f} exceeds VMO below {res.vmo_floor_m[i] / FT:,.0f} ft, "
+            parts.append(f"M{res.mach[i]:.3f} exceeds VMO below {res.vmo_floor_m[i] / FT:,.0f} ft, "
                          "above the other limits' ceiling")
         if f & s.NO_COMMON_ALTITUDE:
             parts.append("thrust and the other limits leave no common altitude")
         if f & s.BELOW_FLOOR:
-            parts.append("limits cross below -2,000 ft")
+            parts.append(f"limits cross below {lowest}")
         if f & s.ABOVE_MODEL_TOP:
             parts.append("no limit binds below the model top")
+        if res.co_limit[i] >= 0 and res.limit[i] >= 0:
+            parts.append(f"{s.LIMITS[res.limit[i]]} and {s.LIMITS[res.co_limit[i]]} bind together")
         if cases.over_mtow[i]:
             parts.append("above MTOW")
         notes.append("; ".join(parts))

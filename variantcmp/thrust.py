@@ -80,9 +80,10 @@ def turbofan_lapse_from_terms(temperature_k, pressure_pa, throttle_ratio, terms)
 def hot_day_factor(isa_dev_c, flat_rate_isa_dev_c=None, hot_day_loss_per_c=0.0):
     """Flat-rated thrust: 1 up to the flat-rate deviation, then falling linearly per degree.
 
-    factor = 1 - loss x max(0, dT - dT_flat), not below zero. Common practice approximation of a
-    flat-rated engine's hot-day loss (no single published source; see e.g. Torenbeek app. H for
-    the flat-rating concept).
+    factor = 1 - loss x max(0, dT - dT_flat), not below zero, applied to the thrust the engine's
+    lapse model gives at ISA (a flat-rated density-lapse engine sees ISA density). Common practice
+    approximation of a flat-rated engine's hot-day loss (no single published source; see e.g.
+    Torenbeek app. H for the flat-rating concept).
     """
     dev = np.asarray(isa_dev_c, dtype=float)
     if flat_rate_isa_dev_c is None:
