@@ -423,3 +423,10 @@ if __name__ == "__main__":
         _update_readme()
     else:
         sys.exit("usage: python tests/test_cli.py --update-readme")
+
+
+def test_empty_ids_and_empty_catalogue_are_refused(capsys):
+    assert main(["ceilings", "--variant", ""]) == 2
+    assert "empty id list" in capsys.readouterr().err
+    assert main(["ceilings", ""]) == 2
+    assert "catalogue argument is empty" in capsys.readouterr().err

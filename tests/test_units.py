@@ -235,3 +235,14 @@ def test_g_margin():
     for bad in ("0.9", "3", "x"):
         with pytest.raises(OptionError, match=r"^--g-margin: "):
             parse_g_margin(bad)
+
+
+def test_bare_thousands_are_refused_as_ambiguous():
+    # "3500" could be FL350 typed without the FL or 3,500 ft: refuse rather than guess
+    # (flight levels are hundreds of feet: ICAO Doc 8168, from memory).
+    for text in ("3500", "1000", "9999"):
+        with pytest.raises(OptionError, match="ambiguous"):
+            parse_flight_level(text)
+    assert parse_flight_level("350") == 35000.0
+    assert parse_flight_level("35000") == 35000.0
+    assert parse_flight_level("3500ft") == 3500.0

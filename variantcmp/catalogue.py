@@ -495,6 +495,14 @@ def _variant(t: _Table, engine_ids: set[str]) -> Variant | None:
 
     buffet = _buffet(t)
 
+    dp, cabin_ft = nums.get("max_cabin_dp_kpa"), nums.get("cabin_altitude_ft")
+    if dp is not None and cabin_ft is not None:
+        # ISA pressure at the cabin altitude (ISO 2533, troposphere): the differential must leave
+        # a positive ambient pressure, or the limit would silently vanish.
+        cabin_kpa = 101.325 * (1.0 - 0.0065 * cabin_ft * 0.3048 / 288.15) ** 5.25588
+        if dp >= cabin_kpa:
+            t.fail("max_cabin_dp_kpa", f"expected less than the cabin pressure at cabin_altitude_ft "
+                                       f"({cabin_kpa:.1f} kPa at {_fmt(cabin_ft)} ft), got {_fmt(dp)}")
     mtow, oew = nums["mtow_kg"], nums["oew_kg"]
     if mtow is not None and oew is not None and not oew < mtow:
         t.fail("oew_kg", f"expected the operating empty weight below mtow_kg ({_fmt(mtow)}), got {_fmt(oew)}")

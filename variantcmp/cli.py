@@ -84,6 +84,9 @@ def _resolve_catalogue(text: str | None) -> Path:
 
     if text is None:
         return Path(demo_catalogue_path())
+    if not text.strip():
+        raise OptionError("CATALOGUE: the catalogue argument is empty; expected a .toml file or a bundled "
+                          "fleet name (leave it out for the demo fleet)")
     path = Path(text).expanduser()
     if path.exists():
         return path
@@ -127,11 +130,15 @@ def _print_caution(stderr: bool) -> None:
         _console().print(f"[bold yellow]{CAUTION}[/]")
 
 
-def _split_ids(values: list[str] | None) -> tuple[str, ...]:
-    """--variant a --variant b,c -> ("a", "b", "c")."""
+def _split_ids(values: list[str] | None, option: str = "--variant/--engine") -> tuple[str, ...]:
+    """--variant a --variant b,c -> ("a", "b", "c"); an empty value is refused, not read as "all"."""
     ids: list[str] = []
     for value in values or []:
-        ids.extend(part.strip() for part in value.split(",") if part.strip())
+        parts = [part.strip() for part in value.split(",") if part.strip()]
+        if not parts:
+            raise OptionError(f"{option}: got an empty id list {value!r}; expected one or more ids "
+                              "(leave the option out for all)")
+        ids.extend(parts)
     return tuple(dict.fromkeys(ids))
 
 
@@ -214,8 +221,8 @@ def _conditions_from_args(args):
         climb_fpm=tuple(fpm for fpm, _ in climbs),
         g_margin=g_margin,
         target_fl_ft=target_ft,
-        variants=_split_ids(args.variant),
-        engines=_split_ids(args.engine),
+        variants=_split_ids(args.variant, "--variant"),
+        engines=_split_ids(args.engine, "--engine"),
     )
     return conditions, [label for _, label in climbs]
 

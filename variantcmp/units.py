@@ -259,7 +259,8 @@ _FL_EXPECTED = "a flight level or pressure altitude, e.g. FL350, 350, 35000ft or
 def parse_flight_level(text: str, option: str = "--target") -> float:
     """A pressure altitude in ft from "FL350", "350" (a flight level), "35000ft", "35,000 ft" or "10668m".
 
-    A bare number below 1000 is a flight level; a bare number of 1000 or more is feet.
+    A bare number below 1000 is a flight level; from 10,000 up it is feet; between, it is refused
+    as ambiguous (3500: FL350 or 3,500 ft?).
     """
     raw = text.strip()
     compact = re.sub(r"[\s,]+", "", raw).lower()
@@ -276,6 +277,10 @@ def parse_flight_level(text: str, option: str = "--target") -> float:
         value = _number(compact)
         if value is None:
             altitude_ft = None
+        elif 1000 <= abs(value) < 10000:
+            # 3500: a typo for FL350, or 3,500 ft? Ask rather than guess.
+            raise _fail(option, raw, f"FL{value / 10:03.0f} or {value:.0f}ft: a bare number from 1000 to 9999 is "
+                                     "ambiguous; write FL... or ...ft")
         else:
             altitude_ft = value * 100.0 if abs(value) < 1000 else value
     if altitude_ft is None:
