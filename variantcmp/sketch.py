@@ -13,6 +13,7 @@ Nothing here computes physics: the numbers come from :mod:`variantcmp.envelope`.
 from __future__ import annotations
 
 import math
+import textwrap
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -209,7 +210,8 @@ class Plot:
         self.width, self.height, self.fine = width, height, fine
         self.title, self.x_name, self.x_format = title, x_name, x_format
         self.legend_lines = self._pack(legend, width)
-        self.notes = [n[:width] for n in notes]
+        # Notes wrap rather than clip: a cut-off note could hide the limit or "above MTOW".
+        self.notes = [line for n in notes for line in (textwrap.wrap(n, width, subsequent_indent="  ") or [""])]
         ph = height - 3 - len(self.legend_lines) - len(self.notes)
         while ph < 5 and self.notes:  # keep the plot readable: drop notes first, then legend lines
             self.notes.pop()
