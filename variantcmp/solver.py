@@ -96,15 +96,16 @@ class ClimbPhysics:
     def __init__(self, cases: CaseSet):
         self.cases = cases
         codes = cases.model_code
+        # One group per thrust model (per table for table engines). Cases sorted by group (as
+        # _solve_chunk does) make each group a slice: views instead of gathers and scatters.
+        key = _group_key(cases)
         self.groups = []
-        for code in np.unique(codes):
-            if code == 2:
-                for tid in np.unique(cases.table_id[codes == 2]):
-                    self.groups.append((2, int(tid), np.flatnonzero((codes == 2) & (cases.table_id == tid))))
-            else:
-                self.groups.append((int(code), -1, np.flatnonzero(codes == code)))
-        if len(self.groups) == 1:
-            self.groups = [(self.groups[0][0], self.groups[0][1], slice(None))]
+        for k in np.unique(key):
+            idx = np.flatnonzero(key == k)
+            code, tid = int(k) // _GROUP_BASE, int(k) % _GROUP_BASE - 1
+            if idx[-1] - idx[0] + 1 == idx.size:
+                idx = slice(int(idx[0]), int(idx[-1]) + 1)
+            self.groups.append((code, tid, idx))
         self._derived()
 
     def subset(self, index) -> "ClimbPhysics":
@@ -130,6 +131,9 @@ class ClimbPhysics:
         terms = {"m": m, "qs_per_p": self.qs_per_pm2 * m * m}
         if any(code == 1 for code, _, _ in self.groups):
             terms["turbofan"] = turbofan_mach_terms(m)
+        for code, tid, idx in self.groups:
+            if code == 2:
+                terms[("table", tid)] = self.cases.tables[tid].mach_terms(m[idx])
         self._terms = (mach, terms)
         return terms
 
@@ -138,8 +142,8 @@ class ClimbPhysics:
         cs = self.cases
         out = np.empty(np.broadcast_shapes(np.shape(altitude_m), np.shape(t)))
         for code, tid, idx in self.groups:
-            sub = (lambda a: col(a)[idx]) if not isinstance(idx, slice) else col
-            rows = (lambda a: np.broadcast_to(a, out.shape)[idx])
+            sub = (lambda a: col(a)[idx])  # noqa: E731
+            rows = (lambda a: np.broadcast_to(a, out.shape)[idx])  # noqa: E731
             if code == 0:
                 # A flat-rated engine holds its ISA thrust up to the flat-rate deviation (the loss
                 # above it is hot_day_factor): its lapse sees ISA density, not the day's.
@@ -150,7 +154,8 @@ class ClimbPhysics:
                 frac = turbofan_lapse_from_terms(rows(t), rows(p), sub(cs.throttle_ratio),
                                                  tuple(sub(x) for x in terms["turbofan"]))
             else:
-                frac = cs.tables[tid](rows(altitude_m) / FT, rows(col(terms["m"])))
+                j, ty, outside = terms[("table", tid)]
+                frac = cs.tables[tid].at(rows(altitude_m) / FT, (col(j), col(ty), col(outside)))
             out[idx] = frac
         return out
 
@@ -199,35 +204,36 @@ def _illinois(phys: "ClimbPhysics", mach, a, b, fa, fb, tol=ROOT_TOL_M, max_iter
     Jarratt, BIT 11 (1971) 168-174). Converged cases drop out once they are half the work.
     """
     a, b, fa, fb = (np.array(x, dtype=float) for x in (a, b, fa, fb))
-    side = np.zeros(a.shape, dtype=np.int8)
-    idx = np.arange(a.size)
+    out = np.empty(a.size)
+    idx = np.arange(a.size)  # the cases still in the working arrays
+    side = np.zeros(a.size, dtype=np.int8)
     sub, m_sub = phys, mach
-    active = np.abs(b - a) > tol
     for _ in range(max_iter):
-        n_active = int(active.sum())
+        active = np.abs(b - a) > tol
+        n_active = int(np.count_nonzero(active))
         if n_active == 0:
             break
         if n_active < 0.5 * idx.size:
-            keep = np.flatnonzero(active[idx])
-            idx, sub, m_sub = idx[keep], sub.subset(keep), m_sub[keep]
-        ai, bi, fai, fbi, si = a[idx], b[idx], fa[idx], fb[idx], side[idx]
-        denom = fbi - fai
-        c = np.where(denom != 0.0, (ai * fbi - bi * fai) / np.where(denom != 0.0, denom, 1.0), 0.5 * (ai + bi))
-        c = np.clip(c, np.minimum(ai, bi), np.maximum(ai, bi))
+            done = ~active
+            out[idx[done]] = np.where(np.abs(fa[done]) <= np.abs(fb[done]), a[done], b[done])
+            keep = np.flatnonzero(active)
+            idx, a, b, fa, fb, side = idx[keep], a[keep], b[keep], fa[keep], fb[keep], side[keep]
+            sub, m_sub = sub.subset(keep), m_sub[keep]
+        denom = fb - fa
+        c = np.where(denom != 0.0, (a * fb - b * fa) / np.where(denom != 0.0, denom, 1.0), 0.5 * (a + b))
+        c = np.clip(c, np.minimum(a, b), np.maximum(a, b))
         fc = sub.excess(c, m_sub)
         left = fc >= 0.0  # the root lies between c and b
         # Anderson-Bjorck scaling of the endpoint kept twice running (Illinois would halve it).
         with np.errstate(divide="ignore", invalid="ignore"):
-            m_left, m_right = 1.0 - fc / fai, 1.0 - fc / fbi
-        m_left = np.where(m_left > 0.0, m_left, 0.5)
-        m_right = np.where(m_right > 0.0, m_right, 0.5)
-        fbi = np.where(left & (si == -1), m_left * fbi, fbi)
-        fai = np.where(~left & (si == 1), m_right * fai, fai)
-        a[idx], fa[idx] = np.where(left, c, ai), np.where(left, fc, fai)
-        b[idx], fb[idx] = np.where(left, bi, c), np.where(left, fbi, fc)
-        side[idx] = np.where(left, -1, 1)
-        active[idx] = np.abs(b[idx] - a[idx]) > tol
-    return np.where(np.abs(fa) <= np.abs(fb), a, b)
+            m_left, m_right = 1.0 - fc / fa, 1.0 - fc / fb
+        fb = np.where(left & (side == -1), np.where(m_left > 0.0, m_left, 0.5) * fb, fb)
+        fa = np.where(~left & (side == 1), np.where(m_right > 0.0, m_right, 0.5) * fa, fa)
+        a, fa = np.where(left, c, a), np.where(left, fc, fa)
+        b, fb = np.where(left, b, c), np.where(left, fb, fc)
+        side = np.where(left, -1, 1).astype(np.int8)
+    out[idx] = np.where(np.abs(fa) <= np.abs(fb), a, b)
+    return out
 
 
 def _golden_max(func, a, b, iterations):
@@ -617,7 +623,24 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                     final.limit, flags, final.vmo_floor_m, final.co_limit)
 
 
+_GROUP_BASE = 1_000_000
+
+
+def _group_key(cases: CaseSet) -> np.ndarray:
+    """Thrust-model group of each case: model code, and the table for table engines."""
+    return cases.model_code * _GROUP_BASE + np.where(cases.model_code == MODEL_CODES["table"], cases.table_id + 1, 0)
+
+
 def _solve_chunk(part: CaseSet) -> Ceilings:
+    key = _group_key(part)
+    if np.any(key[1:] < key[:-1]):
+        order = np.argsort(key, kind="stable")
+        solved = _solve_sorted_chunk(part.take(order))
+        return solved.take(np.argsort(order))
+    return _solve_sorted_chunk(part)
+
+
+def _solve_sorted_chunk(part: CaseSet) -> Ceilings:
     best = np.isnan(part.mach)
     if best.all():
         return _best_speed(ClimbPhysics(part))

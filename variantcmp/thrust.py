@@ -112,17 +112,26 @@ class TableLapse:
         self._flat = self.fraction.ravel()
 
     def __call__(self, altitude_ft, mach):
-        xs, ys = self.altitude_ft, self.mach
-        x = np.asarray(altitude_ft, dtype=float)
-        y = np.broadcast_to(np.asarray(mach, dtype=float), x.shape)
-        i = np.clip(np.searchsorted(xs, x, side="right") - 1, 0, xs.size - 2)
+        return self.at(altitude_ft, self.mach_terms(np.broadcast_to(np.asarray(mach, dtype=float),
+                                                                   np.shape(altitude_ft))))
+
+    def mach_terms(self, mach):
+        """The Mach half of the interpolation (cell index, weight, outside), reusable per Mach."""
+        ys = self.mach
+        y = np.asarray(mach, dtype=float)
         j = np.clip(np.searchsorted(ys, y, side="right") - 1, 0, ys.size - 2)
-        tx = (x - xs[i]) / (xs[i + 1] - xs[i])
         ty = (y - ys[j]) / (ys[j + 1] - ys[j])
-        k = i * ys.size + j
-        z = self._flat
+        return j, ty, (y < ys[0]) | (y > ys[-1]) | np.isnan(y)
+
+    def at(self, altitude_ft, terms):
+        """Interpolated fraction at pressure altitudes (ft) for precomputed Mach terms."""
+        xs, ny, z = self.altitude_ft, self.mach.size, self._flat
+        j, ty, outside_mach = terms
+        x = np.asarray(altitude_ft, dtype=float)
+        i = np.clip(np.searchsorted(xs, x, side="right") - 1, 0, xs.size - 2)
+        tx = (x - xs[i]) / (xs[i + 1] - xs[i])
+        k = i * ny + j
         low = z[k] + ty * (z[k + 1] - z[k])
-        high = z[k + ys.size] + ty * (z[k + ys.size + 1] - z[k + ys.size])
+        high = z[k + ny] + ty * (z[k + ny + 1] - z[k + ny])
         out = low + tx * (high - low)
-        outside = (x < xs[0]) | (x > xs[-1]) | (y < ys[0]) | (y > ys[-1]) | np.isnan(x) | np.isnan(y)
-        return np.where(outside, np.nan, out)
+        return np.where(outside_mach | (x < xs[0]) | (x > xs[-1]) | np.isnan(x), np.nan, out)
