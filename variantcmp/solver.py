@@ -19,7 +19,8 @@ import numpy as np
 
 from .aero import energy_share_factor, korn_coefficients, lock_wave_drag
 from .airspeed import pressure_for_cas_at_mach_pa
-from .atmosphere import G0, GAMMA, MODEL_TOP_M, R_AIR, isa_state, pressure_altitude_m, speed_of_sound_ms
+from .atmosphere import (G0, GAMMA, LAYER_BASE_M, MODEL_TOP_M, R_AIR, isa_state, pressure_altitude_m,
+                         speed_of_sound_ms)
 from .cases import FLOOR_M, FT, MODEL_CODES, CaseSet
 from .thrust import density_lapse_fraction, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms
 
@@ -43,6 +44,7 @@ SCAN_LEVELS_M = np.concatenate([
 QUICK_CL_FRACTIONS = (0.6, 0.4, 0.25, 0.12)
 WARM_HALF_WIDTH_M = 250.0
 ROOT_TOL_M = 0.003
+STRAGGLER_ITERATION = 8  # regula falsi steps before brackets across a layer base are split there
 CO_LIMIT_M = 10.0  # two limits this close both bind (e.g. thrust and buffet at the coffin corner)  # about 0.01 ft
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
@@ -208,11 +210,14 @@ def _illinois(phys: "ClimbPhysics", mach, a, b, fa, fb, tol=ROOT_TOL_M, max_iter
     idx = np.arange(a.size)  # the cases still in the working arrays
     side = np.zeros(a.size, dtype=np.int8)
     sub, m_sub = phys, mach
-    for _ in range(max_iter):
+    for iteration in range(max_iter):
         active = np.abs(b - a) > tol
         n_active = int(np.count_nonzero(active))
         if n_active == 0:
             break
+        if iteration == STRAGGLER_ITERATION:
+            a, b, fa, fb = _split_at_layer_base(sub, m_sub, a, b, fa, fb, active)
+            continue
         if n_active < 0.5 * idx.size:
             done = ~active
             out[idx[done]] = np.where(np.abs(fa[done]) <= np.abs(fb[done]), a[done], b[done])
@@ -230,10 +235,38 @@ def _illinois(phys: "ClimbPhysics", mach, a, b, fa, fb, tol=ROOT_TOL_M, max_iter
         fb = np.where(left & (side == -1), np.where(m_left > 0.0, m_left, 0.5) * fb, fb)
         fa = np.where(~left & (side == 1), np.where(m_right > 0.0, m_right, 0.5) * fa, fa)
         a, fa = np.where(left, c, a), np.where(left, fc, fa)
-        b, fb = np.where(left, b, c), np.where(left, fb, fc)
+        b, fb = np.where(left & (fc != 0.0), b, c), np.where(left, fb, fc)  # fc == 0: the root itself
         side = np.where(left, -1, 1).astype(np.int8)
     out[idx] = np.where(np.abs(fa) <= np.abs(fb), a, b)
     return out
+
+
+def _split_at_layer_base(phys: "ClimbPhysics", mach, a, b, fa, fb, active):
+    """Brackets that straddle an ISA layer base, narrowed to one side of it (or to it).
+
+    The energy-share factor changes with the layer's temperature gradient, so the climb rate
+    jumps at a layer base (about 8 % at Mach 0.8 at the tropopause). A ceiling often sits exactly
+    there, where a regula falsi crawls; a look just below and just above the base settles it.
+    """
+    lo, hi = np.minimum(a, b), np.maximum(a, b)
+    base_i = np.searchsorted(LAYER_BASE_M, hi, side="left") - 1
+    base = LAYER_BASE_M[np.clip(base_i, 0, LAYER_BASE_M.size - 1)]
+    cut = np.flatnonzero(active & (base_i >= 1) & (base > lo) & (base < hi))
+    if cut.size == 0:
+        return a, b, fa, fb
+    eps = 1e-6
+    sub = phys if cut.size == a.size else phys.subset(cut)
+    below = sub.excess(base[cut] - eps, mach[cut])
+    above = sub.excess(base[cut] + eps, mach[cut])
+    a, b, fa, fb = a.copy(), b.copy(), fa.copy(), fb.copy()
+    # a climbs (fa >= 0) and b does not; keep the side where the sign changes.
+    up = above >= 0.0  # climbs just above the base: the root is above it
+    at = (below >= 0.0) & ~up  # climbs below, not above: the base itself
+    a[cut] = np.where(up, base[cut] + eps, np.where(at, base[cut] - eps, a[cut]))
+    fa[cut] = np.where(up, above, np.where(at, below, fa[cut]))
+    b[cut] = np.where(up, b[cut], np.where(at, base[cut] + eps, base[cut] - eps))
+    fb[cut] = np.where(up, fb[cut], np.where(at, above, below))
+    return a, b, fa, fb
 
 
 def _golden_max(func, a, b, iterations):
