@@ -52,6 +52,7 @@ BEST_MACH_ITERATIONS = 18
 SMOOTH_ITERATIONS = 6
 CHUNK = 16_384
 PARALLEL_MIN_CASES = 200_000
+BEST_SPEED_WORK = 15
 
 
 @dataclass
@@ -691,8 +692,9 @@ def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, processes: int | None = N
     """Every limit's ceiling and the maximum altitude for all cases (fixed Mach or best speed).
 
     Cases whose ``mach`` is NaN are solved for the best speed. Work goes in chunks sized for the
-    cache (bounded memory). Large jobs (``PARALLEL_MIN_CASES`` or more) are shared between
-    processes, one per core: numpy threads gained nothing here (measured), processes do.
+    cache (bounded memory). Large jobs (``PARALLEL_MIN_CASES`` fixed-Mach solves or more, a
+    best-speed case counting ``BEST_SPEED_WORK``) are shared between processes, one per core:
+    numpy threads gained nothing here (measured), processes do.
     """
     n = len(cases)
     if n == 0:
@@ -702,7 +704,9 @@ def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, processes: int | None = N
     chunk = max(1, chunk)
     bounds = [(start, min(start + chunk, n)) for start in range(0, n, chunk)]
     if processes is None:
-        processes = min(2, os.cpu_count() or 1) if n >= PARALLEL_MIN_CASES else 1
+        # A best-speed case is some fifteen fixed-Mach solves: weigh the work, not the count.
+        work = n + (BEST_SPEED_WORK - 1) * int(np.count_nonzero(np.isnan(cases.mach)))
+        processes = min(2, os.cpu_count() or 1) if work >= PARALLEL_MIN_CASES else 1
     processes = min(processes, len(bounds))
     if processes > 1 and sys.platform.startswith("linux"):
         # fork: the workers inherit the case arrays (no copy is sent); only results come back.
