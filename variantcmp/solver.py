@@ -44,6 +44,7 @@ SCAN_LEVELS_M = np.concatenate([
 QUICK_CL_FRACTIONS = (0.6, 0.4, 0.25, 0.12)
 WARM_HALF_WIDTH_M = 250.0
 ROOT_TOL_M = 0.003
+SEARCH_TOL_M = 0.03  # inside the best-speed search, where only comparisons matter (0.1 ft)
 STRAGGLER_ITERATION = 8  # regula falsi steps before brackets across a layer base are split there
 CO_LIMIT_M = 10.0  # two limits this close both bind (e.g. thrust and buffet at the coffin corner)  # about 0.01 ft
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
@@ -315,9 +316,15 @@ def _parabolic_max(func, grid, values, iterations):
         tiny = 1e-9 + 1e-6 * np.abs(c - a)
         bad = ~np.isfinite(v) | (v <= a) | (v >= c) | (np.abs(v - b) < tiny)
         v = np.where(bad, golden, v)
-        fv = func(v)
+        # The nearest known point starts the evaluation (a warm start for a root inside func).
+        near_a, near_c = np.abs(v - a) < np.abs(v - b), np.abs(v - c) < np.abs(v - b)
+        guess = np.where(near_a, fa, np.where(near_c, fc, fb))
+        left_of = v < b
+        with np.errstate(invalid="ignore"):  # inf - inf where a speed is above the model top
+            spread = np.abs(np.where(left_of, fa, fc) - fb)
+        fv = func(v, guess, spread)
         up = fv > fb
-        left = v < b
+        left = left_of
         a, fa = np.where(up & ~left, b, np.where(~up & left, v, a)), np.where(up & ~left, fb, np.where(~up & left, fv, fa))
         c, fc = np.where(up & left, b, np.where(~up & ~left, v, c)), np.where(up & left, fb, np.where(~up & ~left, fv, fc))
         b, fb = np.where(up, v, b), np.where(up, fv, fb)
@@ -341,7 +348,7 @@ def _interpolated_guess(cases: CaseSet, grid_values):
     return guess
 
 
-def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None):
+def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_HALF_WIDTH_M, warm_tol_m=ROOT_TOL_M):
     """Highest pressure altitude (m) with the required residual climb at a Mach, and flags.
 
     With ``guess_m`` (the answer at a nearby speed) the root is first bracketed tightly around
@@ -354,8 +361,8 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None):
     top = np.minimum(cs.top_m, MODEL_TOP_M)
     if guess_m is not None:
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            a = np.clip(guess_m - WARM_HALF_WIDTH_M, cs.floor_m, top)
-            b = np.clip(guess_m + WARM_HALF_WIDTH_M, cs.floor_m, top)
+            a = np.clip(guess_m - half_width_m, cs.floor_m, top)
+            b = np.clip(guess_m + half_width_m, cs.floor_m, top)
             fa, fb = phys.excess(a, mach), phys.excess(b, mach)
         warm = np.isfinite(guess_m) & (fa >= 0.0) & (fb < 0.0) & (b > a)
         if warm.any():
@@ -365,7 +372,7 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None):
                 result[cold], flags[cold] = thrust_ceiling_m(phys.subset(cold), mach[cold])
             sub = phys if hot.size == n else phys.subset(hot)
             with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-                result[hot] = _illinois(sub, mach[hot], a[hot], b[hot], fa[hot], fb[hot])
+                result[hot] = _illinois(sub, mach[hot], a[hot], b[hot], fa[hot], fb[hot], tol=warm_tol_m)
             return result, flags
     qs = phys.qs_per_pm2 * mach * mach
     cl_star = np.sqrt(cs.cd0 / cs.k)
@@ -505,7 +512,8 @@ def closed_form_ceilings_m(cases: CaseSet, mach):
     return buffet, stall, cabin, vmo_floor
 
 
-def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=True) -> Ceilings:
+def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=True,
+                guess_half_width_m=WARM_HALF_WIDTH_M) -> Ceilings:
     """Every limit at a fixed Mach per case, and the maximum altitude where all are met.
 
     With ``thrust_needed=False`` (only the maximum altitude is wanted) the thrust root is not
@@ -516,7 +524,7 @@ def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=Tru
     buffet, stall, cabin, vmo_floor = closed_form_ceilings_m(cs, mach)
     skipped = np.zeros(len(cs), dtype=bool)
     if thrust_needed:
-        thrust, flags = thrust_ceiling_m(phys, mach, thrust_guess_m)
+        thrust, flags = thrust_ceiling_m(phys, mach, thrust_guess_m, guess_half_width_m)
     else:
         other = np.fmin(np.fmin(np.where(np.isnan(buffet), np.inf, buffet), stall), np.fmin(cs.certified_m, cabin))
         inside = np.isfinite(other) & (other >= cs.floor_m) & (other <= np.minimum(cs.top_m, MODEL_TOP_M))
@@ -567,6 +575,13 @@ def _objective(values):
     return np.where(np.isnan(values), -np.inf, values)
 
 
+def _blank_ceilings(n: int, mach) -> Ceilings:
+    """Ceilings of cases not solved at a speed: nothing known (NaN), no flags."""
+    nan = np.full(n, np.nan)
+    return Ceilings(nan.copy(), nan.copy(), nan.copy(), nan.copy(), nan.copy(), nan.copy(), np.array(mach, float),
+                    np.full(n, -1, np.int8), np.zeros(n, np.int32), np.full(n, -np.inf), np.full(n, -1, np.int8))
+
+
 def _score(res: Ceilings, thrust_m):
     """Highest altitude first; where a flat limit (certified, cabin) makes many speeds equal,
     prefer the speed with the most room under the aerodynamic and thrust limits."""
@@ -587,18 +602,46 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     n, g = len(cs), BEST_MACH_GRID
     rows = np.arange(n)
     grid = cs.mach_low[:, None] + (cs.mach_high - cs.mach_low)[:, None] * np.linspace(0.0, 1.0, g)[None, :]
-    columns, guess = [], None
-    for j in range(g):
-        columns.append(_fixed_mach(phys, np.ascontiguousarray(grid[:, j]), guess))
-        guess = columns[-1].thrust_m if guess is None else np.where(np.isfinite(columns[-1].thrust_m),
-                                                                    columns[-1].thrust_m, guess)
+    # Fastest speed first (where the quick bracket works best); each next root is started from
+    # the line through the previous two, in a window as wide as their step.
+    # Past two falls in a row from its peak a case's thrust ceiling is taken to keep falling
+    # towards low speed (one hump, stall-bound there): its remaining columns are not solved.
+    columns, guess, half, last, before = [None] * g, None, WARM_HALF_WIDTH_M, None, None
+    peak, falls = np.full(n, -np.inf), np.zeros(n, dtype=np.int64)
+    for j in reversed(range(g)):
+        mach_j = np.ascontiguousarray(grid[:, j])
+        live = np.flatnonzero(falls < 2)
+        if live.size == n:
+            columns[j] = _fixed_mach(phys, mach_j, guess, guess_half_width_m=half)
+        else:
+            columns[j] = _blank_ceilings(n, mach_j)
+            # The closed forms cost little: keep them for every speed (buffet's own best speed).
+            columns[j].buffet_m[:], columns[j].stall_m[:], columns[j].cabin_m[:], _ = closed_form_ceilings_m(cs, mach_j)
+            if live.size:
+                pick = (lambda x: None if x is None else (x[live] if np.ndim(x) else x))  # noqa: E731
+                columns[j].put(live, _fixed_mach(phys.subset(live), mach_j[live], pick(guess),
+                                                 guess_half_width_m=pick(half)))
+        found = columns[j].thrust_m
+        value = _objective(found)
+        falls = np.where(value < peak, falls + 1, 0)
+        peak = np.maximum(peak, value)
+        before, last = last, (found if last is None else np.where(np.isfinite(found), found, last))
+        if before is None:
+            guess = last
+        else:
+            step = np.where(np.isfinite(last - before), last - before, 0.0)
+            guess, half = last + step, np.maximum(WARM_HALF_WIDTH_M, 0.5 * np.abs(step))
     at_grid = {k: np.stack([getattr(c, k) for c in columns], axis=1) for k in Ceilings.__dataclass_fields__}
     thrust_grid = at_grid["thrust_m"]
     guess_all = _interpolated_guess(cs, thrust_grid)
 
-    m_thrust, thrust_best = _parabolic_max(
-        lambda m: _objective(thrust_ceiling_m(phys, m, guess_all(m))[0]), grid, _objective(thrust_grid),
-        SMOOTH_ITERATIONS)
+    def thrust_at(m, near, spread):
+        ok = np.isfinite(near)
+        start = np.where(ok, near, guess_all(m))
+        half = np.clip(np.where(ok & np.isfinite(spread), 0.5 * spread, WARM_HALF_WIDTH_M), 30.0, 2000.0)
+        return _objective(thrust_ceiling_m(phys, m, start, half, SEARCH_TOL_M)[0])
+
+    m_thrust, thrust_best = _parabolic_max(thrust_at, grid, _objective(thrust_grid), SMOOTH_ITERATIONS)
     final = _fixed_mach(phys, m_thrust, guess_all(m_thrust))
     m_best = m_thrust.copy()
 
