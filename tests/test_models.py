@@ -16,7 +16,8 @@ FT = 0.3048
 
 
 def test_mattingly_lapse_hand_values():
-    # Mattingly, Heiser & Pratt, Aircraft Engine Design 2nd ed., eq. 2.54a, worked by hand:
+    # Mattingly et al., Aircraft Engine Design 2nd ed., ch. 2 high-bypass lapse (formula from memory),
+    # worked by hand:
     # M 0.8 at 11 km ISA: theta = 216.65/288.15 = 0.75187, delta = 22632/101325 = 0.22336,
     # ram = 1 + 0.2*0.64 = 1.128, theta0 = 0.84811 <= TR 1.0, delta0 = 0.22336*1.128^3.5 = 0.34048,
     # alpha = 0.34048 * (1 - 0.49*sqrt(0.8)) = 0.34048 * 0.56173 = 0.19126.

@@ -75,7 +75,7 @@ def synthetic_cases(catalogue: Catalogue, n: int, mach="cruise", seed: int = SEE
 
 
 # ----------------------------------------------------------------------------- scalar reference
-# Plain floats and math, written from the same published formulas (ISO 2533, Mattingly eq. 2.54a,
+# Plain floats and math, written from the same published formulas (ISO 2533, the Mattingly et al. turbofan lapse,
 # Korn/Lock, the total-energy climb equation), without numpy, one case at a time.
 
 _G, _R, _GAM = 9.80665, 287.05287, 1.4

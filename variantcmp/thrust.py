@@ -36,7 +36,7 @@ def density_lapse_fraction(density_kg_m3, lapse_exponent=1.0, tropopause_density
 def stagnation_ratios(mach, temperature_k, pressure_pa):
     """Total-temperature and total-pressure ratios theta0, delta0 (to sea-level standard).
 
-    Source: Mattingly, Heiser & Pratt, *Aircraft Engine Design*, 2nd ed. (AIAA 2002), eqs. 2.52a-b:
+    Source: Mattingly et al., *Aircraft Engine Design*, 2nd ed. (AIAA 2002), ch. 2:
     theta0 = (T/T_std)(1 + (gamma-1)/2 M^2), delta0 = (p/p_std)(1 + (gamma-1)/2 M^2)^(gamma/(gamma-1)).
     """
     ram = 1.0 + 0.5 * (GAMMA - 1.0) * np.asarray(mach, dtype=float) ** 2
@@ -48,8 +48,9 @@ def stagnation_ratios(mach, temperature_k, pressure_pa):
 def turbofan_lapse_fraction(mach, temperature_k, pressure_pa, throttle_ratio=1.0):
     """Installed full-throttle thrust lapse of a high-bypass turbofan.
 
-    Source: Mattingly, Heiser & Pratt, *Aircraft Engine Design*, 2nd ed. (AIAA 2002), eq. 2.54a
-    (high-bypass turbofan, maximum power):
+    Source: Mattingly et al., *Aircraft Engine Design*, 2nd ed. (AIAA 2002), ch. 2,
+    installed thrust lapse of a high-bypass turbofan at maximum power (the formula as recalled,
+    from memory):
     alpha = delta0 (1 - 0.49 sqrt(M))                          for theta0 <= TR
     alpha = delta0 (1 - 0.49 sqrt(M) - 3 (theta0 - TR)/(1.5 + M)) for theta0 > TR,
     TR the throttle ratio (theta0 at which the engine reaches its temperature limit). Hot days
