@@ -13,11 +13,10 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .atmosphere import G0, LAYER_BASE_P_PA, LAYER_BASE_T_K, R_AIR, isa_pressure_pa
+from .constants import M_PER_FT, MS_PER_FPM, MS_PER_KT
 from .thrust import TableLapse
 
-FT = 0.3048
-KT = 1852.0 / 3600.0
-FPM = 0.3048 / 60.0
+FT, KT, FPM = M_PER_FT, MS_PER_KT, MS_PER_FPM  # m per ft, m/s per kt, m/s per ft/min
 MODEL_CODES = {"density-lapse": 0, "turbofan": 1, "table": 2}
 #: Lowest pressure altitude at which ceilings are searched: -2,000 ft.
 FLOOR_M = -2000.0 * FT

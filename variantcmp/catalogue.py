@@ -497,9 +497,11 @@ def _variant(t: _Table, engine_ids: set[str]) -> Variant | None:
 
     dp, cabin_ft = nums.get("max_cabin_dp_kpa"), nums.get("cabin_altitude_ft")
     if dp is not None and cabin_ft is not None:
-        # ISA pressure at the cabin altitude (ISO 2533, troposphere): the differential must leave
-        # a positive ambient pressure, or the limit would silently vanish.
-        cabin_kpa = 101.325 * (1.0 - 0.0065 * cabin_ft * 0.3048 / 288.15) ** 5.25588
+        # The differential must leave a positive ambient pressure, or the limit would vanish.
+        from .atmosphere import isa_pressure_pa
+        from .constants import M_PER_FT
+
+        cabin_kpa = float(isa_pressure_pa(cabin_ft * M_PER_FT)) / 1000.0
         if dp >= cabin_kpa:
             t.fail("max_cabin_dp_kpa", f"expected less than the cabin pressure at cabin_altitude_ft "
                                        f"({cabin_kpa:.1f} kPa at {_fmt(cabin_ft)} ft), got {_fmt(dp)}")

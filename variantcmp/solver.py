@@ -2,9 +2,11 @@
 
 For a fixed Mach, the buffet, stall, certified and cabin ceilings are closed forms in pressure;
 the thrust ceiling (residual rate of climb = the required rate) is the top root of the excess
-climb rate, bracketed from a coarse altitude scan and refined with the Illinois method. For the
-best speed, the Mach that gives the highest altitude meeting every limit at once is found per case
-by a Mach grid and golden-section refinement. Everything is vectorised over cases.
+climb rate, bracketed from lift-coefficient levels (a coarse altitude scan where they fail) and
+refined by a regula falsi. For the best speed, the Mach that gives the highest altitude meeting
+every limit at once is found per case from a Mach grid, parabolic refinement of the thrust
+ceiling's maximum and, where another limit binds, a golden-section search. Everything is
+vectorised over cases; DEVELOPERS.md ("How the ceiling solver works") has the details.
 """
 
 from __future__ import annotations
@@ -41,12 +43,12 @@ BELOW_FLOOR = 256  # the limits cross below -2,000 ft
 SCAN_LEVELS_M = np.concatenate([
     [FLOOR_M], np.arange(0.0, 21_000.0, 1_000.0), [22_500.0, 25_000.0, 28_000.0, 32_000.0,
                                                    38_000.0, 47_000.0, 60_000.0, MODEL_TOP_M]])
-QUICK_CL_FRACTIONS = (0.6, 0.4, 0.25, 0.12)
-WARM_HALF_WIDTH_M = 250.0
-ROOT_TOL_M = 0.003
+QUICK_CL_FRACTIONS = (0.6, 0.4, 0.25, 0.12)  # of CL*, stepping down from CLmax to bracket the root
+WARM_HALF_WIDTH_M = 250.0  # window around a nearby speed's thrust ceiling
+ROOT_TOL_M = 0.003  # about 0.01 ft
 SEARCH_TOL_M = 0.03  # inside the best-speed search, where only comparisons matter (0.1 ft)
 STRAGGLER_ITERATION = 8  # regula falsi steps before brackets across a layer base are split there
-CO_LIMIT_M = 10.0  # two limits this close both bind (e.g. thrust and buffet at the coffin corner)  # about 0.01 ft
+CO_LIMIT_M = 10.0  # two limits this close both bind (e.g. thrust and buffet at the coffin corner)
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
 BEST_MACH_ITERATIONS = 18

@@ -13,12 +13,13 @@ import math
 import re
 from dataclasses import dataclass
 
+from .constants import KG_PER_LB, M_PER_FT, MS_PER_FPM, MS_PER_KT
+
 # Exact by definition: international foot (1959), nautical mile (1929), pound (1959).
-FT_PER_M = 1 / 0.3048
-M_PER_FT = 0.3048
-KT_TO_MS = 1852 / 3600
-LB_TO_KG = 0.45359237
-FPM_TO_MS = 0.3048 / 60
+FT_PER_M = 1 / M_PER_FT
+KT_TO_MS = MS_PER_KT
+LB_TO_KG = KG_PER_LB
+FPM_TO_MS = MS_PER_FPM
 T_TO_KG = 1000.0
 
 # Named residual rate-of-climb criteria, ft/min (trade definitions; common practice).
