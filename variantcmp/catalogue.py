@@ -21,6 +21,9 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from .atmosphere import isa_pressure_pa
+from .constants import M_PER_FT
+
 __all__ = [
     "Problem",
     "CatalogueError",
@@ -498,9 +501,6 @@ def _variant(t: _Table, engine_ids: set[str]) -> Variant | None:
     dp, cabin_ft = nums.get("max_cabin_dp_kpa"), nums.get("cabin_altitude_ft")
     if dp is not None and cabin_ft is not None:
         # The differential must leave a positive ambient pressure, or the limit would vanish.
-        from .atmosphere import isa_pressure_pa
-        from .constants import M_PER_FT
-
         cabin_kpa = float(isa_pressure_pa(cabin_ft * M_PER_FT)) / 1000.0
         if dp >= cabin_kpa:
             t.fail("max_cabin_dp_kpa", f"expected less than the cabin pressure at cabin_altitude_ft "
