@@ -354,9 +354,10 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
     """Highest pressure altitude (m) with the required residual climb at a Mach, and flags.
 
     With ``guess_m`` (the answer at a nearby speed) the root is first bracketed tightly around
-    it. Otherwise, or where that fails, a quick bracket: where the Mach flies the polar at 0.6 CL*
-    (CL* at L/D max) the excess climb rate is usually near its peak, and at CLmax far past it; the
-    top root lies between. Cases where neither holds go through the full altitude scan.
+    it. Otherwise, or where that fails, a quick bracket: at CLmax the excess climb rate is far
+    past its peak, and stepping down through fractions of CL* (L/D max) finds a level that
+    climbs; the top root lies between. Cases where neither holds go through the altitude scan.
+    Table engines may have several humps: a root is kept only if nothing above it climbs.
     """
     cs = phys.cases
     n = len(cs)
@@ -375,6 +376,14 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
             sub = phys if hot.size == n else phys.subset(hot)
             with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
                 result[hot] = _illinois(sub, mach[hot], a[hot], b[hot], fa[hot], fb[hot], tol=warm_tol_m)
+                table = hot[cs.model_code[hot] == MODEL_CODES["table"]]
+                if table.size:
+                    qs_t = phys.qs_per_pm2[table] * mach[table] ** 2
+                    at_cl_max = pressure_altitude_m(phys.w_n[table] / (qs_t * cs.cl_max[table]))
+                    high = np.maximum(np.clip(at_cl_max, cs.floor_m[table], top[table]), result[table])
+                    redo = table[_climbs_above(phys.subset(table), mach[table], result[table], high)]
+                    if redo.size:
+                        result[redo], flags[redo] = thrust_ceiling_m(phys.subset(redo), mach[redo])
             return result, flags
     qs = phys.qs_per_pm2 * mach * mach
     cl_star = np.sqrt(cs.cd0 / cs.k)
