@@ -232,14 +232,17 @@ def _illinois(phys: "ClimbPhysics", mach, a, b, fa, fb, tol=ROOT_TOL_M, max_iter
         c = np.where(denom != 0.0, (a * fb - b * fa) / np.where(denom != 0.0, denom, 1.0), 0.5 * (a + b))
         c = np.clip(c, np.minimum(a, b), np.maximum(a, b))
         fc = sub.excess(c, m_sub)
+        # Close enough: the secant slope puts the root within a tenth of the tolerance of c.
+        with np.errstate(divide="ignore", invalid="ignore"):
+            there = np.abs(fc) * np.abs(b - a) < 0.1 * tol * np.abs(fb - fa)
         left = fc >= 0.0  # the root lies between c and b
         # Anderson-Bjorck scaling of the endpoint kept twice running (Illinois would halve it).
         with np.errstate(divide="ignore", invalid="ignore"):
             m_left, m_right = 1.0 - fc / fa, 1.0 - fc / fb
         fb = np.where(left & (side == -1), np.where(m_left > 0.0, m_left, 0.5) * fb, fb)
         fa = np.where(~left & (side == 1), np.where(m_right > 0.0, m_right, 0.5) * fa, fa)
-        a, fa = np.where(left, c, a), np.where(left, fc, fa)
-        b, fb = np.where(left & (fc != 0.0), b, c), np.where(left, fb, fc)  # fc == 0: the root itself
+        a, fa = np.where(left | there, c, a), np.where(left, fc, fa)
+        b, fb = np.where(left & (fc != 0.0) & ~there, b, c), np.where(left, fb, fc)  # fc == 0: the root
         side = np.where(left, -1, 1).astype(np.int8)
     out[idx] = np.where(np.abs(fa) <= np.abs(fb), a, b)
     return out
