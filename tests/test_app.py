@@ -330,6 +330,7 @@ def test_inspect_variant():
             await pilot.press("i")
             await pilot.pause()
             assert isinstance(app.screen, VariantScreen)
+            assert shown_text(app.screen.query_one("#caution")) == CAUTION  # caution on this screen too
             assert app.screen.variant_id == first.id
             figures = app.screen.query_one("#variant-figures").content
             engines = app.screen.query_one("#variant-engines").content

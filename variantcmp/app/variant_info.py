@@ -14,6 +14,7 @@ from textual.screen import Screen
 from textual.widgets import Footer, Static
 
 from variantcmp.catalogue import Engine, Variant
+from variantcmp.caution import CAUTION
 from variantcmp.table import variant_figures
 from variantcmp.units import format_altitude_ft
 
@@ -149,6 +150,7 @@ class VariantScreen(Screen):
         self.variant_id = variant_id
 
     def compose(self) -> ComposeResult:
+        yield Static(CAUTION, id="caution")
         with VerticalScroll(id="variant-body"):
             yield Static(id="variant-head")
             yield Static(id="variant-figures")
