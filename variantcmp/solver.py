@@ -45,6 +45,7 @@ SCAN_LEVELS_M = np.concatenate([
                                                    38_000.0, 47_000.0, 60_000.0, MODEL_TOP_M]])
 QUICK_CL_FRACTIONS = (0.6, 0.4, 0.25, 0.12)  # of CL*, stepping down from CLmax to bracket the root
 WARM_HALF_WIDTH_M = 250.0  # window around a nearby speed's thrust ceiling
+HUMP_CHECK_HALF_WIDTH_M = 50.0  # warm windows at least this wide get the table-engine hump check
 ROOT_TOL_M = 0.003  # about 0.01 ft
 SEARCH_TOL_M = 0.03  # inside the best-speed search, where only comparisons matter (0.1 ft)
 STRAGGLER_ITERATION = 8  # regula falsi steps before brackets across a layer base are split there
@@ -321,12 +322,18 @@ def _parabolic_max(func, grid, values, iterations):
         tiny = 1e-9 + 1e-6 * np.abs(c - a)
         bad = ~np.isfinite(v) | (v <= a) | (v >= c) | (np.abs(v - b) < tiny)
         v = np.where(bad, golden, v)
-        # The nearest known point starts the evaluation (a warm start for a root inside func).
+        # A start for a root inside func: the parabola's own value at v where it has one (close
+        # near a smooth maximum), else the nearest known point's, with how far they may be off.
         near_a, near_c = np.abs(v - a) < np.abs(v - b), np.abs(v - c) < np.abs(v - b)
-        guess = np.where(near_a, fa, np.where(near_c, fc, fb))
+        nearest = np.where(near_a, fa, np.where(near_c, fc, fb))
         left_of = v < b
-        with np.errstate(invalid="ignore"):  # inf - inf where a speed is above the model top
+        with np.errstate(invalid="ignore", divide="ignore"):  # inf - inf above the model top, edges
+            pred = (fa * (v - b) * (v - c) / ((a - b) * (a - c)) + fb * (v - a) * (v - c) / ((b - a) * (b - c))
+                    + fc * (v - a) * (v - b) / ((c - a) * (c - b)))
             spread = np.abs(np.where(left_of, fa, fc) - fb)
+            use_pred = np.isfinite(pred) & ~bad
+            guess = np.where(use_pred, pred, nearest)
+            spread = np.where(use_pred, 0.2 * np.abs(pred - nearest), spread)
         fv = func(v, guess, spread)
         up = fv > fb
         left = left_of
@@ -379,7 +386,10 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
             sub = phys if hot.size == n else phys.subset(hot)
             with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
                 result[hot] = _illinois(sub, mach[hot], a[hot], b[hot], fa[hot], fb[hot], tol=warm_tol_m)
-                table = hot[cs.model_code[hot] == MODEL_CODES["table"]]
+                # A tight window means a very close speed's answer: a higher hump cannot appear
+                # from nothing over so small a step, so only wide windows get the look above.
+                wide = np.broadcast_to(half_width_m, (n,))[hot] > HUMP_CHECK_HALF_WIDTH_M
+                table = hot[(cs.model_code[hot] == MODEL_CODES["table"]) & wide]
                 if table.size:
                     qs_t = phys.qs_per_pm2[table] * mach[table] ** 2
                     at_cl_max = pressure_altitude_m(phys.w_n[table] / (qs_t * cs.cl_max[table]))
@@ -652,7 +662,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     def thrust_at(m, near, spread):
         ok = np.isfinite(near)
         start = np.where(ok, near, guess_all(m))
-        half = np.clip(np.where(ok & np.isfinite(spread), 0.5 * spread, WARM_HALF_WIDTH_M), 30.0, 2000.0)
+        half = np.clip(np.where(ok & np.isfinite(spread), 0.5 * spread, WARM_HALF_WIDTH_M), 1.0, 2000.0)
         return _objective(thrust_ceiling_m(phys, m, start, half, SEARCH_TOL_M)[0])
 
     m_thrust, thrust_best = _parabolic_max(thrust_at, grid, _objective(thrust_grid), SMOOTH_ITERATIONS)
