@@ -379,7 +379,6 @@ def compute_envelopes(catalogue, specs: list[EnvelopeCase], mach="cruise") -> En
         raise OptionError(f"envelope: at most {MAX_ENVELOPE_CASES} cases can be overlaid, got {len(specs)}; "
                           "narrow the selection with --engine, --weight or --isa")
     cs = _case_set(catalogue, specs, mach)
-    n = len(cs)
     top_m = _highest(cs, lambda c, h: _evaluate(c, h, thrust_roots=False)["open"])
     marked_m = _highest(cs, lambda c, h: _feasible_at_mach(c, h, c.mach))
 

@@ -405,7 +405,7 @@ def draw_envelope(env, width: int = 80, height: int = 24, speed: str = "mach", a
                                        + [t["mmo" + suffix].to_numpy() for t in per_case]))
     if np.isfinite(band_hi):
         x_range = (x_range[0], min(x_range[1], x_range[0] + (band_hi - x_range[0]) * 1.15))
-    legend, notes = [], []
+    notes = []
     row0 = cases[0]
     if single:
         title = f"Envelope {_case_title(row0)}  buffet margin {row0['g_margin']:g} g"

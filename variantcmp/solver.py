@@ -102,7 +102,6 @@ class ClimbPhysics:
 
     def __init__(self, cases: CaseSet):
         self.cases = cases
-        codes = cases.model_code
         # One group per thrust model (per table for table engines). Cases sorted by group (as
         # _solve_chunk does) make each group a slice: views instead of gathers and scatters.
         key = _group_key(cases)
