@@ -148,8 +148,8 @@ class ClimbPhysics:
         cs = self.cases
         out = np.empty(np.broadcast_shapes(np.shape(altitude_m), np.shape(t)))
         for code, tid, idx in self.groups:
-            sub = (lambda a: col(a)[idx])  # noqa: E731
-            rows = (lambda a: np.broadcast_to(a, out.shape)[idx])  # noqa: E731
+            sub = (lambda a, idx=idx: col(a)[idx])  # noqa: E731  (per-case arrays of the group)
+            rows = (lambda a, idx=idx: np.broadcast_to(a, out.shape)[idx])  # noqa: E731  (evaluation arrays)
             if code == 0:
                 # A flat-rated engine holds its ISA thrust up to the flat-rate deviation (the loss
                 # above it is hot_day_factor): its lapse sees ISA density, not the day's.
@@ -641,7 +641,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
             # The closed forms cost little: keep them for every speed (buffet's own best speed).
             columns[j].buffet_m[:], columns[j].stall_m[:], columns[j].cabin_m[:], _ = closed_form_ceilings_m(cs, mach_j)
             if live.size:
-                pick = (lambda x: None if x is None else (x[live] if np.ndim(x) else x))  # noqa: E731
+                pick = (lambda x, live=live: None if x is None else (x[live] if np.ndim(x) else x))  # noqa: E731
                 columns[j].put(live, _fixed_mach(phys.subset(live), mach_j[live], pick(guess),
                                                  guess_half_width_m=pick(half)))
         found = columns[j].thrust_m
