@@ -74,6 +74,12 @@ async def settle(app, pilot) -> None:
     await pilot.pause()
 
 
+async def press_settle(app, pilot, *keys: str) -> None:
+    """Press keys, then let the work they start finish (see settle)."""
+    await pilot.press(*keys)
+    await settle(app, pilot)
+
+
 async def replace_text(pilot, *text: str) -> None:
     """Type into the focused field, replacing what it holds (fields select all on focus)."""
     await pilot.pause()  # a focus() call takes effect on the next message
@@ -292,14 +298,12 @@ def test_hot_day_lookup():
         app = VariantCmpApp(None)
         async with app.run_test(size=SIZE) as pilot:
             await settle(app, pilot)
-            await pilot.press("h")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "h")
             screen = app.screen
             assert isinstance(screen, HotDayScreen)
             assert screen.query_one("#lookup-isa").value == "ISA+15"
             assert app.focused is screen.query_one("#lookup-target")  # no target yet: type one
-            await pilot.press(*"FL360", "enter")
-            await settle(app, pilot)
+            await press_settle(app, pilot, *"FL360", "enter")
             expected = reference(Conditions(isa_devs_c=(15.0,), target_fl_ft=36000.0))
             rows = table_rows(screen, "#lookup-table")
             assert len(rows) == expected.height
@@ -363,8 +367,7 @@ def test_broken_catalogue_then_fixed_and_reloaded(tmp_path: Path):
             await pilot.press("enter")
             assert "no such file" in shown_text(app.screen.query_one("#open-error"))
             app.screen.query_one("#path").value = str(fleet)
-            await pilot.press("enter")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "enter")
             assert isinstance(app.screen, ProblemsScreen)
             keys = shown_text(app.screen.query_one("#problems-list"), width=200)
             assert "static_thrust_kn" in keys and "wing_span_m" in keys
@@ -373,16 +376,14 @@ def test_broken_catalogue_then_fixed_and_reloaded(tmp_path: Path):
             assert app.conditions.weights == (WeightSpec(95.0, "%mtow"),)
             # The user fixes the file and reloads.
             shutil.copyfile(demo_catalogue_path(), fleet)
-            await pilot.press("l")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "l")
             assert isinstance(app.screen, CompareScreen)
             assert app.catalogue.path == fleet and not app.problems
             assert app.conditions.weights == (WeightSpec(95.0, "%mtow"),)
             shown_matches_reference(app.screen, app.conditions)
             # Broken again on reload from the compare screen: the list again, table kept.
             fleet.write_text("[catalogue\n", encoding="utf-8")
-            await pilot.press("l")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "l")
             assert isinstance(app.screen, ProblemsScreen)
             await pilot.press("escape")
             assert isinstance(app.screen, CompareScreen) and app.catalogue.path == fleet
@@ -404,8 +405,7 @@ def test_start_on_a_broken_catalogue(tmp_path: Path):
                 await pilot.press(key)
             await pilot.press("escape")
             shutil.copyfile(demo_catalogue_path(), fleet)
-            await pilot.press("l")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "l")
             assert app.catalogue is not None
             shown_matches_reference(app.screen, Conditions())
     run(body)
@@ -588,11 +588,9 @@ def test_envelope_of_the_selected_row_in_a_worker_with_speed_axes(monkeypatch: p
             await pilot.press("a")
             assert gate.calls == 1 and screen.computations == 1
             # Next and previous row of the compare screen; back there on the row last shown.
-            await pilot.press("n")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "n")
             assert sketch_lines(screen)[0].startswith(f"Envelope {rows[2]['variant']} / {rows[2]['engine']}")
-            await pilot.press("p", "p")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "p", "p")
             assert sketch_lines(screen)[0].startswith(f"Envelope {rows[0]['variant']} / {rows[0]['engine']}")
             await pilot.press("escape")
             await pilot.pause()
@@ -606,8 +604,7 @@ def test_envelope_redraws_on_resize_without_recomputing():
         app = VariantCmpApp(None)
         async with app.run_test(size=SIZE) as pilot:
             await settle(app, pilot)
-            await pilot.press("v")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "v")
             screen = app.screen
             assert screen.computations == 1
             for width, height in ((120, 40), (200, 60), (50, 14), (80, 24)):
@@ -641,8 +638,7 @@ def test_marked_rows_are_overlaid():
             assert [r[0] for r in shown[:4]] == [f"#1 {df[0]['variant']}", f"#2 {df[1]['variant']}",
                                                  f"#3 {df[2]['variant']}", df[3]["variant"]]
             assert len(app.marked_keys) == 3 and "3 marked" in shown_text(app.screen.query_one("#status"))
-            await pilot.press("v")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "v")
             screen = app.screen
             text = screen.sketch.plain
             assert sketch_lines(screen)[0].startswith("Envelopes: feasible band of 3 cases")
@@ -655,12 +651,10 @@ def test_marked_rows_are_overlaid():
             await pilot.press("escape", "up", "up", "m")  # the cursor was on the fourth row
             assert [r[0] for r in table_rows(app.screen)[:3]] == [f"#1 {df[0]['variant']}", df[1]["variant"],
                                                                  f"#2 {df[2]['variant']}"]
-            await pilot.press("v")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "v")
             assert sketch_lines(app.screen)[0].startswith("Envelopes: feasible band of 2 cases")
             # Clear the marks: the envelope of the row under the cursor again.
-            await pilot.press("escape", "M", "v")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "escape", "M", "v")
             assert sketch_lines(app.screen)[0].startswith(f"Envelope {df[1]['variant']} / {df[1]['engine']}")
     run(body)
 
@@ -670,8 +664,7 @@ def test_envelope_follows_the_conditions():
         app = VariantCmpApp(None)
         async with app.run_test(size=SIZE) as pilot:
             await settle(app, pilot)
-            await pilot.press("v")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "v")
             screen = app.screen
             assert "45.2 t" not in sketch_lines(screen)[0] and "38.5 t" in sketch_lines(screen)[0]
             await pilot.press("c")  # back to the compare screen, in the first condition field
@@ -681,8 +674,7 @@ def test_envelope_follows_the_conditions():
             await replace_text(pilot, "1.5")
             await settle(app, pilot)
             assert screen.computations == 1  # hidden: nothing computed for it yet
-            await pilot.press("escape", "v")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "escape", "v")
             assert app.screen is screen and screen.computations == 2
             lines = sketch_lines(screen)
             assert f"{0.9 * 38500 / 1000:.1f} t" in lines[0] and "buffet margin 1.5 g" in lines[0]
@@ -695,8 +687,7 @@ def test_sweep_views_follow_the_compare_rows_and_conditions():
         app = VariantCmpApp(None)
         async with app.run_test(size=(100, 30)) as pilot:
             await settle(app, pilot)
-            await pilot.press("w")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "w")
             screen = app.screen
             assert isinstance(screen, SweepScreen)
             text = screen.sketch.plain
@@ -713,17 +704,14 @@ def test_sweep_views_follow_the_compare_rows_and_conditions():
                                      & ((pl.col("weight_kg") - row["weight_kg"]).abs() < 1e-6))
                 if point.height:
                     assert point["max_altitude_ft"][0] == pytest.approx(row["max_altitude_ft"], abs=1.0)
-            await pilot.press("d")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "d")
             assert sketch_lines(screen)[0].startswith("Max altitude vs ISA deviation")
             assert "ISA dev °C" in screen.sketch.plain
-            await pilot.press("m")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "m")
             assert sketch_lines(screen)[0].startswith("Max altitude vs Mach")
             assert screen.computations == 3
             # Filter on the compare screen: the sweep draws those rows only.
-            await pilot.press("escape", "slash", *"v88", "enter", "w")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "escape", "slash", *"v88", "enter", "w")
             assert app.screen is screen and screen.over == "mach"
             assert "3 curves, the rows shown" in shown_text(screen.query_one("#sketch-status"))
             assert set(screen.result.sweep.frame["variant"]) == {"v88"}
@@ -731,16 +719,13 @@ def test_sweep_views_follow_the_compare_rows_and_conditions():
             await pilot.press("escape", "c")
             await replace_text(pilot, "90%mtow")
             await settle(app, pilot)
-            await pilot.press("escape", "w")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "escape", "w")
             assert screen.computations == 5 and "90 %MTOW" in sketch_lines(screen)[0]
             # A sweep once computed for these conditions is drawn again at once.
-            await pilot.press("d")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "d")
             await pilot.press("m")
             await pilot.pause()
             assert screen.computations == 6 and not screen.busy
-            await pilot.press("v")
-            await settle(app, pilot)
+            await press_settle(app, pilot, "v")
             assert isinstance(app.screen, EnvelopeScreen)
     run(body)
