@@ -100,22 +100,38 @@ class ClimbPhysics:
     ``excess(altitude_m, mach)`` (climb rate minus the case's required rate).
     """
 
+    _DERIVED = ("w_n", "qs_per_pm2", "thrust_n", "m_crit0", "m_crit_slope", "lapse_above", "flat_rated")
+
     def __init__(self, cases: CaseSet):
         self.cases = cases
-        # One group per thrust model (per table for table engines). Cases sorted by group (as
-        # _solve_chunk does) make each group a slice: views instead of gathers and scatters.
-        key = _group_key(cases)
-        self.groups = []
-        for k in np.unique(key):
-            idx = np.flatnonzero(key == k)
-            code, tid = int(k) // _GROUP_BASE, int(k) % _GROUP_BASE - 1
-            if idx[-1] - idx[0] + 1 == idx.size:
-                idx = slice(int(idx[0]), int(idx[-1]) + 1)
-            self.groups.append((code, tid, idx))
+        self._groups()
         self._derived()
 
+    def _groups(self):
+        # One group per thrust model (per table for table engines). Cases sorted by group (as
+        # _solve_chunk does) make each group a slice: views instead of gathers and scatters.
+        key = _group_key(self.cases)
+        self.groups = []
+        if key.size and np.all(key[1:] >= key[:-1]):
+            bounds = np.concatenate([[0], np.flatnonzero(key[1:] != key[:-1]) + 1, [key.size]])
+            for start, stop in zip(bounds[:-1], bounds[1:]):
+                k = int(key[start])
+                self.groups.append((k // _GROUP_BASE, k % _GROUP_BASE - 1, slice(int(start), int(stop))))
+            return
+        for k in np.unique(key):
+            idx = np.flatnonzero(key == k)
+            self.groups.append((int(k) // _GROUP_BASE, int(k) % _GROUP_BASE - 1, idx))
+
     def subset(self, index) -> "ClimbPhysics":
-        return ClimbPhysics(self.cases.take(index))
+        """The physics of some of the cases (an index array or slice), derived values taken along."""
+        new = ClimbPhysics.__new__(ClimbPhysics)
+        new.cases = self.cases.take(index)
+        new._groups()
+        for name in self._DERIVED:
+            setattr(new, name, getattr(self, name)[index])
+        new.has_wave = self.has_wave
+        new._terms = None
+        return new
 
     def _derived(self):
         """Per-case constants of the climb equation, computed once per case set."""
