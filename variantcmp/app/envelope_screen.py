@@ -5,7 +5,6 @@ from __future__ import annotations
 
 from functools import partial
 
-import polars as pl
 from textual.binding import Binding
 
 from variantcmp.envelope import envelopes_for_rows
@@ -40,12 +39,7 @@ class EnvelopeScreen(DrawingScreen):
 
     def wanted_rows(self) -> tuple[list[dict], bool]:
         """The marked rows (in mark order), else the compare screen's current row; and whether marked."""
-        app = self.app
-        df = app.results.df
-        marked = bool(app.marked_keys)
-        keys = list(app.marked_keys) if marked else [app.focus_key or next(iter(app.shown_keys), None)]
-        found = {row[ROW_KEY]: row for row in df.filter(pl.col(ROW_KEY).is_in([k for k in keys if k])).to_dicts()}
-        return [found[k] for k in keys if k in found], marked
+        return self.chosen_rows([self.app.focus_key or next(iter(self.app.shown_keys), None)])
 
     def request(self) -> Request | str:
         results = self.table_results()

@@ -11,6 +11,7 @@ from collections.abc import Callable, Hashable
 from dataclasses import dataclass
 from time import perf_counter
 
+import polars as pl
 from rich.text import Text
 from textual import work
 from textual.app import ComposeResult
@@ -25,6 +26,7 @@ from variantcmp.sketch import MIN_HEIGHT, MIN_WIDTH, Drawing
 from variantcmp.units import OptionError
 
 from .results import Results
+from .view import ROW_KEY
 
 # The drawing's colours are a second cue only; on a light background these few would vanish.
 _ON_LIGHT = {"white": "black", "yellow": "dark_goldenrod", "bright_green": "green4", "cyan": "dark_cyan"}
@@ -171,6 +173,15 @@ class DrawingScreen(Screen):
         if self.app.catalogue is None or results is None or results.df is None:
             return None
         return results
+
+    def chosen_rows(self, unmarked_keys: list) -> tuple[list[dict], bool]:
+        """Table rows to draw: the marked ones (in mark order), else those of ``unmarked_keys``;
+        and whether they came from marks."""
+        app = self.app
+        marked = bool(app.marked_keys)
+        keys = [k for k in (list(app.marked_keys) if marked else unmarked_keys) if k]
+        found = {row[ROW_KEY]: row for row in app.results.df.filter(pl.col(ROW_KEY).is_in(keys)).to_dicts()}
+        return [found[k] for k in keys if k in found], marked
 
     # --- what subclasses give ---------------------------------------------------------
 

@@ -15,7 +15,6 @@ from variantcmp.envelope import Sweep, sweep
 from variantcmp.sketch import MAX_SWEEP_SERIES, draw_sweep
 
 from .sketch_view import NO_TABLE, DrawingScreen, Request
-from .view import ROW_KEY
 
 OVER_NAMES = {"weight": "weight", "isa": "ISA deviation", "mach": "Mach"}
 _SWEEP_OVER = Binding.Group("Sweep over")
@@ -63,13 +62,8 @@ class SweepScreen(DrawingScreen):
 
     def pairs(self) -> tuple[tuple[tuple[str, str], ...], bool]:
         """Variant x engine pairs to sweep: of the marked rows, else of the rows the compare screen shows."""
-        app = self.app
-        df = app.results.df
-        from_marks = bool(app.marked_keys)
-        keys = list(app.marked_keys) if from_marks else list(app.shown_keys)
-        by_key = {row[ROW_KEY]: (row["variant"], row["engine"])
-                  for row in df.filter(pl.col(ROW_KEY).is_in(keys)).select(ROW_KEY, "variant", "engine").to_dicts()}
-        return tuple(dict.fromkeys(by_key[k] for k in keys if k in by_key)), from_marks
+        rows, from_marks = self.chosen_rows(list(self.app.shown_keys))
+        return tuple(dict.fromkeys((row["variant"], row["engine"]) for row in rows)), from_marks
 
     def request(self) -> Request | str:
         results = self.table_results()
