@@ -148,18 +148,23 @@ def test_stall_and_cabin_closed_forms(demo):
             assert p_cab == pytest.approx(expect)
 
 
-def test_thrust_table_matches_scipy_bilinear():
+@pytest.mark.parametrize("alt", [
+    [-2000.0, 0.0, 10000.0, 25000.0, 41000.0],  # on a 1,000 ft grid: the bin lookup
+    [-2000.0, 0.0, 10000.5, 25000.0, 41000.0],  # off any whole-ft grid: the node search
+    [-2000.0, 0.0, 1.0, 25000.0, 41000.0],  # a 1 ft grid would need too many bins: the node search
+])
+def test_thrust_table_matches_scipy_bilinear(alt):
     # Reference: scipy.interpolate.RegularGridInterpolator(method="linear"), NaN outside the grid.
     from scipy.interpolate import RegularGridInterpolator
 
-    alt = np.array([-2000.0, 0.0, 10000.0, 25000.0, 41000.0])
+    alt = np.array(alt)
     mach = np.array([0.0, 0.3, 0.6, 0.85])
     frac = np.random.default_rng(3).uniform(0.1, 1.0, (alt.size, mach.size))
     ours = thrust.TableLapse(alt, mach, frac)
     ref = RegularGridInterpolator((alt, mach), frac, method="linear", bounds_error=False, fill_value=np.nan)
     rng = np.random.default_rng(4)
-    pts_alt = np.concatenate([rng.uniform(-3000.0, 42000.0, 2000), alt, [41000.0, -2000.0]])
-    pts_mach = np.concatenate([rng.uniform(-0.05, 0.9, 2000), mach[[0, 1, 2, 3, 3]], [0.85, 0.0]])
+    pts_alt = np.concatenate([rng.uniform(-3000.0, 42000.0, 2000), alt, [41000.0, -2000.0, np.nan, 20000.0]])
+    pts_mach = np.concatenate([rng.uniform(-0.05, 0.9, 2000), mach[[0, 1, 2, 3, 3]], [0.85, 0.0, 0.5, np.nan]])
     expect = ref(np.stack([pts_alt, pts_mach], axis=1))
     got = ours(pts_alt, pts_mach)
     np.testing.assert_array_equal(np.isnan(got), np.isnan(expect))

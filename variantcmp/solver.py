@@ -11,10 +11,10 @@ vectorised over cases; DEVELOPERS.md ("How the ceiling solver works") has the de
 
 from __future__ import annotations
 
+import mmap
 import multiprocessing
 import os
 import sys
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass
 
 import numpy as np
@@ -176,8 +176,8 @@ class ClimbPhysics:
                 frac = turbofan_lapse_from_terms(rows(t), rows(p), sub(cs.throttle_ratio),
                                                  tuple(sub(x) for x in terms["turbofan"]))
             else:
-                j, ty, outside = terms[("table", tid)]
-                frac = cs.tables[tid].at(rows(altitude_m) / FT, (col(j), col(ty), col(outside)))
+                j, ty = terms[("table", tid)]
+                frac = cs.tables[tid].at(rows(altitude_m) / FT, (col(j), col(ty)))
             out[idx] = frac
         return out
 
@@ -791,19 +791,49 @@ def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, processes: int | None = N
         processes = min(2, os.cpu_count() or 1) if work >= PARALLEL_MIN_CASES else 1
     processes = min(processes, len(bounds))
     if processes > 1 and sys.platform.startswith("linux"):
-        # fork: the workers inherit the case arrays (no copy is sent); only results come back.
-        global _FORKED_CASES
-        _FORKED_CASES = cases
-        try:
-            with ProcessPoolExecutor(processes, mp_context=multiprocessing.get_context("fork")) as pool:
-                return Ceilings.concat(list(pool.map(_solve_forked_chunk, bounds)))
-        finally:
-            _FORKED_CASES = None
+        solved = _solve_in_processes(cases, bounds, processes)
+        if solved is not None:
+            return solved
     return Ceilings.concat([_solve_chunk(cases.take(slice(a, b))) for a, b in bounds])
 
 
-_FORKED_CASES: CaseSet | None = None
+def _shared_array(n: int, dtype) -> np.ndarray:
+    """An array on anonymous shared memory: what a forked child writes there, the parent sees."""
+    dtype = np.dtype(dtype)
+    return np.frombuffer(mmap.mmap(-1, max(1, n * dtype.itemsize)), dtype=dtype, count=n)
 
 
-def _solve_forked_chunk(bounds: tuple[int, int]) -> Ceilings:
-    return _solve_chunk(_FORKED_CASES.take(slice(*bounds)))
+def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | None:
+    """Chunks shared between forked workers, which take the next chunk as they finish one.
+
+    fork: the workers read the parent's case arrays in place and write their results straight
+    into shared memory, so nothing is pickled either way (a process pool sending results back
+    lost most of the second core, measured). None if a worker failed: the caller then solves
+    in this process, where a failure shows with its cause.
+    """
+    ctx = multiprocessing.get_context("fork")
+    template = _solve_chunk(cases.take(slice(0, 1)))  # the fields' dtypes
+    out = Ceilings(**{name: _shared_array(len(cases), getattr(template, name).dtype)
+                      for name in Ceilings.__dataclass_fields__})
+    next_chunk = ctx.Value("q", 0)
+
+    def work():
+        try:
+            while True:
+                with next_chunk.get_lock():
+                    k = next_chunk.value
+                    next_chunk.value = k + 1
+                if k >= len(bounds):
+                    break
+                part = slice(*bounds[k])
+                out.put(part, _solve_chunk(cases.take(part)))
+        except BaseException:  # noqa: BLE001  (reported by the exit code; re-raised by the serial run)
+            os._exit(1)
+        os._exit(0)
+
+    workers = [ctx.Process(target=work, daemon=True) for _ in range(processes)]
+    for w in workers:
+        w.start()
+    for w in workers:
+        w.join()
+    return out if all(w.exitcode == 0 for w in workers) else None

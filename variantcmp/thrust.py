@@ -110,29 +110,67 @@ class TableLapse:
         self.altitude_ft = np.asarray(altitude_ft, dtype=float)
         self.mach = np.asarray(mach, dtype=float)
         self.fraction = np.asarray(fraction, dtype=float)
-        self._flat = self.fraction.ravel()
+        xs, z = self.altitude_ft, self.fraction
+        # Per altitude cell and Mach column, the line z = a + b x along altitude; two all-NaN
+        # columns at the end stand for a Mach outside the table (no bounds test per point).
+        slope = np.diff(z, axis=0) / np.diff(xs)[:, None]
+        nan_cols = np.full((xs.size - 1, 2), np.nan)
+        self._a = np.hstack([z[:-1] - slope * xs[:-1, None], nan_cols]).ravel()
+        self._b = np.hstack([slope, nan_cols]).ravel()
+        self._columns = self.mach.size + 2
+        self._bins = _uniform_bins(xs)
 
     def __call__(self, altitude_ft, mach):
         return self.at(altitude_ft, self.mach_terms(np.broadcast_to(np.asarray(mach, dtype=float),
                                                                    np.shape(altitude_ft))))
 
     def mach_terms(self, mach):
-        """The Mach half of the interpolation (cell index, weight, outside), reusable per Mach."""
+        """The Mach half of the interpolation (column index, weight), reusable per Mach."""
         ys = self.mach
         y = np.asarray(mach, dtype=float)
         j = np.clip(np.searchsorted(ys, y, side="right") - 1, 0, ys.size - 2)
         ty = (y - ys[j]) / (ys[j + 1] - ys[j])
-        return j, ty, (y < ys[0]) | (y > ys[-1]) | np.isnan(y)
+        outside = (y < ys[0]) | (y > ys[-1]) | np.isnan(y)
+        return np.where(outside, ys.size, j), np.where(outside, 0.0, ty)
 
     def at(self, altitude_ft, terms):
         """Interpolated fraction at pressure altitudes (ft) for precomputed Mach terms."""
-        xs, ny, z = self.altitude_ft, self.mach.size, self._flat
-        j, ty, outside_mach = terms
+        xs = self.altitude_ft
+        j, ty = terms
         x = np.asarray(altitude_ft, dtype=float)
-        i = np.clip(np.searchsorted(xs, x, side="right") - 1, 0, xs.size - 2)
-        tx = (x - xs[i]) / (xs[i + 1] - xs[i])
-        k = i * ny + j
-        low = z[k] + ty * (z[k + 1] - z[k])
-        high = z[k + ny] + ty * (z[k + ny + 1] - z[k + ny])
-        out = low + tx * (high - low)
-        return np.where(outside_mach | (x < xs[0]) | (x > xs[-1]) | np.isnan(x), np.nan, out)
+        if self._bins is None:
+            cell = np.clip(np.searchsorted(xs, x, side="right") - 1, 0, xs.size - 2)
+        else:
+            # Evenly spaced bins, each inside one cell: a lookup instead of a binary search.
+            start, per_ft, lookup = self._bins
+            u = (x - start) * per_ft
+            np.fmax(u, 0.0, out=u)  # fmax also sends NaN to 0 (masked below)
+            np.fmin(u, lookup.size - 1, out=u)
+            cell = lookup[u.astype(np.intp)]
+        k = cell * self._columns + j
+        a, b = self._a, self._b
+        low = a[k] + b[k] * x
+        out = a[k + 1] + b[k + 1] * x
+        out -= low
+        out *= ty
+        out += low
+        return np.where((x >= xs[0]) & (x <= xs[-1]), out, np.nan)
+
+
+MAX_BINS = 4096
+
+
+def _uniform_bins(altitude_ft):
+    """(first altitude, bins per ft, cell of each bin) if the nodes sit on a whole-ft grid of at
+    most MAX_BINS bins, else None (the caller then searches the nodes)."""
+    xs = altitude_ft
+    steps = np.diff(xs)
+    if not np.all(steps == np.round(steps)) or not np.all(xs == np.round(xs)):
+        return None
+    step = float(np.gcd.reduce(steps.astype(np.int64)))
+    count = int(round((xs[-1] - xs[0]) / step))
+    if step <= 0 or count > MAX_BINS:
+        return None
+    lower_edges = xs[0] + step * np.arange(count)
+    cells = np.clip(np.searchsorted(xs, lower_edges, side="right") - 1, 0, xs.size - 2)
+    return float(xs[0]), 1.0 / step, cells.astype(np.intp)
