@@ -103,6 +103,44 @@ def _per_case_fields() -> tuple[str, ...]:
     return _FLOAT_FIELDS + _INT_FIELDS + ("over_mtow",)
 
 
+_PER_CASE = frozenset(_per_case_fields())
+
+
+class CaseView:
+    """Some cases of a :class:`CaseSet`, each per-case array gathered when first read.
+
+    The solvers narrow their working set many times per solve and read only a few of the
+    arrays of each narrowed set: gathering all of them up front cost more than the physics.
+    """
+
+    def __init__(self, base: CaseSet, index):
+        if isinstance(base, CaseView):  # a view of a view: index the base directly
+            index = base._index[index]
+            base = base._base
+        elif not isinstance(index, np.ndarray) or index.dtype == bool:
+            index = np.arange(len(base))[index]
+        self._base, self._index = base, index
+
+    def __len__(self) -> int:
+        return self._index.size
+
+    def __getattr__(self, name):  # only for names not yet cached on the view
+        if name.startswith("_"):
+            raise AttributeError(name)
+        value = getattr(self._base, name)
+        if name in _PER_CASE:
+            value = value[self._index]
+        setattr(self, name, value)
+        return value
+
+    @property
+    def weight_n(self) -> np.ndarray:
+        return self.weight_kg * G0
+
+    def take(self, index) -> "CaseView":
+        return CaseView(self, index)
+
+
 @dataclass(frozen=True)
 class CaseIndex:
     """What each case stands for, for building result tables."""

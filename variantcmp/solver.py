@@ -23,7 +23,7 @@ from .aero import energy_share_factor, korn_coefficients, lock_wave_drag
 from .airspeed import pressure_for_cas_at_mach_pa
 from .atmosphere import (G0, GAMMA, LAYER_BASE_M, MODEL_TOP_M, R_AIR, isa_state, pressure_altitude_m,
                          speed_of_sound_ms)
-from .cases import FLOOR_M, FT, MODEL_CODES, CaseSet
+from .cases import FLOOR_M, FT, MODEL_CODES, CaseSet, CaseView
 from .thrust import density_lapse_fraction, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms
 
 LIMITS = ("thrust", "buffet", "stall", "certified", "cabin")
@@ -125,7 +125,7 @@ class ClimbPhysics:
     def subset(self, index) -> "ClimbPhysics":
         """The physics of some of the cases (an index array or slice), derived values taken along."""
         new = ClimbPhysics.__new__(ClimbPhysics)
-        new.cases = self.cases.take(index)
+        new.cases = CaseView(self.cases, index)
         new._groups()
         for name in self._DERIVED:
             setattr(new, name, getattr(self, name)[index])
@@ -443,7 +443,7 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
         # the scan, which finds the highest root.
         table = fast[cs.model_code[fast] == MODEL_CODES["table"]]
         if table.size:
-            quick[table[_climbs_above(phys.subset(table), mach[table], result[table], b[table])]] = False
+            quick[table[_climbs_above(phys.subset(table), mach[table], result[table], b[table], True)]] = False
     slow = np.flatnonzero(~quick)
     if slow.size:
         result[slow], flags[slow] = _scanned_thrust_ceiling_m(phys.subset(slow), mach[slow])
@@ -453,21 +453,32 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
 TABLE_PROBES = 8
 
 
-def _climbs_above(phys: ClimbPhysics, mach, root_m, top_m):
-    """Whether each table-engine case climbs at a grid altitude (or midway) between root and top."""
+def _climbs_above(phys: ClimbPhysics, mach, root_m, top_m, top_known=False):
+    """Whether each table-engine case climbs at a grid altitude (or midway) between root and top.
+
+    Up to TABLE_PROBES such altitudes per case, and the top itself unless ``top_known`` (the
+    caller has seen it not climb). Only the probes that exist are evaluated, as one flat set.
+    """
     cs = phys.cases
     out = np.zeros(len(cs), dtype=bool)
     for tid in np.unique(cs.table_id):
         rows = np.flatnonzero(cs.table_id == tid)
         nodes = cs.tables[tid].altitude_ft * FT
         points = np.sort(np.concatenate([nodes, 0.5 * (nodes[1:] + nodes[:-1])]))
-        first = np.searchsorted(points, root_m[rows] + 1.0, side="left")
-        pick = np.minimum(first[:, None] + np.arange(TABLE_PROBES)[None, :], points.size - 1)
-        probes = np.minimum(points[pick], top_m[rows, None])
-        probes = np.where(probes > root_m[rows, None] + 1.0, probes, top_m[rows, None])
-        sub = phys if rows.size == len(cs) else phys.subset(rows)
+        root, top = root_m[rows, None], top_m[rows, None]
+        pick = np.searchsorted(points, root[:, 0] + 1.0, side="left")[:, None] + np.arange(TABLE_PROBES)[None, :]
+        probes = points[np.minimum(pick, points.size - 1)]
+        valid = (pick < points.size) & (probes < top)
+        if not top_known:
+            probes = np.hstack([probes, top])
+            valid = np.hstack([valid, top > root + 1.0])
+        who, which = np.nonzero(valid)
+        if who.size == 0:
+            continue
+        sub = phys.subset(rows[who])
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            out[rows] = (sub.excess(probes, mach[rows]) >= 0.0).any(axis=1)
+            climbs = sub.excess(probes[who, which], mach[rows[who]]) >= 0.0
+        out[rows[who[climbs]]] = True
     return out
 
 
