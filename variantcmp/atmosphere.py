@@ -134,6 +134,16 @@ def pressure_altitude_m(pressure_pa):
     and pressures above the model bottom's (-5,000 m) ``-inf``: outside the model, callers flag it.
     """
     p = np.asarray(pressure_pa, dtype=float)
+    if p.size and not (p <= LAYER_BASE_P_PA[2]).any():
+        # Below 20 km (as in isa_state): two layers, the same expressions without the search (NaN
+        # stays NaN on either path).
+        upper = p <= LAYER_BASE_P_PA[1]
+        pick = lambda table: np.where(upper, table[1], table[0])  # noqa: E731
+        lapse, t_base, p_base, h_base = pick(LAYER_LAPSE_K_PER_M), pick(LAYER_BASE_T_K), pick(LAYER_BASE_P_PA), pick(LAYER_BASE_M)
+        phi = -R_AIR / G0 * np.log(p / p_base)
+        dh = np.where(upper, t_base * phi, t_base * np.expm1(LAYER_LAPSE_K_PER_M[0] * phi) / LAYER_LAPSE_K_PER_M[0])
+        h = h_base + dh
+        return np.where(h < MODEL_BOTTOM_M, -np.inf, h)
     # Base pressures fall with altitude: search the ascending negated sequence.
     i = np.clip(np.searchsorted(-LAYER_BASE_P_PA, -p, side="right") - 1, 0, LAYER_BASE_M.size - 1)
     lapse, t_base, p_base = LAYER_LAPSE_K_PER_M[i], LAYER_BASE_T_K[i], LAYER_BASE_P_PA[i]

@@ -45,6 +45,7 @@ SCAN_LEVELS_M = np.concatenate([
                                                    38_000.0, 47_000.0, 60_000.0, MODEL_TOP_M]])
 QUICK_CL_FRACTIONS = (0.6, 0.4, 0.25, 0.12)  # of CL*, stepping down from CLmax to bracket the root
 WARM_HALF_WIDTH_M = 250.0  # window around a nearby speed's thrust ceiling
+WARM_REACH = 2.0  # a second look this many windows beyond a window that missed the root
 HUMP_CHECK_HALF_WIDTH_M = 50.0  # warm windows at least this wide get the table-engine hump check
 ROOT_TOL_M = 0.003  # about 0.01 ft
 SEARCH_TOL_M = 0.03  # inside the best-speed search, where only comparisons matter (0.1 ft)
@@ -392,6 +393,17 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
             a = np.clip(guess_m - half_width_m, cs.floor_m, top)
             b = np.clip(guess_m + half_width_m, cs.floor_m, top)
             fa, fb = phys.excess(a, mach), phys.excess(b, mach)
+            # The root just outside the window (both ends climb, or neither): one look further
+            # that way, WARM_REACH windows wide, before falling back to the cold start.
+            up = (fa >= 0.0) & (fb >= 0.0) & (b < top)
+            down = (fa < 0.0) & (fb < 0.0) & (a > cs.floor_m)
+            ext = np.flatnonzero(np.isfinite(guess_m) & (up | down))
+            if ext.size:
+                u, reach = up[ext], WARM_REACH * 2.0 * np.broadcast_to(half_width_m, (n,))[ext]
+                far = np.where(u, np.minimum(b[ext] + reach, top[ext]), np.maximum(a[ext] - reach, cs.floor_m[ext]))
+                f_far = (phys if ext.size == n else phys.subset(ext)).excess(far, mach[ext])
+                a[ext], fa[ext], b[ext], fb[ext] = (np.where(u, b[ext], far), np.where(u, fb[ext], f_far),
+                                                    np.where(u, far, a[ext]), np.where(u, f_far, fa[ext]))
         warm = np.isfinite(guess_m) & (fa >= 0.0) & (fb < 0.0) & (b > a)
         if warm.any():
             result, flags = np.full(n, np.nan), np.zeros(n, dtype=np.int32)
@@ -543,23 +555,30 @@ def buffet_cl_at(cases: CaseSet, mach):
     return cl
 
 
+def buffet_ceiling_m(cases: CaseSet, mach):
+    """Buffet-onset ceiling (m) at the case's load-factor margin: the pressure at which
+    g_margin W = (gamma/2) p M^2 S CL_buffet (Anderson, *Introduction to Flight*, eq. 4.83).
+    +inf where the variant has no buffet data, NaN where it has none at this Mach."""
+    qs_per_p = 0.5 * GAMMA * mach * mach * cases.wing_area_m2
+    with np.errstate(invalid="ignore", divide="ignore"):
+        p = cases.g_margin * (cases.weight_kg * G0) / (qs_per_p * buffet_cl_at(cases, mach))
+        return np.where(cases.buffet_id >= 0, pressure_altitude_m(p), np.inf)
+
+
 def closed_form_ceilings_m(cases: CaseSet, mach):
     """Buffet, stall, cabin ceilings and the VMO floor (m) at a Mach; pressure-based closed forms.
 
     Lift equilibrium n W = (gamma/2) p M^2 S CL gives the lowest pressure at which CL stays within
-    its limit (Anderson, *Introduction to Flight*, eq. 4.83).
+    its limit (Anderson, *Introduction to Flight*, eq. 4.83). The cabin ceiling does not depend on
+    the Mach: it comes with the cases.
     """
     w = cases.weight_kg * G0
     qs_per_p = 0.5 * GAMMA * mach * mach * cases.wing_area_m2
     with np.errstate(invalid="ignore", divide="ignore"):
         stall = pressure_altitude_m(w / (qs_per_p * cases.cl_max))
-        cl_b = buffet_cl_at(cases, mach)
-        buffet = np.where(cases.buffet_id >= 0, pressure_altitude_m(cases.g_margin * w / (qs_per_p * cl_b)), np.inf)
-        cabin_p = cases.cabin_min_pressure_pa
-        cabin = np.where(np.isnan(cabin_p), np.inf, pressure_altitude_m(np.where(cabin_p > 0, cabin_p, 0.0)))
         vmo_floor = np.where(np.isnan(cases.vmo_ms), -np.inf,
                              pressure_altitude_m(pressure_for_cas_at_mach_pa(cases.vmo_ms, mach)))
-    return buffet, stall, cabin, vmo_floor
+    return buffet_ceiling_m(cases, mach), stall, cases.cabin_m.copy(), vmo_floor
 
 
 def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=True,
@@ -726,7 +745,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     thrust_best = np.maximum.reduce([thrust_best, _objective(thrust_grid).max(axis=1), _objective(final.thrust_m)])
 
     def buffet_at(idx, m):
-        return _objective(closed_form_ceilings_m(cs, m)[0])
+        return _objective(buffet_ceiling_m(cs, m))
 
     i = np.argmax(_objective(at_grid["buffet_m"]), axis=1)
     lo, hi = grid[rows, np.maximum(i - 1, 0)], grid[rows, np.minimum(i + 1, g - 1)]
