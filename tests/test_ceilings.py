@@ -177,6 +177,53 @@ def test_process_pool_gives_the_same_answers(demo):
         np.testing.assert_array_equal(getattr(serial, name), getattr(shared, name))
 
 
+def _demo_cases(demo):
+    from variantcmp.cases import build_cases
+    from variantcmp.table import selected_pairs
+
+    return build_cases(demo, selected_pairs(demo, Conditions()), lambda v: np.linspace(0.6, 1.0, 7) * v.mtow_kg,
+                       np.linspace(-10, 30, 5), [300.0], "cruise", 1.3)[0]
+
+
+def test_a_failed_worker_leaves_the_job_to_the_calling_process(demo, monkeypatch):
+    # Self-consistency, no external source: a worker that dies (here: every forked one) must
+    # not lose cases; the job is solved again in this process, with the same numbers.
+    import os
+
+    from variantcmp import solver
+
+    cases = _demo_cases(demo)
+    serial = solver.solve_ceilings(cases, chunk=50, processes=1)
+    parent, real = os.getpid(), solver._solve_chunk
+
+    def dies_in_a_worker(part):
+        if os.getpid() != parent:
+            raise MemoryError("worker")
+        return real(part)
+
+    monkeypatch.setattr(solver, "_solve_chunk", dies_in_a_worker)
+    again = solver.solve_ceilings(cases, chunk=50, processes=2)
+    np.testing.assert_array_equal(serial.max_altitude_m, again.max_altitude_m)
+    np.testing.assert_array_equal(serial.flags, again.flags)
+
+
+def test_case_views_read_what_take_gives(demo):
+    # Self-consistency, no external source: a lazy view (and a view of a view) reads the same
+    # per-case values as an eager take, for index arrays, slices and masks.
+    from variantcmp.cases import CaseView, _per_case_fields
+
+    cases = _demo_cases(demo)
+    pick = np.array([5, 3, 3, 40, 0])
+    mask = np.arange(len(cases)) % 3 == 0
+    for index in (pick, slice(10, 60, 7), mask):
+        view, eager = CaseView(cases, index), cases.take(index)
+        assert len(view) == len(eager)
+        inner = np.array([1, 0, 1])
+        for name in _per_case_fields():
+            np.testing.assert_array_equal(getattr(view, name), getattr(eager, name))
+            np.testing.assert_array_equal(getattr(view.take(inner), name), getattr(eager, name)[inner])
+
+
 def test_thrust_table_floor_is_respected(tmp_path):
     # A thrust table from 10,000 ft up: nothing below it may be claimed (no extrapolation), and the
     # note names the table's lowest altitude, not -2,000 ft.
