@@ -139,7 +139,7 @@ def pressure_altitude_m(pressure_pa):
         # stays NaN on either path).
         upper = p <= LAYER_BASE_P_PA[1]
         pick = lambda table: np.where(upper, table[1], table[0])  # noqa: E731
-        lapse, t_base, p_base, h_base = pick(LAYER_LAPSE_K_PER_M), pick(LAYER_BASE_T_K), pick(LAYER_BASE_P_PA), pick(LAYER_BASE_M)
+        t_base, p_base, h_base = pick(LAYER_BASE_T_K), pick(LAYER_BASE_P_PA), pick(LAYER_BASE_M)
         phi = -R_AIR / G0 * np.log(p / p_base)
         dh = np.where(upper, t_base * phi, t_base * np.expm1(LAYER_LAPSE_K_PER_M[0] * phi) / LAYER_LAPSE_K_PER_M[0])
         h = h_base + dh

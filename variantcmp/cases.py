@@ -28,7 +28,7 @@ BEST_MACH_HIGH_DEFAULT = 0.95
 _FLOAT_FIELDS = (
     "weight_kg", "isa_dev_c", "mach", "climb_ms", "g_margin",
     "wing_area_m2", "k", "cd0", "cl_max", "certified_m", "mmo", "vmo_ms",
-    "sweep_deg", "thickness_ratio", "korn_factor", "cabin_min_pressure_pa", "cabin_m",
+    "sweep_deg", "thickness_ratio", "korn_factor", "cabin_m",
     "thrust_sls_n", "lapse_exponent", "lapse_exponent_above", "throttle_ratio",
     "flat_rate_isa_dev_c", "hot_day_loss_per_c", "tropopause_density_kg_m3",
     "floor_m", "top_m", "mach_low", "mach_high",
@@ -55,8 +55,7 @@ class CaseSet:
     sweep_deg: np.ndarray
     thickness_ratio: np.ndarray
     korn_factor: np.ndarray  # NaN: no compressibility drag
-    cabin_min_pressure_pa: np.ndarray  # NaN: no cabin limit
-    cabin_m: np.ndarray  # the cabin ceiling: pressure altitude of that pressure (+inf: no cabin limit)
+    cabin_m: np.ndarray  # cabin ceiling: where the outside pressure falls to the cabin's limit (+inf: none)
     thrust_sls_n: np.ndarray  # all engines, at the climb/cruise rating
     lapse_exponent: np.ndarray
     lapse_exponent_above: np.ndarray
@@ -134,10 +133,6 @@ class CaseView:
         setattr(self, name, value)
         return value
 
-    @property
-    def weight_n(self) -> np.ndarray:
-        return self.weight_kg * G0
-
     def take(self, index) -> "CaseView":
         return CaseView(self, index)
 
@@ -200,10 +195,10 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
             m_low, m_high = max(m_low, e.table_mach[0]), min(m_high, e.table_mach[-1])
         if v.id in buffet_ids:
             m_low, m_high = max(m_low, v.buffet_mach[0]), min(m_high, v.buffet_mach[-1])
-        cabin, cabin_m = np.nan, np.inf
+        cabin_m = np.inf
         if v.max_cabin_dp_kpa is not None:
-            cabin = float(isa_pressure_pa((v.cabin_altitude_ft or 8000.0) * FT)) - v.max_cabin_dp_kpa * 1000.0
-            cabin_m = float(pressure_altitude_m(max(cabin, 0.0)))  # no outside pressure left: above the model
+            lowest_pa = float(isa_pressure_pa((v.cabin_altitude_ft or 8000.0) * FT)) - v.max_cabin_dp_kpa * 1000.0
+            cabin_m = float(pressure_altitude_m(max(lowest_pa, 0.0)))  # no outside pressure left: above the model
         per = {
             "weight_kg": grid[:, 0], "isa_dev_c": grid[:, 1], "climb_ms": grid[:, 2] * FPM,
             "mach": m, "g_margin": g_margin,
@@ -211,7 +206,7 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
             "certified_m": np.inf if v.max_altitude_ft is None else v.max_altitude_ft * FT,
             "mmo": _nan(v.mmo), "vmo_ms": np.nan if v.vmo_kt is None else v.vmo_kt * KT,
             "sweep_deg": _nan(v.sweep_deg), "thickness_ratio": _nan(v.thickness_ratio),
-            "korn_factor": _nan(v.korn_factor), "cabin_min_pressure_pa": cabin, "cabin_m": cabin_m,
+            "korn_factor": _nan(v.korn_factor), "cabin_m": cabin_m,
             "thrust_sls_n": v.engine_count * e.static_thrust_kn * 1000.0 * e.rating_fraction,
             "lapse_exponent": e.lapse_exponent,
             "lapse_exponent_above": _nan(e.lapse_exponent_above_tropopause),

@@ -80,6 +80,12 @@ class Ceilings:
     vmo_floor_m: np.ndarray  # lowest altitude where the Mach stays within VMO (-inf: no VMO)
     co_limit: np.ndarray  # a second limit binding within CO_LIMIT_M of the first (band closure), -1 none
 
+    @classmethod
+    def allocate(cls, n: int, make=np.empty) -> "Ceilings":
+        """Uninitialised arrays for n cases, from ``make(n, dtype)``."""
+        small = {"limit": np.int8, "co_limit": np.int8, "flags": np.int32}
+        return cls(**{name: make(n, small.get(name, float)) for name in cls.__dataclass_fields__})
+
     def take(self, index) -> "Ceilings":
         return Ceilings(**{n: getattr(self, n)[index] for n in self.__dataclass_fields__})
 
@@ -810,9 +816,7 @@ def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, processes: int | None = N
     """
     n = len(cases)
     if n == 0:
-        empty = np.empty(0)
-        return Ceilings(empty, empty, empty, empty, empty, empty, empty, np.empty(0, np.int8), np.empty(0, np.int32),
-                        empty, np.empty(0, np.int8))
+        return Ceilings.allocate(0)
     chunk = max(1, chunk)
     bounds = [(start, min(start + chunk, n)) for start in range(0, n, chunk)]
     if processes is None:
@@ -842,9 +846,7 @@ def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | No
     in this process, where a failure shows with its cause.
     """
     ctx = multiprocessing.get_context("fork")
-    template = _solve_chunk(cases.take(slice(0, 1)))  # the fields' dtypes
-    out = Ceilings(**{name: _shared_array(len(cases), getattr(template, name).dtype)
-                      for name in Ceilings.__dataclass_fields__})
+    out = Ceilings.allocate(len(cases), _shared_array)
     next_chunk = ctx.Value("q", 0)
 
     def work():
