@@ -5,9 +5,14 @@ import math
 import numpy as np
 import pytest
 from ambiance import Atmosphere
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from scipy.optimize import minimize_scalar
 
 from conftest import write_catalogue
 from variantcmp import aero, thrust
+from variantcmp.cases import build_cases
+from variantcmp.solver import buffet_peak_mach
 from variantcmp.atmosphere import G0, GAMMA, R_AIR, RHO0_KG_M3, isa_pressure_pa, isa_state
 from variantcmp.table import Conditions, ceilings_table
 from variantcmp.units import WeightSpec
@@ -170,3 +175,30 @@ def test_thrust_table_matches_scipy_bilinear(alt):
     np.testing.assert_array_equal(np.isnan(got), np.isnan(expect))
     ok = ~np.isnan(expect)
     np.testing.assert_allclose(got[ok], expect[ok], rtol=1e-12, atol=1e-12)
+
+
+@settings(max_examples=25, deadline=None)
+@given(st.lists(st.floats(0.3, 1.4), min_size=2, max_size=7), st.floats(0.25, 0.45), st.floats(0.03, 0.08),
+       st.floats(0.0, 1.0), st.floats(0.0, 1.0))
+def test_buffet_peak_mach_against_scipy(tmp_path_factory, cls, m0, step, lo_frac, hi_frac):
+    # The highest buffet ceiling is where M^2 CL_b(M) peaks (n W = (gamma/2) p M^2 S CL_b,
+    # Anderson, Introduction to Flight, eq. 4.83). Reference: scipy's bounded Brent
+    # minimiser on each segment of the boundary inside the speed range.
+    bm = [m0 + step * i for i in range(len(cls))]
+    cat = write_catalogue(tmp_path_factory.mktemp("b") / "b.toml", [{"id": "e1", "model": "density-lapse",
+                          "static_thrust_kn": 60.0, "lapse_exponent": 1.0}],
+                          [{"id": "a1", "engine_options": ["e1"], "engine_count": 2, "wing_area_m2": 80.0,
+                            "aspect_ratio": 9.0, "oswald_e": 0.8, "cd0": 0.022, "cl_max": 1.5, "mtow_kg": 40_000.0,
+                            "cruise_mach": bm[0], "buffet_mach": bm, "buffet_cl": cls}])
+    cases, _ = build_cases(cat, [("a1", "e1")], lambda v: [30_000.0], [0.0], [300.0], "best", 1.3)
+    lo, hi = sorted((bm[0] + lo_frac * (bm[-1] - bm[0]), bm[0] + hi_frac * (bm[-1] - bm[0])))
+    capacity = lambda m: m * m * np.interp(m, bm, cls)  # noqa: E731
+    ref = max(capacity(lo), capacity(hi))
+    for a, b in zip(bm[:-1], bm[1:]):
+        a, b = max(a, lo), min(b, hi)
+        if a < b:
+            best = minimize_scalar(lambda m: -capacity(m), bounds=(a, b), method="bounded", options={"xatol": 1e-9})
+            ref = max(ref, -best.fun, capacity(a), capacity(b))
+    m = buffet_peak_mach(cases, np.array([lo]), np.array([hi]))[0]
+    assert lo - 1e-12 <= m <= hi + 1e-12
+    assert capacity(m) == pytest.approx(ref, rel=1e-9, abs=1e-12)

@@ -114,13 +114,11 @@ def isa_state(altitude_m):
     h = np.asarray(altitude_m, dtype=float)
     if h.size and h.max() < LAYER_BASE_M[2]:
         # Troposphere and the isothermal layer above (where the solvers spend nearly all their
-        # time): the same expressions, bit for bit, without the layer search and gathers.
-        upper = h >= LAYER_BASE_M[1]
+        # time), without the layer search and gathers: ln p = A + B ln T up to the tropopause
+        # (at its temperature above), then falling linearly with height in the isothermal layer.
         t = np.maximum(T0_K + LAYER_LAPSE_K_PER_M[0] * h, LAYER_BASE_T_K[1])
-        ln_p = np.where(upper, _LNP_A[1], _LNP_A[0])
-        ln_p += np.where(upper, _LNP_B[1], _LNP_B[0]) * np.log(t)
-        ln_p += np.where(upper, _LNP_C[1], _LNP_C[0]) * h
-        return t, np.exp(ln_p, out=ln_p), np.where(upper, LAYER_LAPSE_K_PER_M[1], LAYER_LAPSE_K_PER_M[0])
+        ln_p = _LNP_A[0] + _LNP_B[0] * np.log(t) + _LNP_C[1] * np.maximum(h - LAYER_BASE_M[1], 0.0)
+        return t, np.exp(ln_p), np.where(h < LAYER_BASE_M[1], LAYER_LAPSE_K_PER_M[0], LAYER_LAPSE_K_PER_M[1])
     i = _layer_index(h)
     lapse = LAYER_LAPSE_K_PER_M[i]
     t = LAYER_BASE_T_K[i] + lapse * (h - LAYER_BASE_M[i])

@@ -28,7 +28,6 @@ call for all points.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from types import SimpleNamespace
 
 import numpy as np
 import polars as pl
@@ -62,11 +61,9 @@ BOUNDARY_LIMIT = {"stall_1g": "stall", "buffet_low_margin": "buffet", "buffet_hi
 MAX_ENVELOPE_CASES = 3
 
 THRUST_MACH_GRID = 40
-BUFFET_MACH_GRID = 64
 THRUST_SCAN_LOW = 0.05
 THRUST_SCAN_HIGH = 0.98
 ROOT_ITERATIONS = 30  # bisection in Mach: 0.93 / 2^30, about 1e-9
-PEAK_ITERATIONS = 24  # golden section for the buffet peak: two grid cells x 0.618^24, about 1e-7
 # The excess climb rate is flat at its peak: a Mach error of 1e-4 changes it by ~1e-6 m/s.
 THRUST_PEAK_ITERATIONS = 14
 TOP_TOL_M = 0.005  # bisection in altitude down to 5 mm
@@ -94,13 +91,6 @@ def _finite(values):
     return np.where(np.isnan(values), -np.inf, values)
 
 
-def _buffet_cl(cs, mach):
-    """Buffet-onset CL for a (P, G) Mach array: buffet_cl_at with the case arrays as columns."""
-    cols = SimpleNamespace(buffet_id=cs.buffet_id[:, None], buffet_key=cs.buffet_key, buffet_cl=cs.buffet_cl,
-                           buffet_low=cs.buffet_low, buffet_high=cs.buffet_high)
-    return s.buffet_cl_at(cols, mach)
-
-
 def _buffet_branches(cs, cl_needed_at_mach1):
     """Low- and high-Mach buffet-onset Mach where n W = (gamma/2) p M^2 S CL_b(M), per point.
 
@@ -116,22 +106,15 @@ def _buffet_branches(cs, cl_needed_at_mach1):
         return low, high, clear
     safe = np.where(has, cs.buffet_id, 0)
     m_lo, m_hi = cs.buffet_low[safe], cs.buffet_high[safe]
-    frac = np.linspace(0.0, 1.0, BUFFET_MACH_GRID)
-    grid = m_lo[:, None] + (m_hi - m_lo)[:, None] * frac[None, :]
-    capacity = _finite(grid**2 * _buffet_cl(cs, grid))  # M^2 CL_b(M)
-    j = np.argmax(capacity, axis=1)
-    rows = np.arange(n)
-    one = lambda m: m * m * s.buffet_cl_at(cs, m)  # noqa: E731
-    peak_m, peak = s.golden_max(lambda _i, m: _finite(one(m)), grid[rows, np.maximum(j - 1, 0)],
-                                 grid[rows, np.minimum(j + 1, BUFFET_MACH_GRID - 1)], PEAK_ITERATIONS)
-    better = capacity[rows, j] > peak
-    peak_m, peak = np.where(better, grid[rows, j], peak_m), np.where(better, capacity[rows, j], peak)
+    one = lambda m: m * m * s.buffet_cl_at(cs, m)  # noqa: E731  (M^2 CL_b(M))
+    peak_m = s.buffet_peak_mach(cs, m_lo, m_hi)
+    peak = _finite(one(peak_m))
     need = cl_needed_at_mach1
     clear = ~has | (peak >= need)
     gap = lambda m: one(m) - need  # noqa: E731
     with np.errstate(invalid="ignore"):
-        low_ok = has & clear & (capacity[:, 0] < need)
-        high_ok = has & clear & (capacity[:, -1] < need)
+        low_ok = has & clear & (one(m_lo) < need)
+        high_ok = has & clear & (one(m_hi) < need)
     low = np.where(low_ok, _bisect(gap, m_lo, peak_m, rising=True), np.nan)
     high = np.where(high_ok, _bisect(gap, peak_m, m_hi, rising=False), np.nan)
     return low, high, clear

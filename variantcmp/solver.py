@@ -4,7 +4,7 @@ For a fixed Mach, the buffet, stall, certified and cabin ceilings are closed for
 the thrust ceiling (residual rate of climb = the required rate) is the top root of the excess
 climb rate, bracketed from lift-coefficient levels (a coarse altitude scan where they fail) and
 refined by a regula falsi. For the best speed, the Mach that gives the highest altitude meeting
-every limit at once is found per case from a Mach grid, parabolic refinement of the thrust
+every limit at once is found per case from a Mach grid, a Brent search for the thrust
 ceiling's maximum and, where another limit binds, a golden-section search. Everything is
 vectorised over cases; DEVELOPERS.md ("How the ceiling solver works") has the details.
 """
@@ -49,13 +49,20 @@ WARM_REACH = 2.0  # a second look this many windows beyond a window that missed 
 HUMP_CHECK_HALF_WIDTH_M = 50.0  # warm windows at least this wide get the table-engine hump check
 ROOT_TOL_M = 0.003  # about 0.01 ft
 SEARCH_TOL_M = 0.03  # inside the best-speed search, where only comparisons matter (0.1 ft)
+GRID_TOL_M = 0.3  # best-speed grid: only a start for the search (1 ft)
 STRAGGLER_ITERATION = 8  # regula falsi steps before brackets across a layer base are split there
 CO_LIMIT_M = 10.0  # two limits this close both bind (e.g. thrust and buffet at the coffin corner)
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
 BEST_MACH_ITERATIONS = 18
-SMOOTH_ITERATIONS = 6
+BEST_MACH_SEARCH_ITERATIONS = 12  # at most: a case stops once its bracket is within BEST_MACH_TOL
+BEST_MACH_TOL = 3e-4
+SEARCH_MIN_HALF_WIDTH_M = 10.0  # narrowest window for a best-speed search root (guesses are often off by more)
+NEWTON_MAX_STEP_M = 0.3  # a Newton step this short ends the root (slope off by 5 %: 1.5 cm)
+SLOPE_STEP_M = 1.0  # finite-difference step for the excess climb rate's slope
+LAYER_GUARD_M = 50.0  # no Newton steps this close to a layer base
 CHUNK = 16_384
+BEST_CHUNK = 50_000  # best speed makes many calls on small sets: larger chunks share their overhead
 PARALLEL_MIN_CASES = 200_000
 BEST_SPEED_WORK = 15
 
@@ -138,6 +145,8 @@ class ClimbPhysics:
             setattr(new, name, getattr(self, name)[index])
         new.has_wave = self.has_wave
         new._terms = None
+        # The parent's Mach terms, taken along when the subset is asked for the same speeds.
+        new._parent_terms = None if self._terms is None else (self._terms[1], index)
         return new
 
     def _derived(self):
@@ -150,41 +159,61 @@ class ClimbPhysics:
         self.has_wave = bool(np.isfinite(self.m_crit0).any())
         self.lapse_above = np.where(np.isnan(cs.lapse_exponent_above), cs.lapse_exponent, cs.lapse_exponent_above)
         self.flat_rated = ~np.isnan(cs.flat_rate_isa_dev_c)
-        self._terms = None
+        self._terms = self._parent_terms = None
 
     def _mach_terms(self, mach):
-        """Per-case constants that depend on the Mach only, cached for the Mach array in use."""
+        """Per-case constants that depend on the Mach only, cached for the Mach array in use.
+
+        A subset asked for its parent's speeds (the solvers narrow both alike) takes the parent's
+        terms: comparing the Mach arrays costs less than the square roots and powers."""
         if self._terms is not None and self._terms[0] is mach:
             return self._terms[1]
         m = np.asarray(mach, dtype=float)
-        terms = {"m": m, "qs_per_p": self.qs_per_pm2 * m * m}
-        if any(code == 1 for code, _, _ in self.groups):
-            terms["turbofan"] = turbofan_mach_terms(m)
-        for code, tid, idx in self.groups:
-            if code == 2:
-                terms[("table", tid)] = self.cases.tables[tid].mach_terms(m[idx])
+        terms = None
+        if self._parent_terms is not None and m.ndim == 1 and self._parent_terms[0]["m"].ndim == 1:
+            parent, index = self._parent_terms
+            if np.array_equal(parent["m"][index], m):
+                terms = {k: tuple(x[index] for x in v) if isinstance(v, tuple) else v[index] for k, v in parent.items()}
+        if terms is None:
+            terms = {"m": m, "qs_per_p": self.qs_per_pm2 * m * m}
+            if any(code == 1 for code, _, _ in self.groups):
+                terms["turbofan"] = turbofan_mach_terms(m)
+            if any(code == 2 for code, _, _ in self.groups):
+                # Column index and weight per case, filled group by group (full length, so a
+                # subset can take them).
+                j, ty = np.zeros(m.shape, dtype=np.intp), np.zeros(m.shape)
+                for code, tid, idx in self.groups:
+                    if code == 2:
+                        j[idx], ty[idx] = self.cases.tables[tid].mach_terms(m[idx])
+                terms["table"] = (j, ty)
         self._terms = (mach, terms)
         return terms
 
-    def thrust_fraction(self, altitude_m, terms, t, p, col):
+    def thrust_fraction(self, altitude_m, terms, t, t_isa, p, col):
         """F / (F_SLS at rating) for every case, each engine model on its own group."""
         cs = self.cases
-        out = np.empty(np.broadcast_shapes(np.shape(altitude_m), np.shape(t)))
+        out = np.empty(t.shape)
+        # Gathers only: the solvers call this thousands of times on small sets, where numpy's
+        # per-call overhead (broadcasting included) costs more than the arithmetic.
+        h = altitude_m if np.shape(altitude_m) == out.shape else np.broadcast_to(altitude_m, out.shape)
+        p = p if p.shape == out.shape else np.broadcast_to(p, out.shape)
+        t_isa = t_isa if t_isa.shape == out.shape else np.broadcast_to(t_isa, out.shape)
         for code, tid, idx in self.groups:
             sub = (lambda a, idx=idx: col(a)[idx])  # noqa: E731  (per-case arrays of the group)
-            rows = (lambda a, idx=idx: np.broadcast_to(a, out.shape)[idx])  # noqa: E731  (evaluation arrays)
             if code == 0:
                 # A flat-rated engine holds its ISA thrust up to the flat-rate deviation (the loss
                 # above it is hot_day_factor): its lapse sees ISA density, not the day's.
-                rho = rows(p / (R_AIR * np.where(col(self.flat_rated), t - col(cs.isa_dev_c), t)))
+                rho = p[idx] / (R_AIR * np.where(sub(self.flat_rated), t_isa[idx], t[idx]))
                 frac = density_lapse_fraction(rho, sub(cs.lapse_exponent), sub(cs.tropopause_density_kg_m3),
                                               sub(self.lapse_above))
             elif code == 1:
-                frac = turbofan_lapse_from_terms(rows(t), rows(p), sub(cs.throttle_ratio),
+                frac = turbofan_lapse_from_terms(t[idx], p[idx], sub(cs.throttle_ratio),
                                                  tuple(sub(x) for x in terms["turbofan"]))
             else:
-                j, ty = terms[("table", tid)]
-                frac = cs.tables[tid].at(rows(altitude_m) / FT, (col(j), col(ty)))
+                j, ty = terms["table"]
+                frac = cs.tables[tid].at(h[idx] / FT, (sub(j), sub(ty)))
+            if len(self.groups) == 1:
+                return frac
             out[idx] = frac
         return out
 
@@ -210,7 +239,7 @@ class ClimbPhysics:
         cd += col(cs.cd0)
         if self.has_wave:
             cd += lock_wave_drag(m, col(self.m_crit0) - col(self.m_crit_slope) * cl)
-        excess_n = self.thrust_fraction(h, terms, t, p, col)
+        excess_n = self.thrust_fraction(h, terms, t, t_isa, p, col)
         excess_n *= col(self.thrust_n)
         excess_n -= q_s * cd
         ratio = t_isa / t
@@ -271,6 +300,34 @@ def _illinois(phys: "ClimbPhysics", mach, a, b, fa, fb, tol=ROOT_TOL_M, max_iter
     return out
 
 
+def _newton_root(phys: "ClimbPhysics", mach, guess_m, slope_per_s, max_step_m=NEWTON_MAX_STEP_M, steps=3):
+    """Thrust ceiling near a guess: a Newton step with a known slope d(excess)/dh, then secant
+    steps through the last two points (e.g. Press et al., *Numerical Recipes*, 3rd ed., sec.
+    9.2). A case is settled once a step is under ``max_step_m``; those still moving after
+    ``steps`` evaluations (a guess too far off, a jump in the climb rate) are left to the
+    bracketing solver. Returns (root, settled, slope: the last secant's where settled).
+    """
+    n = len(mach)
+    root, ok = np.full(n, np.nan), np.zeros(n, dtype=bool)
+    slope, learnt = np.array(slope_per_s, dtype=float), np.array(slope_per_s, dtype=float)
+    idx, h, sub = np.arange(n), np.array(guess_m, dtype=float), phys
+    e_prev = h_prev = None
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        for _ in range(steps):
+            e = sub.excess(h, mach[idx])
+            if e_prev is not None:
+                slope[idx] = (e - e_prev) / (h - h_prev)
+            h_next = h - e / slope[idx]
+            done = (np.abs(h_next - h) <= max_step_m) & (slope[idx] < 0.0)
+            root[idx[done]], ok[idx[done]], learnt[idx[done]] = h_next[done], True, slope[idx[done]]
+            going = np.flatnonzero(~done & np.isfinite(h_next))
+            if going.size == 0:
+                break
+            idx, sub = idx[going], sub.subset(going)
+            e_prev, h_prev, h = e[going], h[going], h_next[going]
+    return root, ok, learnt
+
+
 def _split_at_layer_base(phys: "ClimbPhysics", mach, a, b, fa, fb, active):
     """Brackets that straddle an ISA layer base, narrowed to one side of it (or to it).
 
@@ -322,47 +379,72 @@ def golden_max(func, a, b, iterations):
     return _golden_max(func, a, b, iterations)
 
 
-def _parabolic_max(func, grid, values, iterations):
-    """Vectorised successive parabolic interpolation for a smooth maximum, from a grid.
+def _brent_max(func, grid, values, max_iter, tol):
+    """Vectorised Brent maximisation per row, started from the best point of a grid.
 
-    Each row of ``grid`` (speeds) with its ``values``; the bracket around the best grid point is
-    narrowed by the vertex of the parabola through the bracket ends and the best point, with a
-    golden-section step where the parabola is unusable (Brent, *Algorithms for Minimization
-    without Derivatives*, 1973, ch. 5). ``func(x)`` evaluates every row. Returns (x, f).
+    Brent, *Algorithms for Minimization without Derivatives* (1973), ch. 5: a parabola through
+    the three best points so far, its vertex taken where it lies well inside the bracket and the
+    step is under half the one before last; a golden-section step into the larger part of the
+    bracket otherwise. Each row of ``grid`` (speeds) comes with its ``values``; a row stops once
+    its bracket is within ``tol`` of its best point. ``func(idx, x, guess, spread)`` evaluates the
+    rows ``idx`` at ``x``, with a guess of the value and how far it may be off. Returns (x, f).
     """
     n, g = grid.shape
     rows = np.arange(n)
     i = np.argmax(values, axis=1)
-    a, b, c = grid[rows, np.maximum(i - 1, 0)], grid[rows, i], grid[rows, np.minimum(i + 1, g - 1)]
-    fa, fb, fc = values[rows, np.maximum(i - 1, 0)], values[rows, i], values[rows, np.minimum(i + 1, g - 1)]
-    for _ in range(iterations):
-        with np.errstate(invalid="ignore", divide="ignore"):
-            num = (b - a) ** 2 * (fb - fc) - (b - c) ** 2 * (fb - fa)
-            den = (b - a) * (fb - fc) - (b - c) * (fb - fa)
-            v = b - 0.5 * num / den
-        golden = np.where(c - b > b - a, b + (1 - GOLDEN) * (c - b), b - (1 - GOLDEN) * (b - a))
-        tiny = 1e-9 + 1e-6 * np.abs(c - a)
-        bad = ~np.isfinite(v) | (v <= a) | (v >= c) | (np.abs(v - b) < tiny)
-        v = np.where(bad, golden, v)
-        # A start for a root inside func: the parabola's own value at v where it has one (close
-        # near a smooth maximum), else the nearest known point's, with how far they may be off.
-        near_a, near_c = np.abs(v - a) < np.abs(v - b), np.abs(v - c) < np.abs(v - b)
-        nearest = np.where(near_a, fa, np.where(near_c, fc, fb))
-        left_of = v < b
-        with np.errstate(invalid="ignore", divide="ignore"):  # inf - inf above the model top, edges
-            pred = (fa * (v - b) * (v - c) / ((a - b) * (a - c)) + fb * (v - a) * (v - c) / ((b - a) * (b - c))
-                    + fc * (v - a) * (v - b) / ((c - a) * (c - b)))
-            spread = np.abs(np.where(left_of, fa, fc) - fb)
-            use_pred = np.isfinite(pred) & ~bad
+    i_lo, i_hi = np.maximum(i - 1, 0), np.minimum(i + 1, g - 1)
+    a, b = grid[rows, i_lo].copy(), grid[rows, i_hi].copy()
+    x, fx = grid[rows, i].copy(), values[rows, i].copy()
+    f_lo, f_hi = values[rows, i_lo], values[rows, i_hi]
+    lo_better = f_lo >= f_hi
+    w, fw = np.where(lo_better, a, b), np.where(lo_better, f_lo, f_hi)
+    v, fv = np.where(lo_better, b, a), np.where(lo_better, f_hi, f_lo)
+    d, e = np.zeros(n), b - a  # e: the step before last (the bracket allows a parabola at once)
+    live = np.flatnonzero(np.isfinite(fx) & (b > a))
+    for _ in range(max_iter):
+        mid = 0.5 * (a[live] + b[live])
+        xl, al, bl = x[live], a[live], b[live]
+        going = np.abs(xl - mid) > 2.0 * tol - 0.5 * (bl - al)
+        live, mid, xl, al, bl = live[going], mid[going], xl[going], al[going], bl[going]
+        if live.size == 0:
+            break
+        wl, vl, fxl, fwl, fvl, dl, el = w[live], v[live], fx[live], fw[live], fv[live], d[live], e[live]
+        with np.errstate(invalid="ignore", divide="ignore"):  # -inf values, coincident points
+            r, q = (xl - wl) * (fxl - fvl), (xl - vl) * (fxl - fwl)
+            step = -0.5 * ((xl - wl) * r - (xl - vl) * q) / (r - q)
+            u = xl + step
+            parabola = (np.isfinite(step) & (np.abs(step) < 0.5 * np.abs(el))
+                        & (u - al >= 2.0 * tol) & (bl - u >= 2.0 * tol))
+            # The parabola's own value at the new point: a start for the root inside func.
+            pred = (fxl * (u - wl) * (u - vl) / ((xl - wl) * (xl - vl)) + fwl * (u - xl) * (u - vl) / ((wl - xl) * (wl - vl))
+                    + fvl * (u - xl) * (u - wl) / ((vl - xl) * (vl - wl)))
+        golden_e = np.where(xl >= mid, al - xl, bl - xl)
+        e[live] = np.where(parabola, dl, golden_e)
+        dl = np.where(parabola, step, (1.0 - GOLDEN) * golden_e)
+        dl = np.where(np.abs(dl) >= tol, dl, np.where(dl >= 0.0, tol, -tol))
+        d[live] = dl
+        u = xl + dl
+        # The root's start: the parabola's value, off by up to its distance from the value at
+        # the nearest known point.
+        near_w, near_v = np.abs(u - wl) < np.abs(u - xl), np.abs(u - vl) < np.abs(u - xl)
+        nearest = np.where(near_w & (np.abs(u - wl) <= np.abs(u - vl)), fwl, np.where(near_v, fvl, fxl))
+        with np.errstate(invalid="ignore"):
+            use_pred = np.isfinite(pred)
             guess = np.where(use_pred, pred, nearest)
-            spread = np.where(use_pred, 0.2 * np.abs(pred - nearest), spread)
-        fv = func(v, guess, spread)
-        up = fv > fb
-        left = left_of
-        a, fa = np.where(up & ~left, b, np.where(~up & left, v, a)), np.where(up & ~left, fb, np.where(~up & left, fv, fa))
-        c, fc = np.where(up & left, b, np.where(~up & ~left, v, c)), np.where(up & left, fb, np.where(~up & ~left, fv, fc))
-        b, fb = np.where(up, v, b), np.where(up, fv, fb)
-    return b, fb
+            spread = np.where(use_pred, np.abs(pred - nearest), np.nan)
+        fu = func(live, u, guess, spread)
+        better = fu >= fxl
+        # The bracket shrinks to the side of the best point; the three best points move along.
+        a[live] = np.where(better, np.where(u >= xl, xl, al), np.where(u < xl, u, al))
+        b[live] = np.where(better, np.where(u >= xl, bl, xl), np.where(u < xl, bl, u))
+        second = ~better & ((fu >= fwl) | (wl == xl))
+        third = ~better & ~second & ((fu >= fvl) | (vl == xl) | (vl == wl))
+        v[live] = np.where(better | second, wl, np.where(third, u, vl))
+        fv[live] = np.where(better | second, fwl, np.where(third, fu, fvl))
+        w[live] = np.where(better, xl, np.where(second, u, wl))
+        fw[live] = np.where(better, fxl, np.where(second, fu, fwl))
+        x[live], fx[live] = np.where(better, u, xl), np.where(better, fu, fxl)
+    return x, fx
 
 
 def _interpolated_guess(cases: CaseSet, grid_values):
@@ -371,10 +453,10 @@ def _interpolated_guess(cases: CaseSet, grid_values):
     rows = np.arange(n)
     span = np.where(cases.mach_high > cases.mach_low, cases.mach_high - cases.mach_low, 1.0)
 
-    def guess(m):
-        u = np.clip((m - cases.mach_low) / span * (g - 1), 0.0, g - 1.0)
+    def guess(m, idx=rows):
+        u = np.clip((m - cases.mach_low[idx]) / span[idx] * (g - 1), 0.0, g - 1.0)
         j = np.minimum(u.astype(np.int64), max(g - 2, 0))
-        lo_v, hi_v = grid_values[rows, j], grid_values[rows, np.minimum(j + 1, g - 1)]
+        lo_v, hi_v = grid_values[idx, j], grid_values[idx, np.minimum(j + 1, g - 1)]
         with np.errstate(invalid="ignore"):  # inf - inf where a speed is above the model top
             mid = lo_v + (u - j) * (hi_v - lo_v)
         return np.where(np.isfinite(mid), mid, np.where(np.isfinite(lo_v), lo_v, hi_v))
@@ -382,7 +464,7 @@ def _interpolated_guess(cases: CaseSet, grid_values):
     return guess
 
 
-def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_HALF_WIDTH_M, warm_tol_m=ROOT_TOL_M):
+def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_HALF_WIDTH_M, tol_m=ROOT_TOL_M):
     """Highest pressure altitude (m) with the required residual climb at a Mach, and flags.
 
     With ``guess_m`` (the answer at a nearby speed) the root is first bracketed tightly around
@@ -415,10 +497,10 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
             result, flags = np.full(n, np.nan), np.zeros(n, dtype=np.int32)
             cold, hot = np.flatnonzero(~warm), np.flatnonzero(warm)
             if cold.size:
-                result[cold], flags[cold] = thrust_ceiling_m(phys.subset(cold), mach[cold])
+                result[cold], flags[cold] = thrust_ceiling_m(phys.subset(cold), mach[cold], tol_m=tol_m)
             sub = phys if hot.size == n else phys.subset(hot)
             with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-                result[hot] = _illinois(sub, mach[hot], a[hot], b[hot], fa[hot], fb[hot], tol=warm_tol_m)
+                result[hot] = _illinois(sub, mach[hot], a[hot], b[hot], fa[hot], fb[hot], tol=tol_m)
                 # A tight window means a very close speed's answer: a higher hump cannot appear
                 # from nothing over so small a step, so only wide windows get the look above.
                 wide = np.broadcast_to(half_width_m, (n,))[hot] > HUMP_CHECK_HALF_WIDTH_M
@@ -429,7 +511,7 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
                     high = np.maximum(np.clip(at_cl_max, cs.floor_m[table], top[table]), result[table])
                     redo = table[_climbs_above(phys.subset(table), mach[table], result[table], high)]
                     if redo.size:
-                        result[redo], flags[redo] = thrust_ceiling_m(phys.subset(redo), mach[redo])
+                        result[redo], flags[redo] = thrust_ceiling_m(phys.subset(redo), mach[redo], tol_m=tol_m)
             return result, flags
     qs = phys.qs_per_pm2 * mach * mach
     cl_star = np.sqrt(cs.cd0 / cs.k)
@@ -455,7 +537,7 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
     if fast.size:
         sub = phys if fast.size == n else phys.subset(fast)
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            result[fast] = _illinois(sub, mach[fast], a[fast], b[fast], fa[fast], fb[fast])
+            result[fast] = _illinois(sub, mach[fast], a[fast], b[fast], fa[fast], fb[fast], tol=tol_m)
         # Table engines interpolate linearly between grid altitudes, so their excess climb rate
         # can have more than one hump: a case that still climbs somewhere above its root takes
         # the scan, which finds the highest root.
@@ -464,7 +546,7 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
             quick[table[_climbs_above(phys.subset(table), mach[table], result[table], b[table], True)]] = False
     slow = np.flatnonzero(~quick)
     if slow.size:
-        result[slow], flags[slow] = _scanned_thrust_ceiling_m(phys.subset(slow), mach[slow])
+        result[slow], flags[slow] = _scanned_thrust_ceiling_m(phys.subset(slow), mach[slow], tol_m)
     return result, flags
 
 
@@ -500,7 +582,7 @@ def _climbs_above(phys: ClimbPhysics, mach, root_m, top_m, top_known=False):
     return out
 
 
-def _scanned_thrust_ceiling_m(phys: ClimbPhysics, mach):
+def _scanned_thrust_ceiling_m(phys: ClimbPhysics, mach, tol_m=ROOT_TOL_M):
     """Thrust ceiling bracketed by a coarse scan of altitudes (robust, slower)."""
     cs = phys.cases
     n = len(cs)
@@ -543,7 +625,7 @@ def _scanned_thrust_ceiling_m(phys: ClimbPhysics, mach):
     if solve.size:
         b, fb = levels[solve, j[solve] + 1], e[solve, j[solve] + 1]
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            root = _illinois(phys.subset(solve), mach[solve], a[solve], b, fa[solve], fb)
+            root = _illinois(phys.subset(solve), mach[solve], a[solve], b, fa[solve], fb, tol=tol_m)
         result[solve] = root
     return result, flags
 
@@ -559,6 +641,32 @@ def buffet_cl_at(cases: CaseSet, mach):
         key = mach + 10.0 * safe
         cl = np.where(inside, np.interp(key, cases.buffet_key, cases.buffet_cl), np.nan)
     return cl
+
+
+def buffet_peak_mach(cases: CaseSet, low, high):
+    """Mach in [low, high] per case where M^2 CL_buffet(M) peaks: the speed of the highest buffet
+    ceiling, since n W = (gamma/2) p M^2 S CL_buffet (Anderson, *Introduction to Flight*, eq. 4.83).
+
+    Closed form: on each segment of the (piecewise linear) boundary CL_b = c + s M, and
+    d/dM [M^2 (c + s M)] = 0 at M = -2c / (3s); the peak is there, at a node or at an end of the
+    range. NaN where the case has no buffet data.
+    """
+    out = np.full(len(cases), np.nan)
+    bid = cases.buffet_id
+    for i in np.unique(bid[bid >= 0]):
+        rows = np.flatnonzero(bid == i)
+        node = (cases.buffet_key >= 10.0 * i) & (cases.buffet_key < 10.0 * (i + 1))
+        m, cl = cases.buffet_key[node] - 10.0 * i, cases.buffet_cl[node]
+        slope = np.diff(cl) / np.diff(m)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            turn = -2.0 * (cl[:-1] - slope * m[:-1]) / (3.0 * slope)
+        turn = turn[(slope < 0.0) & (turn > m[:-1]) & (turn < m[1:])]
+        lo = np.maximum(np.broadcast_to(low, (len(cases),))[rows], m[0])[:, None]
+        hi = np.minimum(np.broadcast_to(high, (len(cases),))[rows], m[-1])[:, None]
+        candidates = np.hstack([np.clip(np.concatenate([m, turn])[None, :], lo, hi), lo, hi])
+        capacity = candidates * candidates * np.interp(candidates, m, cl)
+        out[rows] = candidates[np.arange(rows.size), np.argmax(capacity, axis=1)]
+    return out
 
 
 def buffet_ceiling_m(cases: CaseSet, mach):
@@ -588,7 +696,7 @@ def closed_form_ceilings_m(cases: CaseSet, mach):
 
 
 def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=True,
-                guess_half_width_m=WARM_HALF_WIDTH_M) -> Ceilings:
+                guess_half_width_m=WARM_HALF_WIDTH_M, tol_m=ROOT_TOL_M) -> Ceilings:
     """Every limit at a fixed Mach per case, and the maximum altitude where all are met.
 
     With ``thrust_needed=False`` (only the maximum altitude is wanted) the thrust root is not
@@ -599,7 +707,7 @@ def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=Tru
     buffet, stall, cabin, vmo_floor = closed_form_ceilings_m(cs, mach)
     skipped = np.zeros(len(cs), dtype=bool)
     if thrust_needed:
-        thrust, flags = thrust_ceiling_m(phys, mach, thrust_guess_m, guess_half_width_m)
+        thrust, flags = thrust_ceiling_m(phys, mach, thrust_guess_m, guess_half_width_m, tol_m)
     else:
         other = np.fmin(np.fmin(np.where(np.isnan(buffet), np.inf, buffet), stall), np.fmin(cs.certified_m, cabin))
         inside = np.isfinite(other) & (other >= cs.floor_m) & (other <= np.minimum(cs.top_m, MODEL_TOP_M))
@@ -610,7 +718,7 @@ def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=Tru
         if todo.size:
             sub = phys if todo.size == len(cs) else phys.subset(todo)
             guess = None if thrust_guess_m is None else thrust_guess_m[todo]
-            thrust[todo], flags[todo] = thrust_ceiling_m(sub, mach[todo], guess)
+            thrust[todo], flags[todo] = thrust_ceiling_m(sub, mach[todo], guess, tol_m=tol_m)
     flags[(cs.buffet_id >= 0) & np.isnan(buffet)] |= NO_BUFFET_AT_MACH
     # A ceiling beyond the thrust table is unknown; the other limits may still bind below its top.
     thrust_for_min = np.where(flags & THRUST_DATA_TOP, np.inf, thrust)
@@ -668,7 +776,8 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     """Best speed per case: the Mach at which the feasible band closes highest.
 
     1. The limits on a grid of speeds (each thrust root started from the previous speed's).
-    2. The thrust ceiling's own best speed, by parabolic refinement (a smooth maximum).
+    2. The thrust ceiling's own best speed, by Brent's search from the best grid speed; its roots
+       by Newton steps with a slope learnt on the first (they move little between its speeds).
     3. Where thrust, the certified or the cabin ceiling binds there, no speed does better (each is
        an upper bound of the maximum altitude at every speed): done. Elsewhere (buffet or stall
        binding, the coffin corner) a golden-section search on the combined maximum altitude.
@@ -687,7 +796,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         mach_j = np.ascontiguousarray(grid[:, j])
         live = np.flatnonzero(falls < 2)
         if live.size == n:
-            columns[j] = _fixed_mach(phys, mach_j, guess, guess_half_width_m=half)
+            columns[j] = _fixed_mach(phys, mach_j, guess, guess_half_width_m=half, tol_m=GRID_TOL_M)
         else:
             columns[j] = _blank_ceilings(n, mach_j)
             # The closed forms cost little: keep them for every speed (buffet's own best speed).
@@ -695,7 +804,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
             if live.size:
                 pick = (lambda x, live=live: None if x is None else (x[live] if np.ndim(x) else x))  # noqa: E731
                 columns[j].put(live, _fixed_mach(phys.subset(live), mach_j[live], pick(guess),
-                                                 guess_half_width_m=pick(half)))
+                                                 guess_half_width_m=pick(half), tol_m=GRID_TOL_M))
         found = columns[j].thrust_m
         value = _objective(found)
         falls = np.where(value < peak, falls + 1, 0)
@@ -710,14 +819,50 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     thrust_grid = at_grid["thrust_m"]
     guess_all = _interpolated_guess(cs, thrust_grid)
 
-    def thrust_at(m, near, spread):
-        ok = np.isfinite(near)
-        start = np.where(ok, near, guess_all(m))
-        half = np.clip(np.where(ok & np.isfinite(spread), 0.5 * spread, WARM_HALF_WIDTH_M), 1.0, 2000.0)
-        return _objective(thrust_ceiling_m(phys, m, start, half, SEARCH_TOL_M)[0])
+    # d(excess)/dh at each case's thrust ceiling (1/s), learnt on the search's first root: it
+    # changes little over the search's small steps in speed.
+    slope = np.full(n, np.nan)
 
-    m_thrust, thrust_best = _parabolic_max(thrust_at, grid, _objective(thrust_grid), SMOOTH_ITERATIONS)
-    final = _fixed_mach(phys, m_thrust, guess_all(m_thrust))
+    def thrust_at(idx, m, near, spread):
+        sub = phys if idx.size == n else phys.subset(idx)
+        out = np.full(idx.size, np.nan)
+        with np.errstate(invalid="ignore"):
+            # Not next to a layer base, where the climb rate jumps (and the slope learnt may be the
+            # other layer's).
+            base = np.abs(near[:, None] - LAYER_BASE_M[None, 1:3]).min(axis=1)
+            close = np.isfinite(near) & np.isfinite(slope[idx]) & (base > LAYER_GUARD_M)
+        # Near a known root: Newton steps from the guess with the learnt slope (see _newton_root).
+        qi = np.flatnonzero(close)
+        if qi.size:
+            root, ok, new_slope = _newton_root(sub if qi.size == idx.size else sub.subset(qi), m[qi], near[qi],
+                                               slope[idx[qi]])
+            out[qi[ok]] = root[ok]
+            slope[idx[qi]] = new_slope
+            close[qi[~ok]] = False
+        rest = np.flatnonzero(~close)
+        if rest.size:
+            part = sub if rest.size == idx.size else sub.subset(rest)
+            near_r, spread_r, m_r = near[rest], spread[rest], m[rest]
+            ok = np.isfinite(near_r)
+            start = np.where(ok, near_r, guess_all(m_r, idx[rest]))
+            half = np.clip(np.where(ok & np.isfinite(spread_r), 0.5 * spread_r, WARM_HALF_WIDTH_M), SEARCH_MIN_HALF_WIDTH_M,
+                           2000.0)
+            root = thrust_ceiling_m(part, m_r, start, half, SEARCH_TOL_M)[0]
+            out[rest] = root
+            learn = np.flatnonzero(np.isfinite(root) & np.isnan(slope[idx[rest]]))
+            if learn.size:
+                with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+                    up = part.subset(learn).excess(root[learn] + SLOPE_STEP_M, m_r[learn])
+                slope[idx[rest[learn]]] = up / SLOPE_STEP_M
+        return _objective(out)
+
+    m_thrust, searched = _brent_max(thrust_at, grid, _objective(thrust_grid), BEST_MACH_SEARCH_ITERATIONS,
+                                     BEST_MACH_TOL)
+    # The refinement's root at its best speed, to SEARCH_TOL_M: a window just that wide settles it.
+    known = np.isfinite(searched)
+    final = _fixed_mach(phys, m_thrust, np.where(known, searched, guess_all(m_thrust)),
+                        guess_half_width_m=np.where(known, 4.0 * SEARCH_TOL_M, WARM_HALF_WIDTH_M))
+    thrust_best = _objective(final.thrust_m)  # to the full tolerance (the search's roots are looser)
     m_best = m_thrust.copy()
 
     grid_res = Ceilings(**{k: v.ravel() for k, v in at_grid.items()})
@@ -748,16 +893,10 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                 m_best[todo[sel]] = m[sel]
                 final.put(todo[sel], res.take(sel))
 
-    thrust_best = np.maximum.reduce([thrust_best, _objective(thrust_grid).max(axis=1), _objective(final.thrust_m)])
+    thrust_best = np.maximum(thrust_best, _objective(final.thrust_m))
 
-    def buffet_at(idx, m):
-        return _objective(buffet_ceiling_m(cs, m))
-
-    i = np.argmax(_objective(at_grid["buffet_m"]), axis=1)
-    lo, hi = grid[rows, np.maximum(i - 1, 0)], grid[rows, np.minimum(i + 1, g - 1)]
-    _, buffet_best = _golden_max(buffet_at, lo, hi, BEST_MACH_ITERATIONS)
-    buffet_best = np.maximum.reduce([buffet_best, _objective(at_grid["buffet_m"]).max(axis=1),
-                                     _objective(final.buffet_m)])
+    buffet_best = np.maximum.reduce([_objective(buffet_ceiling_m(cs, buffet_peak_mach(cs, cs.mach_low, cs.mach_high))),
+                                     _objective(at_grid["buffet_m"]).max(axis=1), _objective(final.buffet_m)])
     stall_best = closed_form_ceilings_m(cs, cs.mach_high)[1]
 
     grid_flags = np.bitwise_or.reduce(at_grid["flags"], axis=1)
@@ -806,24 +945,31 @@ def _solve_sorted_chunk(part: CaseSet) -> Ceilings:
     return Ceilings(**{k: getattr(merged, k)[order] for k in Ceilings.__dataclass_fields__})
 
 
-def solve_ceilings(cases: CaseSet, chunk: int = CHUNK, processes: int | None = None) -> Ceilings:
+def solve_ceilings(cases: CaseSet, chunk: int | None = None, processes: int | None = None) -> Ceilings:
     """Every limit's ceiling and the maximum altitude for all cases (fixed Mach or best speed).
 
-    Cases whose ``mach`` is NaN are solved for the best speed. Work goes in chunks sized for the
-    cache (bounded memory). Large jobs (``PARALLEL_MIN_CASES`` fixed-Mach solves or more, a
-    best-speed case counting ``BEST_SPEED_WORK``) are shared between processes, one per core:
-    numpy threads gained nothing here (measured), processes do.
+    Cases whose ``mach`` is NaN are solved for the best speed. Work goes in chunks of about
+    ``chunk`` cases (``CHUNK``; ``BEST_CHUNK`` when every case is best speed), so memory stays
+    bounded. Large jobs (``PARALLEL_MIN_CASES`` fixed-Mach solves or more, a best-speed case
+    counting ``BEST_SPEED_WORK``) are shared between processes, one per core, in chunks of equal
+    size and a number of them that is a multiple of the processes': numpy threads gained nothing
+    here (measured), processes do.
     """
     n = len(cases)
     if n == 0:
         return Ceilings.allocate(0)
-    chunk = max(1, chunk)
-    bounds = [(start, min(start + chunk, n)) for start in range(0, n, chunk)]
+    n_best = int(np.count_nonzero(np.isnan(cases.mach)))
+    if chunk is None:
+        chunk = BEST_CHUNK if n_best == n else CHUNK
     if processes is None:
         # A best-speed case is some fifteen fixed-Mach solves: weigh the work, not the count.
-        work = n + (BEST_SPEED_WORK - 1) * int(np.count_nonzero(np.isnan(cases.mach)))
+        work = n + (BEST_SPEED_WORK - 1) * n_best
         processes = min(2, os.cpu_count() or 1) if work >= PARALLEL_MIN_CASES else 1
-    processes = min(processes, len(bounds))
+    count = -(-n // max(1, chunk))
+    processes = max(1, min(processes, count))
+    count = -(-count // processes) * processes
+    size = -(-n // count)
+    bounds = [(start, min(start + size, n)) for start in range(0, n, size)]
     if processes > 1 and sys.platform.startswith("linux"):
         solved = _solve_in_processes(cases, bounds, processes)
         if solved is not None:

@@ -20,17 +20,18 @@ def density_lapse_fraction(density_kg_m3, lapse_exponent=1.0, tropopause_density
     app. H). Above the tropopause an optional second exponent m2 applies to the density ratio
     from the tropopause: F/F0 = sigma_11^m (rho/rho_11)^m2. No Mach dependence.
     """
-    rho = np.asarray(density_kg_m3, dtype=float)
     m = np.asarray(lapse_exponent, dtype=float)
-    frac = (rho / RHO0_KG_M3) ** m
-    if tropopause_density_kg_m3 is None or lapse_exponent_above_tropopause is None:
-        return frac
-    rho11 = np.asarray(tropopause_density_kg_m3, dtype=float)
-    m2 = np.asarray(lapse_exponent_above_tropopause, dtype=float)
-    above = rho < rho11
-    with np.errstate(invalid="ignore", divide="ignore"):
-        upper = (rho11 / RHO0_KG_M3) ** m * (rho / rho11) ** m2
-    return np.where(above, upper, frac)
+    with np.errstate(divide="ignore"):
+        ln_sigma = np.log(np.asarray(density_kg_m3, dtype=float) / RHO0_KG_M3)
+    ln_frac = m * ln_sigma
+    if tropopause_density_kg_m3 is not None and lapse_exponent_above_tropopause is not None:
+        # ln F/F0 = m ln sigma below the tropopause density, plus (m2 - m) ln(rho/rho_11) above:
+        # one logarithm and one exponential per point (powers cost twice that).
+        m2 = np.asarray(lapse_exponent_above_tropopause, dtype=float)
+        ln_sigma11 = np.log(np.asarray(tropopause_density_kg_m3, dtype=float) / RHO0_KG_M3)
+        with np.errstate(invalid="ignore"):
+            ln_frac += (m2 - m) * np.minimum(ln_sigma - ln_sigma11, 0.0)
+    return np.exp(ln_frac)
 
 
 def stagnation_ratios(mach, temperature_k, pressure_pa):
