@@ -140,7 +140,9 @@ class ClimbPhysics:
         """The physics of some of the cases (an index array or slice), derived values taken along."""
         new = ClimbPhysics.__new__(ClimbPhysics)
         new.cases = CaseView(self.cases, index)
-        new._groups()
+        new.groups = self._subset_groups(index)
+        if new.groups is None:
+            new._groups()
         for name in self._DERIVED:
             setattr(new, name, getattr(self, name)[index])
         new.has_wave = self.has_wave
@@ -148,6 +150,20 @@ class ClimbPhysics:
         # The parent's Mach terms, taken along when the subset is asked for the same speeds.
         new._parent_terms = None if self._terms is None else (self._terms[1], index)
         return new
+
+    def _subset_groups(self, index):
+        """The groups of a subset as slices, from this set's slices: where an ascending index
+        array (the solvers' flatnonzero) or a slice picks the cases. None where that does not hold."""
+        if not all(isinstance(g, slice) for _, _, g in self.groups):
+            return None
+        if isinstance(index, slice):
+            index = np.arange(len(self.cases))[index]
+        index = np.asarray(index)
+        if index.dtype == bool or (index.size > 1 and not np.all(index[1:] > index[:-1])):
+            return None
+        cuts = np.searchsorted(index, [g.start for _, _, g in self.groups] + [len(self.cases)])
+        return [(code, tid, slice(int(a), int(b))) for (code, tid, _), a, b in zip(self.groups, cuts[:-1], cuts[1:])
+                if b > a]
 
     def _derived(self):
         """Per-case constants of the climb equation, computed once per case set."""
@@ -561,8 +577,10 @@ def _climbs_above(phys: ClimbPhysics, mach, root_m, top_m, top_known=False):
     """
     cs = phys.cases
     out = np.zeros(len(cs), dtype=bool)
-    for tid in np.unique(cs.table_id):
-        rows = np.flatnonzero(cs.table_id == tid)
+    for code, tid, group in phys.groups:
+        if code != MODEL_CODES["table"]:
+            continue
+        rows = np.arange(len(cs))[group]
         nodes = cs.tables[tid].altitude_ft * FT
         points = np.sort(np.concatenate([nodes, 0.5 * (nodes[1:] + nodes[:-1])]))
         root, top = root_m[rows, None], top_m[rows, None]
@@ -653,7 +671,7 @@ def buffet_peak_mach(cases: CaseSet, low, high):
     """
     out = np.full(len(cases), np.nan)
     bid = cases.buffet_id
-    for i in np.unique(bid[bid >= 0]):
+    for i in np.flatnonzero(np.bincount(bid[bid >= 0])):  # (np.unique costs more)
         rows = np.flatnonzero(bid == i)
         node = (cases.buffet_key >= 10.0 * i) & (cases.buffet_key < 10.0 * (i + 1))
         m, cl = cases.buffet_key[node] - 10.0 * i, cases.buffet_cl[node]
