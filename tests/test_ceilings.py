@@ -11,6 +11,7 @@ from variantcmp.table import Conditions, ceilings_table
 from variantcmp.units import WeightSpec
 
 SLACK_FT = 0.1  # root tolerance is about 0.01 ft
+FT = 0.3048
 LIMIT_COLS = ["thrust_ceiling_ft", "buffet_ceiling_ft", "stall_ceiling_ft", "certified_ceiling_ft", "cabin_ceiling_ft"]
 
 
@@ -247,3 +248,43 @@ def test_limits_below_the_atmosphere_model_are_not_numbers(demo):
     assert f["stall_ceiling_ft"].drop_nulls().min() is None or f["stall_ceiling_ft"].drop_nulls().min() > -16_500
     assert f["max_altitude_ft"].is_null().all()
     assert (f["note"].str.len_chars() > 0).all()  # and each row says why
+
+
+@pytest.mark.parametrize("fleet", ["demo", "synthetic"])
+def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet):
+    # Definition of the best speed (the speed at which the maximum altitude is highest), checked
+    # by brute force, no external source: fixed-Mach solves at 161 speeds over each case's range,
+    # then 41 around the best of them. The search must be no lower than the scan. The benchmark's
+    # fleet has wide speed ranges (no buffet data) and a drag rise that make the optimum lopsided.
+    import dataclasses
+
+    from variantcmp import bench, solver
+    from variantcmp.cases import build_cases
+    from variantcmp.table import selected_pairs
+
+    if fleet == "demo":
+        cases, _ = build_cases(demo, selected_pairs(demo, Conditions()), lambda v: np.array([0.7, 0.85, 1.0]) * v.mtow_kg,
+                               [-5.0, 15.0, 30.0], [0.0, 300.0], "best", 1.3)
+    else:
+        cases = bench.synthetic_cases(bench.synthetic_fleet(), 1500, mach="best")
+    best = solver.solve_ceilings(cases, processes=1)
+
+    def scan(mach):  # (cases, k) speeds -> maximum altitude (m), -inf where none
+        k = mach.shape[1]
+        rep = cases.take(np.repeat(np.arange(len(cases)), k))
+        got = solver.solve_ceilings(dataclasses.replace(rep, mach=mach.ravel().copy()), processes=1).max_altitude_m
+        return np.where(np.isnan(got), -np.inf, got).reshape(len(cases), k)
+
+    lo, hi = cases.mach_low[:, None], cases.mach_high[:, None]
+    coarse_m = lo + (hi - lo) * np.linspace(0.0, 1.0, 161)[None, :]
+    coarse = scan(coarse_m)
+    step = (hi - lo) / 160.0
+    centre = coarse_m[np.arange(len(cases)), np.argmax(coarse, axis=1)][:, None]
+    fine = scan(np.clip(centre + step * np.linspace(-1.0, 1.0, 41)[None, :], lo, hi))
+    brute = np.maximum(coarse.max(axis=1), fine.max(axis=1))
+    found = np.where(np.isnan(best.max_altitude_m), -np.inf, best.max_altitude_m)
+    assert np.array_equal(np.isfinite(found), np.isfinite(brute))
+    ok = np.isfinite(brute)
+    assert ok.sum() > 100
+    assert np.all(found[ok] >= brute[ok] - 0.3 * FT)
+    assert np.all(found[ok] <= brute[ok] + 5.0 * FT)  # no speed flies higher than the scan allows (a few ft between points)

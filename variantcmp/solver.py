@@ -50,7 +50,7 @@ HUMP_CHECK_HALF_WIDTH_M = 50.0  # warm windows at least this wide get the table-
 ROOT_TOL_M = 0.003  # about 0.01 ft
 SEARCH_TOL_M = 0.03  # inside the best-speed search, where only comparisons matter (0.1 ft)
 GRID_TOL_M = 0.3  # best-speed grid: only a start for the search (1 ft)
-STRAGGLER_ITERATION = 8  # regula falsi steps before brackets across a layer base are split there
+STRAGGLER_ITERATION = 5  # regula falsi steps before brackets across a layer base are split there
 CO_LIMIT_M = 10.0  # two limits this close both bind (e.g. thrust and buffet at the coffin corner)
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
@@ -61,6 +61,7 @@ SEARCH_MIN_HALF_WIDTH_M = 10.0  # narrowest window for a best-speed search root 
 NEWTON_MAX_STEP_M = 0.3  # a Newton step this short ends the root (slope off by 5 %: 1.5 cm)
 SLOPE_STEP_M = 1.0  # finite-difference step for the excess climb rate's slope
 LAYER_GUARD_M = 50.0  # no Newton steps this close to a layer base
+PLATEAU_ITERATIONS = 24  # golden section in Mach just above a layer base: range x 0.618^24, about 1e-5
 CHUNK = 16_384
 BEST_CHUNK = 50_000  # best speed makes many calls on small sets: larger chunks share their overhead
 PARALLEL_MIN_CASES = 200_000
@@ -461,6 +462,31 @@ def _brent_max(func, grid, values, max_iter, tol):
         fw[live] = np.where(better, fxl, np.where(second, fu, fwl))
         x[live], fx[live] = np.where(better, u, xl), np.where(better, fu, fxl)
     return x, fx
+
+
+def _above_layer_base(phys: ClimbPhysics, m_best, h_best):
+    """Where the best thrust ceiling found sits on a layer base, look just above it (in place).
+
+    The climb rate drops across a layer base (the energy-share factor changes), so over a range
+    of speeds the thrust ceiling is held at the base itself: a flat top on which a search sees
+    nothing. Just above the base the excess climb rate is smooth in Mach: where its best over the
+    speed range still climbs, the ceiling there rises above the base.
+    """
+    cs = phys.cases
+    base = LAYER_BASE_M[np.clip(np.searchsorted(LAYER_BASE_M, h_best + 0.5) - 1, 0, LAYER_BASE_M.size - 1)]
+    with np.errstate(invalid="ignore"):
+        on = np.flatnonzero((np.abs(h_best - base) < 0.5) & (base > 0.0))
+    if on.size == 0:
+        return
+    sub, h_on = phys.subset(on), base[on]
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        m_star, e_star = _golden_max(lambda idx, m: _objective(sub.excess(h_on, m)), cs.mach_low[on], cs.mach_high[on],
+                                     PLATEAU_ITERATIONS)
+    up = np.flatnonzero(e_star > 0.0)
+    if up.size:
+        h_up = thrust_ceiling_m(sub.subset(up), m_star[up], h_on[up] + WARM_HALF_WIDTH_M, WARM_HALF_WIDTH_M, SEARCH_TOL_M)[0]
+        better = np.flatnonzero(_objective(h_up) > h_best[on[up]])
+        m_best[on[up[better]]], h_best[on[up[better]]] = m_star[up[better]], h_up[better]
 
 
 def _interpolated_guess(cases: CaseSet, grid_values):
@@ -876,6 +902,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
 
     m_thrust, searched = _brent_max(thrust_at, grid, _objective(thrust_grid), BEST_MACH_SEARCH_ITERATIONS,
                                      BEST_MACH_TOL)
+    _above_layer_base(phys, m_thrust, searched)
     # The refinement's root at its best speed, to SEARCH_TOL_M: a window just that wide settles it.
     known = np.isfinite(searched)
     final = _fixed_mach(phys, m_thrust, np.where(known, searched, guess_all(m_thrust)),
