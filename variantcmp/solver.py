@@ -21,10 +21,10 @@ import numpy as np
 
 from .aero import energy_share_factor, korn_coefficients, lock_wave_drag
 from .airspeed import pressure_for_cas_at_mach_pa
-from .atmosphere import (G0, GAMMA, LAYER_BASE_M, MODEL_TOP_M, R_AIR, isa_state, pressure_altitude_m,
+from .atmosphere import (G0, GAMMA, LAYER_BASE_M, MODEL_TOP_M, R_AIR, RHO0_KG_M3, isa_state, pressure_altitude_m,
                          speed_of_sound_ms)
 from .cases import FLOOR_M, FT, MODEL_CODES, CaseSet, CaseView
-from .thrust import density_lapse_fraction, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms
+from .thrust import density_lapse_from_logs, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms
 
 LIMITS = ("thrust", "buffet", "stall", "certified", "cabin")
 
@@ -63,7 +63,7 @@ SLOPE_STEP_M = 1.0  # finite-difference step for the excess climb rate's slope
 LAYER_GUARD_M = 50.0  # no Newton steps this close to a layer base
 PLATEAU_ITERATIONS = 24  # golden section in Mach just above a layer base: range x 0.618^24, about 1e-5
 CHUNK = 16_384
-BEST_CHUNK = 50_000  # best speed makes many calls on small sets: larger chunks share their overhead
+BEST_CHUNK = 25_000  # best speed makes many calls on small sets: larger chunks share their overhead
 PARALLEL_MIN_CASES = 200_000
 BEST_SPEED_WORK = 15
 
@@ -115,7 +115,7 @@ class ClimbPhysics:
     ``excess(altitude_m, mach)`` (climb rate minus the case's required rate).
     """
 
-    _DERIVED = ("w_n", "qs_per_pm2", "thrust_n", "m_crit0", "m_crit_slope", "lapse_above", "flat_rated")
+    _DERIVED = ("w_n", "qs_per_pm2", "thrust_n", "m_crit0", "m_crit_slope", "lapse_change", "ln_sigma11", "flat_rated")
 
     def __init__(self, cases: CaseSet):
         self.cases = cases
@@ -174,7 +174,10 @@ class ClimbPhysics:
         self.thrust_n = cs.thrust_sls_n * hot_day_factor(cs.isa_dev_c, cs.flat_rate_isa_dev_c, cs.hot_day_loss_per_c)
         self.m_crit0, self.m_crit_slope = korn_coefficients(cs.thickness_ratio, cs.sweep_deg, cs.korn_factor)
         self.has_wave = bool(np.isfinite(self.m_crit0).any())
-        self.lapse_above = np.where(np.isnan(cs.lapse_exponent_above), cs.lapse_exponent, cs.lapse_exponent_above)
+        # Density lapse above the tropopause: the exponent's change there, and ln(rho_11/rho0).
+        above = cs.lapse_exponent_above
+        self.lapse_change = np.where(np.isnan(above), 0.0, above - cs.lapse_exponent)
+        self.ln_sigma11 = np.log(cs.tropopause_density_kg_m3 / RHO0_KG_M3)
         self.flat_rated = ~np.isnan(cs.flat_rate_isa_dev_c)
         self._terms = self._parent_terms = None
 
@@ -220,9 +223,11 @@ class ClimbPhysics:
             if code == 0:
                 # A flat-rated engine holds its ISA thrust up to the flat-rate deviation (the loss
                 # above it is hot_day_factor): its lapse sees ISA density, not the day's.
-                rho = p[idx] / (R_AIR * np.where(sub(self.flat_rated), t_isa[idx], t[idx]))
-                frac = density_lapse_fraction(rho, sub(cs.lapse_exponent), sub(cs.tropopause_density_kg_m3),
-                                              sub(self.lapse_above))
+                with np.errstate(divide="ignore"):
+                    t_seen = np.where(sub(self.flat_rated), t_isa[idx], t[idx])
+                    ln_sigma = np.log(p[idx] / (R_AIR * RHO0_KG_M3 * t_seen))
+                frac = density_lapse_from_logs(ln_sigma, sub(cs.lapse_exponent), sub(self.ln_sigma11),
+                                               sub(self.lapse_change))
             elif code == 1:
                 frac = turbofan_lapse_from_terms(t[idx], p[idx], sub(cs.throttle_ratio),
                                                  tuple(sub(x) for x in terms["turbofan"]))
@@ -433,7 +438,8 @@ def _brent_max(func, grid, values, max_iter, tol):
             parabola = (np.isfinite(step) & (np.abs(step) < 0.5 * np.abs(el))
                         & (u - al >= 2.0 * tol) & (bl - u >= 2.0 * tol))
             # The parabola's own value at the new point: a start for the root inside func.
-            pred = (fxl * (u - wl) * (u - vl) / ((xl - wl) * (xl - vl)) + fwl * (u - xl) * (u - vl) / ((wl - xl) * (wl - vl))
+            pred = (fxl * (u - wl) * (u - vl) / ((xl - wl) * (xl - vl))
+                    + fwl * (u - xl) * (u - vl) / ((wl - xl) * (wl - vl))
                     + fvl * (u - xl) * (u - wl) / ((vl - xl) * (vl - wl)))
         golden_e = np.where(xl >= mid, al - xl, bl - xl)
         e[live] = np.where(parabola, dl, golden_e)

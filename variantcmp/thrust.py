@@ -20,17 +20,23 @@ def density_lapse_fraction(density_kg_m3, lapse_exponent=1.0, tropopause_density
     app. H). Above the tropopause an optional second exponent m2 applies to the density ratio
     from the tropopause: F/F0 = sigma_11^m (rho/rho_11)^m2. No Mach dependence.
     """
-    m = np.asarray(lapse_exponent, dtype=float)
     with np.errstate(divide="ignore"):
         ln_sigma = np.log(np.asarray(density_kg_m3, dtype=float) / RHO0_KG_M3)
-    ln_frac = m * ln_sigma
-    if tropopause_density_kg_m3 is not None and lapse_exponent_above_tropopause is not None:
-        # ln F/F0 = m ln sigma below the tropopause density, plus (m2 - m) ln(rho/rho_11) above:
-        # one logarithm and one exponential per point (powers cost twice that).
-        m2 = np.asarray(lapse_exponent_above_tropopause, dtype=float)
-        ln_sigma11 = np.log(np.asarray(tropopause_density_kg_m3, dtype=float) / RHO0_KG_M3)
-        with np.errstate(invalid="ignore"):
-            ln_frac += (m2 - m) * np.minimum(ln_sigma - ln_sigma11, 0.0)
+    if tropopause_density_kg_m3 is None or lapse_exponent_above_tropopause is None:
+        return np.exp(np.asarray(lapse_exponent, dtype=float) * ln_sigma)
+    m = np.asarray(lapse_exponent, dtype=float)
+    return density_lapse_from_logs(ln_sigma, m, np.log(np.asarray(tropopause_density_kg_m3, dtype=float) / RHO0_KG_M3),
+                                   np.asarray(lapse_exponent_above_tropopause, dtype=float) - m)
+
+
+def density_lapse_from_logs(ln_sigma, lapse_exponent, ln_sigma_tropopause, exponent_change):
+    """:func:`density_lapse_fraction` from ln(rho/rho0), ln(rho_11/rho0) and m2 - m (same source).
+
+    ln F/F0 = m ln sigma, plus (m2 - m) ln(rho/rho_11) above the tropopause density: one
+    exponential per point (two powers cost twice as much).
+    """
+    with np.errstate(invalid="ignore"):
+        ln_frac = lapse_exponent * ln_sigma + exponent_change * np.minimum(ln_sigma - ln_sigma_tropopause, 0.0)
     return np.exp(ln_frac)
 
 
