@@ -288,3 +288,18 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet):
     assert ok.sum() > 100
     assert np.all(found[ok] >= brute[ok] - 0.3 * FT)
     assert np.all(found[ok] <= brute[ok] + 5.0 * FT)  # no speed flies higher than the scan allows (a few ft between points)
+
+
+def test_answers_do_not_depend_on_chunks_or_processes():
+    # Self-consistency, no external source: the same cases give the same answers, bit for bit,
+    # however many processes share the job, and within rounding whatever other cases share a
+    # chunk (best speed, whose searches go above 20 km, where the atmosphere takes its general
+    # path).
+    from variantcmp import bench, solver
+
+    cases = bench.synthetic_cases(bench.synthetic_fleet(), 700, mach="best")
+    whole = solver.solve_ceilings(cases, chunk=700, processes=1)
+    serial, shared = (solver.solve_ceilings(cases, chunk=240, processes=p) for p in (1, 2))  # three chunks asked
+    for name in solver.Ceilings.__dataclass_fields__:
+        assert np.array_equal(getattr(serial, name), getattr(shared, name), equal_nan=True), name
+        np.testing.assert_allclose(getattr(whole, name), getattr(serial, name), rtol=0, atol=1e-6, err_msg=name)

@@ -38,6 +38,20 @@ def test_density_lapse_is_density_ratio_power():
     # Density-ratio lapse (Raymer sec. 10.3): at rho = rho0/2 with m = 1, half the thrust.
     assert thrust.density_lapse_fraction(RHO0_KG_M3 / 2, 1.0) == pytest.approx(0.5)
     assert thrust.density_lapse_fraction(RHO0_KG_M3 / 2, 0.7) == pytest.approx(0.5**0.7)
+    # No air, no thrust; an exponent of zero keeps the static thrust (0^0 = 1).
+    assert thrust.density_lapse_fraction(0.0, 1.0) == pytest.approx(0.0, abs=1e-300)
+    assert thrust.density_lapse_fraction(np.array([0.0, 0.3]), 0.0) == pytest.approx([1.0, 1.0])
+
+
+@pytest.mark.parametrize("rho", [1.1, 0.5, 0.3639, 0.2, 0.05, 0.0])
+@pytest.mark.parametrize("m, m2", [(0.8, 1.2), (1.0, 1.0), (0.75, 0.0)])
+def test_density_lapse_above_the_tropopause_in_plain_powers(rho, m, m2):
+    # Two-exponent density lapse (Raymer sec. 10.3; Torenbeek app. H), written out with plain
+    # powers: F/F0 = sigma^m below the tropopause density rho_11, sigma_11^m (rho/rho_11)^m2 above.
+    rho11 = 0.3639  # ISA at 11 km, ISO 2533 (0.36392 kg/m3)
+    sigma, sigma11 = rho / RHO0_KG_M3, rho11 / RHO0_KG_M3
+    expected = sigma**m if rho >= rho11 else sigma11**m * (rho / rho11) ** m2
+    assert thrust.density_lapse_fraction(rho, m, rho11, m2) == pytest.approx(expected, rel=1e-12, abs=1e-300)
 
 
 def test_flat_rating():
@@ -202,3 +216,12 @@ def test_buffet_peak_mach_against_scipy(tmp_path_factory, cls, m0, step, lo_frac
     m = buffet_peak_mach(cases, np.array([lo]), np.array([hi]))[0]
     assert lo - 1e-12 <= m <= hi + 1e-12
     assert capacity(m) == pytest.approx(ref, rel=1e-9, abs=1e-12)
+
+
+def test_isa_state_below_20km_ignores_the_rest_of_the_array():
+    # Self-consistency, no external source: the solvers' answers must not depend on which other
+    # points share an array, so the fast path below 20 km and the general path give the same bits.
+    h = np.linspace(-5_000.0, 19_999.0, 2_001)
+    alone, mixed = isa_state(h), isa_state(np.append(h, [25_000.0, 60_000.0]))
+    for a, b in zip(alone, mixed):
+        assert np.array_equal(a, b[:-2])

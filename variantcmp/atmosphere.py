@@ -32,7 +32,6 @@ LAYER_LAPSE_K_PER_M = np.array([-0.0065, 0.0, 0.001, 0.0028, 0.0, -0.0028, -0.00
 #: searched from; the table is defined (layer 0 extended) down to -5,000 m as in ISO 2533.
 MODEL_BOTTOM_M = -5_000.0
 MODEL_TOP_M = 84_852.0
-TROPOPAUSE_M = 11_000.0
 
 
 def _layer_bases() -> tuple[np.ndarray, np.ndarray]:
@@ -113,16 +112,25 @@ def isa_state(altitude_m):
     """
     h = np.asarray(altitude_m, dtype=float)
     if h.size and h.max() < LAYER_BASE_M[2]:
-        # Troposphere and the isothermal layer above (where the solvers spend nearly all their
-        # time), without the layer search and gathers: ln p = A + B ln T up to the tropopause
-        # (at its temperature above), then falling linearly with height in the isothermal layer.
+        # Troposphere and the isothermal layer above, where the solvers spend nearly all their
+        # time: no layer search and gathers.
         t = np.maximum(T0_K + LAYER_LAPSE_K_PER_M[0] * h, LAYER_BASE_T_K[1])
-        ln_p = _LNP_A[0] + _LNP_B[0] * np.log(t) + _LNP_C[1] * np.maximum(h - LAYER_BASE_M[1], 0.0)
-        return t, np.exp(ln_p), np.where(h < LAYER_BASE_M[1], LAYER_LAPSE_K_PER_M[0], LAYER_LAPSE_K_PER_M[1])
+        return t, np.exp(_low_ln_p(h, t)), np.where(h < LAYER_BASE_M[1], LAYER_LAPSE_K_PER_M[0], LAYER_LAPSE_K_PER_M[1])
     i = _layer_index(h)
     lapse = LAYER_LAPSE_K_PER_M[i]
     t = LAYER_BASE_T_K[i] + lapse * (h - LAYER_BASE_M[i])
-    return t, np.exp(_LNP_A[i] + _LNP_B[i] * np.log(t) + _LNP_C[i] * h), lapse
+    ln_p = _LNP_A[i] + _LNP_B[i] * np.log(t) + _LNP_C[i] * h
+    # Below 20 km the same bits as the branch above, whatever else the array holds (a solver's
+    # answer must not depend on which other cases share its chunk).
+    ln_p = np.where(h < LAYER_BASE_M[2], _low_ln_p(h, t), ln_p)
+    return t, np.exp(ln_p), lapse
+
+
+def _low_ln_p(altitude_m, temperature_k):
+    """ln p below 20 km: ln p = A + B ln T up to the tropopause (at its temperature above it),
+    then falling linearly with height in the isothermal layer (ISO 2533, as above)."""
+    return (_LNP_A[0] + _LNP_B[0] * np.log(temperature_k)
+            + _LNP_C[1] * np.maximum(altitude_m - LAYER_BASE_M[1], 0.0))
 
 
 def pressure_altitude_m(pressure_pa):

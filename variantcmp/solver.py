@@ -65,6 +65,7 @@ PLATEAU_ITERATIONS = 24  # golden section in Mach just above a layer base: range
 CHUNK = 16_384
 BEST_CHUNK = 25_000  # best speed makes many calls on small sets: larger chunks share their overhead
 PARALLEL_MIN_CASES = 200_000
+MAX_WORKERS = 2  # processes for large jobs (one per core of the machines this is built for)
 BEST_SPEED_WORK = 15
 
 
@@ -437,18 +438,18 @@ def _brent_max(func, grid, values, max_iter, tol):
             u = xl + step
             parabola = (np.isfinite(step) & (np.abs(step) < 0.5 * np.abs(el))
                         & (u - al >= 2.0 * tol) & (bl - u >= 2.0 * tol))
-            # The parabola's own value at the new point: a start for the root inside func.
-            pred = (fxl * (u - wl) * (u - vl) / ((xl - wl) * (xl - vl))
-                    + fwl * (u - xl) * (u - vl) / ((wl - xl) * (wl - vl))
-                    + fvl * (u - xl) * (u - wl) / ((vl - xl) * (vl - wl)))
         golden_e = np.where(xl >= mid, al - xl, bl - xl)
         e[live] = np.where(parabola, dl, golden_e)
         dl = np.where(parabola, step, (1.0 - GOLDEN) * golden_e)
         dl = np.where(np.abs(dl) >= tol, dl, np.where(dl >= 0.0, tol, -tol))
         d[live] = dl
         u = xl + dl
-        # The root's start: the parabola's value, off by up to its distance from the value at
-        # the nearest known point.
+        # The root's start: the parabola's value at the new point (a vertex or a golden-section
+        # point), off by up to its distance from the value at the nearest known point.
+        with np.errstate(invalid="ignore", divide="ignore"):
+            pred = (fxl * (u - wl) * (u - vl) / ((xl - wl) * (xl - vl))
+                    + fwl * (u - xl) * (u - vl) / ((wl - xl) * (wl - vl))
+                    + fvl * (u - xl) * (u - wl) / ((vl - xl) * (vl - wl)))
         near_w, near_v = np.abs(u - wl) < np.abs(u - xl), np.abs(u - vl) < np.abs(u - xl)
         nearest = np.where(near_w & (np.abs(u - wl) <= np.abs(u - vl)), fwl, np.where(near_v, fvl, fxl))
         with np.errstate(invalid="ignore"):
@@ -493,6 +494,46 @@ def _above_layer_base(phys: ClimbPhysics, m_best, h_best):
         h_up = thrust_ceiling_m(sub.subset(up), m_star[up], h_on[up] + WARM_HALF_WIDTH_M, WARM_HALF_WIDTH_M, SEARCH_TOL_M)[0]
         better = np.flatnonzero(_objective(h_up) > h_best[on[up]])
         m_best[on[up[better]]], h_best[on[up[better]]] = m_star[up[better]], h_up[better]
+
+
+def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h_best):
+    """Table engines: the search again on the far side of the table Mach nearest the best found.
+
+    A thrust table interpolates linearly in Mach, so the thrust ceiling has a kink at each table
+    Mach and may peak on both sides of one; the search settles on one side. Where a table Mach
+    lies inside the search's first bracket, the other side gets its own search (in place).
+    """
+    cs = phys.cases
+    n, g = grid.shape
+    rows = np.arange(n)
+    i = np.argmax(values, axis=1)
+    lo, hi = grid[rows, np.maximum(i - 1, 0)], grid[rows, np.minimum(i + 1, g - 1)]
+    node = np.full(n, np.nan)
+    for code, tid, group in phys.groups:
+        if code == MODEL_CODES["table"]:
+            machs = cs.tables[tid].mach
+            x = m_best[group]
+            near = machs[np.argmin(np.abs(x[:, None] - machs[None, :]), axis=1)]
+            node[group] = near
+    with np.errstate(invalid="ignore"):
+        inside = (node > lo + BEST_MACH_TOL) & (node < hi - BEST_MACH_TOL) & np.isfinite(h_best)
+        inside &= np.abs(m_best - node) > BEST_MACH_TOL
+    who = np.flatnonzero(inside)
+    if who.size == 0:
+        return
+    below = m_best[who] < node[who]  # the best so far lies below the node: search above it
+    a = np.where(below, node[who], lo[who])
+    b = np.where(below, hi[who], node[who])
+    side = a[:, None] + (b - a)[:, None] * np.array([0.0, 0.5, 1.0])[None, :]
+    nan = np.full(who.size, np.nan)
+    side_values = np.stack([thrust_at(who, side[:, k], nan, nan) for k in range(3)], axis=1)
+
+    def on_side(idx, m, near, spread):
+        return thrust_at(who[idx], m, near, spread)
+
+    m_side, h_side = _brent_max(on_side, side, side_values, BEST_MACH_SEARCH_ITERATIONS, BEST_MACH_TOL)
+    better = np.flatnonzero(h_side > h_best[who])
+    m_best[who[better]], h_best[who[better]] = m_side[better], h_side[better]
 
 
 def _interpolated_guess(cases: CaseSet, grid_values):
@@ -834,7 +875,6 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     """
     cs = phys.cases
     n, g = len(cs), BEST_MACH_GRID
-    rows = np.arange(n)
     grid = cs.mach_low[:, None] + (cs.mach_high - cs.mach_low)[:, None] * np.linspace(0.0, 1.0, g)[None, :]
     # Fastest speed first (where the quick bracket works best); each next root is started from
     # the line through the previous two, in a window as wide as their step.
@@ -909,7 +949,9 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     m_thrust, searched = _brent_max(thrust_at, grid, _objective(thrust_grid), BEST_MACH_SEARCH_ITERATIONS,
                                      BEST_MACH_TOL)
     _above_layer_base(phys, m_thrust, searched)
-    # The refinement's root at its best speed, to SEARCH_TOL_M: a window just that wide settles it.
+    _past_table_mach_node(phys, thrust_at, grid, _objective(thrust_grid), m_thrust, searched)
+    # The search's root at its best speed is within SEARCH_TOL_M: a window that wide settles it
+    # to ROOT_TOL_M.
     known = np.isfinite(searched)
     final = _fixed_mach(phys, m_thrust, np.where(known, searched, guess_all(m_thrust)),
                         guess_half_width_m=np.where(known, 4.0 * SEARCH_TOL_M, WARM_HALF_WIDTH_M))
@@ -1003,7 +1045,7 @@ def solve_ceilings(cases: CaseSet, chunk: int | None = None, processes: int | No
     ``chunk`` cases (``CHUNK``; ``BEST_CHUNK`` when every case is best speed), so memory stays
     bounded. Large jobs (``PARALLEL_MIN_CASES`` fixed-Mach solves or more, a best-speed case
     counting ``BEST_SPEED_WORK``) are shared between processes, one per core, in chunks of equal
-    size and a number of them that is a multiple of the processes': numpy threads gained nothing
+    size and a number of them that is a multiple of ``MAX_WORKERS``: numpy threads gained nothing
     here (measured), processes do.
     """
     n = len(cases)
@@ -1015,10 +1057,12 @@ def solve_ceilings(cases: CaseSet, chunk: int | None = None, processes: int | No
     if processes is None:
         # A best-speed case is some fifteen fixed-Mach solves: weigh the work, not the count.
         work = n + (BEST_SPEED_WORK - 1) * n_best
-        processes = min(2, os.cpu_count() or 1) if work >= PARALLEL_MIN_CASES else 1
+        processes = min(MAX_WORKERS, os.cpu_count() or 1) if work >= PARALLEL_MIN_CASES else 1
+    # Chunk bounds from n and chunk alone (a case's answer never depends on the process count),
+    # their number a multiple of the most workers used, so that workers get equal shares.
     count = -(-n // max(1, chunk))
+    count = -(-count // MAX_WORKERS) * MAX_WORKERS if count > 1 else 1
     processes = max(1, min(processes, count))
-    count = -(-count // processes) * processes
     size = -(-n // count)
     bounds = [(start, min(start + size, n)) for start in range(0, n, size)]
     if processes > 1 and sys.platform.startswith("linux"):

@@ -10,6 +10,8 @@ import numpy as np
 
 from .atmosphere import GAMMA, P0_PA, RHO0_KG_M3, T0_K
 
+LN_TINY = -745.0  # about ln of the smallest positive float
+
 
 def density_lapse_fraction(density_kg_m3, lapse_exponent=1.0, tropopause_density_kg_m3=None,
                            lapse_exponent_above_tropopause=None):
@@ -23,7 +25,7 @@ def density_lapse_fraction(density_kg_m3, lapse_exponent=1.0, tropopause_density
     with np.errstate(divide="ignore"):
         ln_sigma = np.log(np.asarray(density_kg_m3, dtype=float) / RHO0_KG_M3)
     if tropopause_density_kg_m3 is None or lapse_exponent_above_tropopause is None:
-        return np.exp(np.asarray(lapse_exponent, dtype=float) * ln_sigma)
+        return np.exp(np.asarray(lapse_exponent, dtype=float) * np.maximum(ln_sigma, LN_TINY))
     m = np.asarray(lapse_exponent, dtype=float)
     return density_lapse_from_logs(ln_sigma, m, np.log(np.asarray(tropopause_density_kg_m3, dtype=float) / RHO0_KG_M3),
                                    np.asarray(lapse_exponent_above_tropopause, dtype=float) - m)
@@ -35,8 +37,9 @@ def density_lapse_from_logs(ln_sigma, lapse_exponent, ln_sigma_tropopause, expon
     ln F/F0 = m ln sigma, plus (m2 - m) ln(rho/rho_11) above the tropopause density: one
     exponential per point (two powers cost twice as much).
     """
-    with np.errstate(invalid="ignore"):
-        ln_frac = lapse_exponent * ln_sigma + exponent_change * np.minimum(ln_sigma - ln_sigma_tropopause, 0.0)
+    # Zero density (ln = -inf) as the smallest positive one: 0 * -inf would give NaN where 0^0 = 1.
+    ln_sigma = np.maximum(ln_sigma, LN_TINY)
+    ln_frac = lapse_exponent * ln_sigma + exponent_change * np.minimum(ln_sigma - ln_sigma_tropopause, 0.0)
     return np.exp(ln_frac)
 
 
