@@ -303,3 +303,16 @@ def test_answers_do_not_depend_on_chunks_or_processes():
     for name in solver.Ceilings.__dataclass_fields__:
         assert np.array_equal(getattr(serial, name), getattr(shared, name), equal_nan=True), name
         np.testing.assert_allclose(getattr(whole, name), getattr(serial, name), rtol=0, atol=1e-6, err_msg=name)
+
+
+def test_buffet_data_only_above_mmo_is_flagged_at_best_speed(tmp_path):
+    # The catalogue's contract (the best speed stays below MMO; a limit without data is shown as
+    # such, not as a number), no external source: buffet data that start above MMO leave buffet
+    # unchecked at every allowed speed, and the best speed says so, as a fixed Mach does.
+    cat = write_catalogue(tmp_path / "c.toml", [_engine()], [_variant(mmo=0.55, cruise_mach=0.5, buffet_mach=[0.6, 0.7, 0.8],
+                                                                       buffet_cl=[1.0, 0.9, 0.7])])
+    best = ceilings_table(cat, Conditions(mach="best")).row(0, named=True)
+    assert best["buffet_ceiling_ft"] is None and "buffet not checked" in best["note"]
+    assert best["mach"] <= 0.55 + 1e-9
+    fixed = ceilings_table(cat, Conditions(mach=best["mach"])).row(0, named=True)
+    assert fixed["max_altitude_ft"] == pytest.approx(best["max_altitude_ft"], abs=0.1)

@@ -151,6 +151,12 @@ def _nan(value) -> float:
     return np.nan if value is None else float(value)
 
 
+def _narrowed(low, high, data_low, data_high):
+    """A speed range cut to where some data reach, or left as it is where they miss it."""
+    cut_low, cut_high = max(low, data_low), min(high, data_high)
+    return (cut_low, cut_high) if cut_low <= cut_high else (low, high)
+
+
 def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm, mach, g_margin):
     """Cross variant x engine pairs with weights, deviations and climb criteria.
 
@@ -189,12 +195,15 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
         else:
             m = float(mach)
         floor_m, top_m, m_low, m_high = FLOOR_M, np.inf, BEST_MACH_LOW, (v.mmo or BEST_MACH_HIGH_DEFAULT)
+        # The best-speed search stays where the thrust table and the buffet data reach, unless
+        # that leaves no speed below MMO: it then searches the speeds it has, and what lacks data
+        # there is flagged as for a fixed Mach.
         if e.model == "table":
             floor_m = max(FLOOR_M, e.table_altitude_ft[0] * FT)
             top_m = e.table_altitude_ft[-1] * FT
-            m_low, m_high = max(m_low, e.table_mach[0]), min(m_high, e.table_mach[-1])
+            m_low, m_high = _narrowed(m_low, m_high, e.table_mach[0], e.table_mach[-1])
         if v.id in buffet_ids:
-            m_low, m_high = max(m_low, v.buffet_mach[0]), min(m_high, v.buffet_mach[-1])
+            m_low, m_high = _narrowed(m_low, m_high, v.buffet_mach[0], v.buffet_mach[-1])
         cabin_m = np.inf
         if v.max_cabin_dp_kpa is not None:
             lowest_pa = float(isa_pressure_pa((v.cabin_altitude_ft or 8000.0) * FT)) - v.max_cabin_dp_kpa * 1000.0

@@ -740,7 +740,7 @@ def buffet_peak_mach(cases: CaseSet, low, high):
 
     Closed form: on each segment of the (piecewise linear) boundary CL_b = c + s M, and
     d/dM [M^2 (c + s M)] = 0 at M = -2c / (3s); the peak is there, at a node or at an end of the
-    range. NaN where the case has no buffet data.
+    range. NaN where the case has no buffet data, or none in its range.
     """
     out = np.full(len(cases), np.nan)
     bid = cases.buffet_id
@@ -756,7 +756,8 @@ def buffet_peak_mach(cases: CaseSet, low, high):
         hi = np.minimum(np.broadcast_to(high, (len(cases),))[rows], m[-1])[:, None]
         candidates = np.hstack([np.clip(np.concatenate([m, turn])[None, :], lo, hi), lo, hi])
         capacity = candidates * candidates * np.interp(candidates, m, cl)
-        out[rows] = candidates[np.arange(rows.size), np.argmax(capacity, axis=1)]
+        peak = candidates[np.arange(rows.size), np.argmax(capacity, axis=1)]
+        out[rows] = np.where(lo[:, 0] <= hi[:, 0], peak, np.nan)  # no buffet data in the range: NaN
     return out
 
 

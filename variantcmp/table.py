@@ -88,8 +88,9 @@ def _notes(cases, res, climb_fpm) -> list[str]:
             parts.append(f"M{cases.mach[i]:.3f} outside the thrust table" if not best[i] else "no speed in the thrust table")
         if f & s.THRUST_DATA_TOP:
             parts.append(f"still climbing at the thrust table top ({cases.top_m[i] / FT:,.0f} ft)")
-        if f & s.NO_BUFFET_AT_MACH and not best[i]:
-            parts.append(f"no buffet data at M{cases.mach[i]:.3f}: buffet not checked")
+        if f & s.NO_BUFFET_AT_MACH:
+            parts.append(f"no buffet data at M{cases.mach[i]:.3f}: buffet not checked" if not best[i] else
+                         f"no buffet data in the speed range: buffet not checked (best M{res.mach[i]:.3f})")
         if f & s.ABOVE_MMO:
             parts.append(f"M{cases.mach[i]:.3f} above MMO {cases.mmo[i]:.3f}")
         if f & s.BELOW_VMO_FLOOR:
