@@ -137,7 +137,7 @@ def test_ceiling_above_model_top_is_flagged(tmp_path):
     res = solver.solve_ceilings(cases)
     assert np.isposinf(res.max_altitude_m[0]) and res.limit[0] == -1
     assert res.flags[0] & solver.ABOVE_MODEL_TOP
-    assert "model top" in _notes(cases, res, index.climb_fpm)[0]
+    assert "model top" in _notes(cases, res, index.climb_fpm, np.full(1, 500.0))[0]
 
 
 def test_thrust_table_top_is_not_extrapolated(tmp_path):
@@ -316,3 +316,12 @@ def test_buffet_data_only_above_mmo_is_flagged_at_best_speed(tmp_path):
     assert best["mach"] <= 0.55 + 1e-9
     fixed = ceilings_table(cat, Conditions(mach=best["mach"])).row(0, named=True)
     assert fixed["max_altitude_ft"] == pytest.approx(best["max_altitude_ft"], abs=0.1)
+
+
+def test_a_weight_below_any_empty_weight_is_questioned(demo):
+    # Fact of the trade (from memory): a jet transport's operating empty weight is about 45-60 %
+    # of its MTOW, so a weight under 30 % of MTOW is a unit slip (15 typed for 15 t gives 15 kg).
+    rows = ceilings_table(demo, Conditions(weights=(WeightSpec(15.0, "kg"), WeightSpec(60.0, "%mtow"))))
+    light = rows.filter(pl.col("weight_kg") == 15.0)
+    assert light.height > 0 and light["note"].str.contains("check the weight's unit").all()
+    assert not rows.filter(pl.col("weight_kg") > 15.0)["note"].str.contains("check the weight").any()

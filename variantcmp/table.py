@@ -73,7 +73,11 @@ def _ft(values_m) -> np.ndarray:
     return np.where(np.isfinite(out), out, np.nan)
 
 
-def _notes(cases, res, climb_fpm) -> list[str]:
+# Below this share of MTOW no transport aircraft flies (its empty weight is more): likely a unit slip.
+LIGHT_FRACTION = 0.3
+
+
+def _notes(cases, res, climb_fpm, mtow_kg) -> list[str]:
     notes = []
     best = np.isnan(cases.mach)
     for i in range(len(cases)):  # text only, per row: the numbers are all computed above
@@ -106,6 +110,9 @@ def _notes(cases, res, climb_fpm) -> list[str]:
             parts.append(f"{s.LIMITS[res.limit[i]]} and {s.LIMITS[res.co_limit[i]]} bind together")
         if cases.over_mtow[i]:
             parts.append("above MTOW")
+        elif cases.weight_kg[i] < LIGHT_FRACTION * mtow_kg[i]:
+            parts.append(f"only {100.0 * cases.weight_kg[i] / mtow_kg[i]:.0f} % of MTOW: check the weight's unit "
+                         "(a bare number is kg)")
         notes.append("; ".join(parts))
     return notes
 
@@ -134,7 +141,8 @@ def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
         "max_altitude_ft": max_ft,
         "flight_level": np.where(has_alt, np.floor(np.where(has_alt, max_ft, 0.0) / 100.0), np.nan),
         "limit": pl.Series(limit.tolist(), dtype=pl.String),
-        "note": _notes(cases, res, climb_fpm),
+        "note": _notes(cases, res, climb_fpm,
+                       np.array([catalogue.variants[v].mtow_kg for v in index.variant_ids])[cases.variant_index]),
         "over_mtow": cases.over_mtow,
     }, nan_to_null=True).with_columns(pl.col("flight_level").cast(pl.Int64))
     if conditions.target_fl_ft is not None:
