@@ -325,3 +325,29 @@ def test_a_weight_below_any_empty_weight_is_questioned(demo):
     light = rows.filter(pl.col("weight_kg") == 15.0)
     assert light.height > 0 and light["note"].str.contains("check the weight's unit").all()
     assert not rows.filter(pl.col("weight_kg") > 15.0)["note"].str.contains("check the weight").any()
+
+
+def test_a_narrow_band_of_climbing_speeds_is_found(tmp_path):
+    # Definition of "cannot climb at any speed", checked by brute force, no external source: a
+    # jet airframe without MMO or buffet data on a small engine, at MTOW on an ISA+25 day, climbs
+    # 300 ft/min only in a narrow band of low speeds near the floor, between the search's grid
+    # speeds. The best speed must find it, as a dense scan of fixed-Mach solves does.
+    import dataclasses
+    import tomllib
+
+    from variantcmp import solver
+    from variantcmp.catalogue import bundled_fleet_dir
+    from variantcmp.cases import build_cases
+
+    regional = tomllib.loads((bundled_fleet_dir() / "fernholt-regional.toml").read_text())
+    survey = tomllib.loads((bundled_fleet_dir() / "tallon-fells-survey.toml").read_text())
+    engine = next(e for e in survey["engine"] if e["id"] == "wren-20")
+    airframe = {k: v for k, v in regional["variant"][0].items() if k not in ("buffet_mach", "buffet_cl", "mmo", "vmo_kt")}
+    cat = write_catalogue(tmp_path / "c.toml", [engine], [{**airframe, "engine_options": ["wren-20"]}])
+    cases, _ = build_cases(cat, [(airframe["id"], "wren-20")], lambda v: [v.mtow_kg], [25.0], [300.0], "best", 1.3)
+    best = solver.solve_ceilings(cases, processes=1)
+    mach = np.linspace(cases.mach_low[0], cases.mach_high[0], 4001)
+    scan = solver.solve_ceilings(dataclasses.replace(cases.take(np.zeros(mach.size, dtype=int)), mach=mach),
+                                 processes=1).max_altitude_m
+    assert np.isfinite(scan).sum() < 0.1 * mach.size  # a narrow band indeed
+    assert best.max_altitude_m[0] == pytest.approx(np.nanmax(scan), abs=0.3 * FT)

@@ -536,6 +536,32 @@ def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h
     m_best[who[better]], h_best[who[better]] = m_side[better], h_side[better]
 
 
+def _between_grid_speeds(phys: ClimbPhysics, grid_flags, final: Ceilings, m_best):
+    """Cases that cannot climb at any grid speed: the speed that climbs best at the floor (in place).
+
+    A narrow band of speeds may climb between two grid speeds (low, heavy, hot): before such a
+    case is called unable to climb, the excess climb rate at its floor is maximised over its
+    speed range, and where that climbs the case is solved at that speed.
+    """
+    cs = phys.cases
+    stuck = np.flatnonzero(np.isnan(final.max_altitude_m)
+                           & (np.bitwise_and.reduce(grid_flags, axis=1) & CANNOT_CLIMB).astype(bool))
+    if stuck.size == 0:
+        return
+    sub = phys.subset(stuck)
+    floor = cs.floor_m[stuck]
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        m_star, e_star = _golden_max(lambda idx, m: _objective(sub.excess(floor, m)), cs.mach_low[stuck],
+                                     cs.mach_high[stuck], PLATEAU_ITERATIONS)
+    climbs = np.flatnonzero(e_star >= 0.0)
+    if climbs.size == 0:
+        return
+    found = _fixed_mach(sub.subset(climbs), m_star[climbs])
+    ok = np.flatnonzero(np.isfinite(found.max_altitude_m))
+    final.put(stuck[climbs[ok]], found.take(ok))
+    m_best[stuck[climbs[ok]]] = m_star[climbs[ok]]
+
+
 def _interpolated_guess(cases: CaseSet, grid_values):
     """Thrust ceiling between grid speeds, interpolated from the grid: a start for the root."""
     n, g = grid_values.shape
@@ -987,6 +1013,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                 m_best[todo[sel]] = m[sel]
                 final.put(todo[sel], res.take(sel))
 
+    _between_grid_speeds(phys, at_grid["flags"], final, m_best)
     thrust_best = np.maximum(thrust_best, _objective(final.thrust_m))
 
     buffet_best = np.maximum.reduce([_objective(buffet_ceiling_m(cs, buffet_peak_mach(cs, cs.mach_low, cs.mach_high))),
