@@ -61,7 +61,7 @@ SEARCH_MIN_HALF_WIDTH_M = 10.0  # narrowest window for a best-speed search root 
 NEWTON_MAX_STEP_M = 0.3  # a Newton step this short ends the root (slope off by 5 %: 1.5 cm)
 SLOPE_STEP_M = 1.0  # finite-difference step for the excess climb rate's slope
 LAYER_GUARD_M = 50.0  # no Newton steps this close to a layer base
-PLATEAU_ITERATIONS = 24  # golden section in Mach just above a layer base: range x 0.618^24, about 1e-5
+CLIMB_MACH_ITERATIONS = 24  # golden section in Mach at a fixed altitude: range x 0.618^24, about 1e-5
 CHUNK = 16_384
 BEST_CHUNK = 25_000  # best speed makes many calls on small sets: larger chunks share their overhead
 PARALLEL_MIN_CASES = 200_000
@@ -471,6 +471,15 @@ def _brent_max(func, grid, values, max_iter, tol):
     return x, fx
 
 
+def _best_climbing_mach(phys: ClimbPhysics, altitude_m):
+    """Speed in each case's range with the largest excess climb rate at a fixed altitude, and
+    that excess (golden section: smooth in Mach at a fixed altitude)."""
+    cs = phys.cases
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        return _golden_max(lambda idx, m: _objective(phys.excess(altitude_m, m)), cs.mach_low, cs.mach_high,
+                           CLIMB_MACH_ITERATIONS)
+
+
 def _above_layer_base(phys: ClimbPhysics, m_best, h_best):
     """Where the best thrust ceiling found sits on a layer base, look just above it (in place).
 
@@ -486,9 +495,7 @@ def _above_layer_base(phys: ClimbPhysics, m_best, h_best):
     if on.size == 0:
         return
     sub, h_on = phys.subset(on), base[on]
-    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        m_star, e_star = _golden_max(lambda idx, m: _objective(sub.excess(h_on, m)), cs.mach_low[on], cs.mach_high[on],
-                                     PLATEAU_ITERATIONS)
+    m_star, e_star = _best_climbing_mach(sub, h_on)
     up = np.flatnonzero(e_star > 0.0)
     if up.size:
         h_up = thrust_ceiling_m(sub.subset(up), m_star[up], h_on[up] + WARM_HALF_WIDTH_M, WARM_HALF_WIDTH_M, SEARCH_TOL_M)[0]
@@ -549,10 +556,7 @@ def _between_grid_speeds(phys: ClimbPhysics, grid_flags, final: Ceilings, m_best
     if stuck.size == 0:
         return
     sub = phys.subset(stuck)
-    floor = cs.floor_m[stuck]
-    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        m_star, e_star = _golden_max(lambda idx, m: _objective(sub.excess(floor, m)), cs.mach_low[stuck],
-                                     cs.mach_high[stuck], PLATEAU_ITERATIONS)
+    m_star, e_star = _best_climbing_mach(sub, cs.floor_m[stuck])
     climbs = np.flatnonzero(e_star >= 0.0)
     if climbs.size == 0:
         return

@@ -24,9 +24,9 @@ def density_lapse_fraction(density_kg_m3, lapse_exponent=1.0, tropopause_density
     """
     with np.errstate(divide="ignore"):
         ln_sigma = np.log(np.asarray(density_kg_m3, dtype=float) / RHO0_KG_M3)
-    if tropopause_density_kg_m3 is None or lapse_exponent_above_tropopause is None:
-        return np.exp(np.asarray(lapse_exponent, dtype=float) * np.maximum(ln_sigma, LN_TINY))
     m = np.asarray(lapse_exponent, dtype=float)
+    if tropopause_density_kg_m3 is None or lapse_exponent_above_tropopause is None:
+        return density_lapse_from_logs(ln_sigma, m, 0.0, 0.0)
     return density_lapse_from_logs(ln_sigma, m, np.log(np.asarray(tropopause_density_kg_m3, dtype=float) / RHO0_KG_M3),
                                    np.asarray(lapse_exponent_above_tropopause, dtype=float) - m)
 
