@@ -351,3 +351,43 @@ def test_a_narrow_band_of_climbing_speeds_is_found(tmp_path):
                                  processes=1).max_altitude_m
     assert np.isfinite(scan).sum() < 0.1 * mach.size  # a narrow band indeed
     assert best.max_altitude_m[0] == pytest.approx(np.nanmax(scan), abs=0.3 * FT)
+
+
+def test_joint_best_speed_search_matches_a_reference_optimiser(monkeypatch):
+    # Reference library: scipy.optimize.minimize_scalar (bounded Brent) maximising each case's
+    # fixed-Mach thrust ceiling over its speed range. The joint altitude-and-Mach search must
+    # settle most cases itself (the test would not exercise it otherwise) and be no lower than
+    # the reference anywhere, nor more than a few ft higher (the reference's own tolerance).
+    from scipy.optimize import minimize_scalar
+
+    from variantcmp import bench, solver
+
+    settled = []
+    joint = solver._joint_best
+
+    def spy(*args):
+        out = joint(*args)
+        settled.append((np.isfinite(out[1]).sum(), out[1].size))
+        return out
+
+    monkeypatch.setattr(solver, "_joint_best", spy)
+    cases = bench.synthetic_cases(bench.synthetic_fleet(), 3000, mach="best").take(slice(0, 3000, 50))
+    best = solver.solve_ceilings(cases, processes=1)
+    first_settled, first_n = settled[0]
+    assert first_settled >= 0.8 * first_n
+    phys = solver.ClimbPhysics(cases)
+    checked = 0
+    for i in range(len(cases)):
+        one = phys.subset(np.array([i]))
+
+        def minus_ceiling(m):
+            h = solver.thrust_ceiling_m(one, np.array([m]))[0][0]
+            return -h if np.isfinite(h) else 1e9
+
+        ref = minimize_scalar(minus_ceiling, bounds=(cases.mach_low[i], cases.mach_high[i]), method="bounded",
+                              options={"xatol": 1e-5})
+        if ref.fun < 1e9 and np.isfinite(best.thrust_m[i]):
+            checked += 1
+            assert best.thrust_m[i] >= -ref.fun - 0.3 * FT, i
+            assert best.thrust_m[i] <= -ref.fun + 3.0 * FT, i
+    assert checked > 40

@@ -21,7 +21,7 @@ import numpy as np
 
 from .aero import energy_share_factor, korn_coefficients, lock_wave_drag
 from .airspeed import pressure_for_cas_at_mach_pa
-from .atmosphere import (G0, GAMMA, LAYER_BASE_M, MODEL_TOP_M, R_AIR, RHO0_KG_M3, isa_state, pressure_altitude_m,
+from .atmosphere import (G0, GAMMA, LAYER_BASE_M, MODEL_TOP_M, R_AIR, RHO0_KG_M3, T0_K, isa_state, pressure_altitude_m,
                          speed_of_sound_ms)
 from .cases import FLOOR_M, FT, MODEL_CODES, CaseSet, CaseView
 from .thrust import density_lapse_from_logs, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms
@@ -61,6 +61,14 @@ SEARCH_MIN_HALF_WIDTH_M = 10.0  # narrowest window for a best-speed search root 
 NEWTON_MAX_STEP_M = 0.3  # a Newton step this short ends the root (slope off by 5 %: 1.5 cm)
 SLOPE_STEP_M = 1.0  # finite-difference step for the excess climb rate's slope
 LAYER_GUARD_M = 50.0  # no Newton steps this close to a layer base
+RESCUE_ITERATIONS, RESCUE_TOL_M = 40, 0.5  # Brent's search for a narrow climbing window between scan levels
+JOINT_MACH_STEP = 2e-3  # the joint search's speeds either side of its current one
+JOINT_ITERATIONS = 5  # most settle in three or four; the few left go to Brent's search
+JOINT_MACH_TOL = 1e-4  # a speed this still is settled (the ceiling is flat at its best speed)
+JOINT_MAX_MACH_STEP = 0.05
+JOINT_MAX_STEP_M = 600.0
+JOINT_BASE_MARGIN_M = 1.0  # steps that come this close to a layer base leave the joint search
+PLATEAU_M = 1e-3  # a grid root this close to a layer base sits on it (roots there come out at the base +- 1e-6 m)
 CLIMB_MACH_ITERATIONS = 24  # golden section in Mach at a fixed altitude: range x 0.618^24, about 1e-5
 CHUNK = 16_384
 BEST_CHUNK = 25_000  # best speed makes many calls on small sets: larger chunks share their overhead
@@ -471,6 +479,97 @@ def _brent_max(func, grid, values, max_iter, tol):
     return x, fx
 
 
+def _layer_base_between(a_m, b_m, margin_m=JOINT_BASE_MARGIN_M):
+    """Whether the tropopause or the 20 km base lies between two altitudes (or within a margin)."""
+    low, high = np.minimum(a_m, b_m) - margin_m, np.maximum(a_m, b_m) + margin_m
+    with np.errstate(invalid="ignore"):
+        return ((low[:, None] <= LAYER_BASE_M[None, 1:3]) & (high[:, None] >= LAYER_BASE_M[None, 1:3])).any(axis=1)
+
+
+def _turbofan_switch_between(phys: ClimbPhysics, altitude_m, low, high):
+    """Turbofan cases whose lapse changes branch (theta0 = TR, see
+    :func:`variantcmp.thrust.turbofan_lapse_fraction`) between two speeds at an altitude: the
+    excess climb rate has a kink in Mach there."""
+    cs = phys.cases
+    t = isa_state(altitude_m)[0] + cs.isa_dev_c
+    ram = lambda m: 1.0 + 0.5 * (GAMMA - 1.0) * m * m  # noqa: E731  (theta0 / theta, same source)
+    with np.errstate(invalid="ignore"):
+        return (cs.model_code == MODEL_CODES["turbofan"]) & (
+            (t * ram(low) - T0_K * cs.throttle_ratio) * (t * ram(high) - T0_K * cs.throttle_ratio) <= 0.0)
+
+
+def _within_table_cell(phys: ClimbPhysics, mach, low, high):
+    """Table engines: [low, high] narrowed (in place) to the table Mach cell holding ``mach``."""
+    cs = phys.cases
+    for code, tid, group in phys.groups:
+        if code == MODEL_CODES["table"]:
+            nodes = cs.tables[tid].mach
+            j = np.clip(np.searchsorted(nodes, mach[group], side="right") - 1, 0, nodes.size - 2)
+            low[group] = np.maximum(low[group], nodes[j])
+            high[group] = np.minimum(high[group], nodes[j + 1])
+
+
+def _joint_best(phys: ClimbPhysics, mach, altitude_m, low, high, slope_per_s):
+    """Best speed of the thrust ceiling by Newton steps in altitude and Mach together, for the
+    cases whose excess climb rate is smooth in both; (Mach, ceiling), NaN where not settled.
+    The speeds stay within [low, high]: for table engines the caller keeps these inside one
+    table Mach cell (the thrust has a kink at each table Mach).
+
+    At the best speed the excess climb rate E is zero and flat in Mach. Each step takes E at
+    the altitude reached and three speeds a small step apart; the parabola through them gives
+    the speed that climbs best there and that best rate, whose slope in altitude is dE/dh at
+    that speed (the envelope theorem); a secant step in altitude on that best rate follows
+    (Newton's method for the optimum: Nocedal & Wright, *Numerical Optimization*, 2nd ed.,
+    ch. 3; central differences: ibid. ch. 8). A case is settled once both its speed and its
+    altitude stop moving. Cases whose steps reach a layer base (the climb rate jumps there) and
+    turbofans near their lapse branch change are left to the caller.
+    """
+    cs = phys.cases
+    n = len(cs)
+    m_out, h_out = np.full(n, np.nan), np.full(n, np.nan)
+    d = JOINT_MACH_STEP
+    with np.errstate(invalid="ignore"):
+        ok = (np.isfinite(altitude_m) & (slope_per_s < 0.0) & (high - low > 4.0 * d)
+              & ~_layer_base_between(altitude_m, altitude_m))
+    idx = np.flatnonzero(ok)
+    sub, m, h, slope = phys.subset(idx), mach[idx], altitude_m[idx], slope_per_s[idx]
+    lo, hi = low[idx], high[idx]
+    h_prev = e_prev = None
+    m_prev, measured = np.full(idx.size, np.nan), np.zeros(idx.size, dtype=bool)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        for _ in range(JOINT_ITERATIONS):
+            if idx.size == 0:
+                break
+            x = np.clip(m, lo + d, hi - d)
+            e_lo, e_mid, e_hi = (sub.excess(h, x + k * d) for k in (-1.0, 0.0, 1.0))
+            grad, curv = (e_hi - e_lo) / (2.0 * d), (e_hi - 2.0 * e_mid + e_lo) / (d * d)
+            # Uphill by the parabola's vertex where it is concave, else by the largest step.
+            step = np.where(curv < 0.0, np.clip(-grad / curv, -JOINT_MAX_MACH_STEP, JOINT_MAX_MACH_STEP),
+                            np.copysign(JOINT_MAX_MACH_STEP, grad))
+            m_new = np.clip(x + step, lo, hi)
+            u = m_new - x
+            e_best = e_mid + grad * u + 0.5 * curv * u * u
+            if h_prev is not None:
+                secant = (e_best - e_prev) / (h - h_prev)
+                fresh = (np.abs(h - h_prev) > 1e-3) & (secant < 0.0)
+                slope, measured = np.where(fresh, secant, slope), measured | fresh
+            h_new = h - np.clip(e_best / slope, -JOINT_MAX_STEP_M, JOINT_MAX_STEP_M)
+            # Settled only on a slope this search measured (one learnt elsewhere may be far off).
+            settled = (measured & (np.abs(m_new - m_prev) < JOINT_MACH_TOL) & (np.abs(h_new - h) < SEARCH_TOL_M)
+                       & (curv < 0.0))
+            fail = ~np.isfinite(h_new) | (~(curv < 0.0) & (np.abs(u) < d)) | _layer_base_between(h, h_new)
+            fail |= _turbofan_switch_between(sub, h_new, x - d, x + d)
+            done = np.flatnonzero(settled & ~fail)
+            m_out[idx[done]], h_out[idx[done]] = m_new[done], h_new[done]
+            keep = np.flatnonzero(~settled & ~fail)
+            if keep.size < idx.size:
+                idx, sub = idx[keep], sub.subset(keep)
+                m_new, h_new, h, e_best, slope, lo, hi, measured = (
+                    v[keep] for v in (m_new, h_new, h, e_best, slope, lo, hi, measured))
+            m_prev, h_prev, e_prev, m, h = m_new, h, e_best, m_new, h_new
+    return m_out, h_out
+
+
 def _best_climbing_mach(phys: ClimbPhysics, altitude_m):
     """Speed in each case's range with the largest excess climb rate at a fixed altitude, and
     that excess (golden section: smooth in Mach at a fixed altitude)."""
@@ -503,7 +602,7 @@ def _above_layer_base(phys: ClimbPhysics, m_best, h_best):
         m_best[on[up[better]]], h_best[on[up[better]]] = m_star[up[better]], h_up[better]
 
 
-def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h_best):
+def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h_best, guess, slope):
     """Table engines: the search again on the far side of the table Mach nearest the best found.
 
     A thrust table interpolates linearly in Mach, so the thrust ceiling has a kink at each table
@@ -531,14 +630,19 @@ def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h
     below = m_best[who] < node[who]  # the best so far lies below the node: search above it
     a = np.where(below, node[who], lo[who])
     b = np.where(below, hi[who], node[who])
-    side = a[:, None] + (b - a)[:, None] * np.array([0.0, 0.5, 1.0])[None, :]
-    nan = np.full(who.size, np.nan)
-    side_values = np.stack([thrust_at(who, side[:, k], nan, nan) for k in range(3)], axis=1)
+    # The joint search from the side's middle (its start from the grid), Brent's for the rest.
+    mid = 0.5 * (a + b)
+    m_side, h_side = _joint_best(phys.subset(who), mid, guess(mid, who), a, b, slope[who])
+    rest = np.flatnonzero(np.isnan(h_side))
+    if rest.size:
+        side = a[rest, None] + (b - a)[rest, None] * np.array([0.0, 0.5, 1.0])[None, :]
+        nan = np.full(rest.size, np.nan)
+        side_values = np.stack([thrust_at(who[rest], side[:, k], nan, nan) for k in range(3)], axis=1)
 
-    def on_side(idx, m, near, spread):
-        return thrust_at(who[idx], m, near, spread)
+        def on_side(idx, m, near, spread):
+            return thrust_at(who[rest[idx]], m, near, spread)
 
-    m_side, h_side = _brent_max(on_side, side, side_values, BEST_MACH_SEARCH_ITERATIONS, BEST_MACH_TOL)
+        m_side[rest], h_side[rest] = _brent_max(on_side, side, side_values, BEST_MACH_SEARCH_ITERATIONS, BEST_MACH_TOL)
     better = np.flatnonzero(h_side > h_best[who])
     m_best[who[better]], h_best[who[better]] = m_side[better], h_side[better]
 
@@ -724,12 +828,14 @@ def _scanned_thrust_ceiling_m(phys: ClimbPhysics, mach, tol_m=ROOT_TOL_M):
     # No scan level climbs: look for a narrow window around the best level before giving up.
     rescue = np.flatnonzero(~any_ok & ~unknown)
     if rescue.size:
-        jm = np.argmax(np.where(np.isnan(e[rescue]), -np.inf, e[rescue]), axis=1)
-        lo = levels[rescue, np.maximum(jm - 1, 0)]
-        hi = levels[rescue, np.minimum(jm + 1, last)]
+        e_r = _objective(e[rescue])
+        jm = np.argmax(e_r, axis=1)
+        around = np.clip(jm[:, None] + np.arange(-1, 2)[None, :], 0, last)  # the best level and its neighbours
+        r = np.arange(rescue.size)[:, None]
         sub = phys.subset(rescue)
         m_sub = mach[rescue]
-        peak_h, peak_e = _golden_max(lambda i, x: sub.excess(x, m_sub[i]), lo, hi, 30)
+        peak_h, peak_e = _brent_max(lambda i, x, guess, spread: _objective(sub.subset(i).excess(x, m_sub[i])),
+                                    levels[rescue][r, around], e_r[r, around], RESCUE_ITERATIONS, RESCUE_TOL_M)
         found = (peak_e >= 0.0) & (jm < last)
         fix = rescue[found]
         any_ok[fix] = True
@@ -898,8 +1004,10 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     """Best speed per case: the Mach at which the feasible band closes highest.
 
     1. The limits on a grid of speeds (each thrust root started from the previous speed's).
-    2. The thrust ceiling's own best speed, by Brent's search from the best grid speed; its roots
-       by Newton steps with a slope learnt on the first (they move little between its speeds).
+    2. The thrust ceiling's own best speed from the best grid speed: by Newton steps in altitude
+       and Mach together (``_joint_best``) where the excess climb rate is smooth, else by Brent's
+       search, whose roots take Newton steps with a slope learnt on the first (they move little
+       between its speeds). Table engines: the other side of the nearest table Mach as well.
     3. Where thrust, the certified or the cabin ceiling binds there, no speed does better (each is
        an upper bound of the maximum altitude at every speed): done. Elsewhere (buffet or stall
        binding, the coffin corner) a golden-section search on the combined maximum altitude.
@@ -940,9 +1048,14 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     thrust_grid = at_grid["thrust_m"]
     guess_all = _interpolated_guess(cs, thrust_grid)
 
-    # d(excess)/dh at each case's thrust ceiling (1/s), learnt on the search's first root: it
-    # changes little over the search's small steps in speed.
-    slope = np.full(n, np.nan)
+    values = _objective(thrust_grid)
+    rows = np.arange(n)
+    i_best = np.argmax(values, axis=1)
+    m_grid, h_grid = grid[rows, i_best], thrust_grid[rows, i_best]
+    # d(excess)/dh at each case's thrust ceiling (1/s), taken at the best grid speed: it changes
+    # little over the searches' steps in speed (and they measure their own as they go).
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        slope = phys.excess(h_grid + SLOPE_STEP_M, m_grid) / SLOPE_STEP_M
 
     def thrust_at(idx, m, near, spread):
         sub = phys if idx.size == n else phys.subset(idx)
@@ -977,10 +1090,24 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                 slope[idx[rest[learn]]] = up / SLOPE_STEP_M
         return _objective(out)
 
-    m_thrust, searched = _brent_max(thrust_at, grid, _objective(thrust_grid), BEST_MACH_SEARCH_ITERATIONS,
-                                     BEST_MACH_TOL)
+    # Smooth cases: the joint search from the best grid speed, inside its neighbours; the rest
+    # (and any it leaves at a neighbour, which cannot be a maximum) by Brent's search.
+    lo_b, hi_b = grid[rows, np.maximum(i_best - 1, 0)], grid[rows, np.minimum(i_best + 1, g - 1)]
+    _within_table_cell(phys, m_grid, lo_b, hi_b)
+    m_thrust, searched = _joint_best(phys, m_grid, h_grid, lo_b, hi_b, slope)
+    with np.errstate(invalid="ignore"):
+        inside = ((m_thrust > lo_b) | (lo_b <= cs.mach_low)) & ((m_thrust < hi_b) | (hi_b >= cs.mach_high))
+        searched[~inside | (searched < h_grid - GRID_TOL_M)] = np.nan
+    # A ceiling held at a layer base over a range of speeds (a flat top: the climb rate drops
+    # across the base) gives a search nothing to find below it; _above_layer_base looks above.
+    plateau = np.isnan(searched) & (np.abs(h_grid[:, None] - LAYER_BASE_M[None, 1:3]).min(axis=1) < PLATEAU_M)
+    m_thrust[plateau], searched[plateau] = m_grid[plateau], h_grid[plateau]
+    rest = np.flatnonzero(np.isnan(searched))
+    if rest.size:
+        m_thrust[rest], searched[rest] = _brent_max(lambda i, m, near, spread: thrust_at(rest[i], m, near, spread),
+                                                    grid[rest], values[rest], BEST_MACH_SEARCH_ITERATIONS, BEST_MACH_TOL)
     _above_layer_base(phys, m_thrust, searched)
-    _past_table_mach_node(phys, thrust_at, grid, _objective(thrust_grid), m_thrust, searched)
+    _past_table_mach_node(phys, thrust_at, grid, values, m_thrust, searched, guess_all, slope)
     # The search's root at its best speed is within SEARCH_TOL_M: a window that wide settles it
     # to ROOT_TOL_M.
     known = np.isfinite(searched)
