@@ -24,7 +24,8 @@ from .airspeed import pressure_for_cas_at_mach_pa
 from .atmosphere import (G0, GAMMA, LAYER_BASE_M, MODEL_TOP_M, R_AIR, RHO0_KG_M3, T0_K, isa_state, pressure_altitude_m,
                          speed_of_sound_ms)
 from .cases import FLOOR_M, FT, MODEL_CODES, CaseSet, CaseView
-from .thrust import density_lapse_from_logs, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms
+from .thrust import (density_lapse_from_logs, hot_day_factor, ram_temperature_ratio, turbofan_lapse_from_terms,
+                     turbofan_mach_terms)
 
 LIMITS = ("thrust", "buffet", "stall", "certified", "cabin")
 
@@ -492,10 +493,10 @@ def _turbofan_switch_between(phys: ClimbPhysics, altitude_m, low, high):
     excess climb rate has a kink in Mach there."""
     cs = phys.cases
     t = isa_state(altitude_m)[0] + cs.isa_dev_c
-    ram = lambda m: 1.0 + 0.5 * (GAMMA - 1.0) * m * m  # noqa: E731  (theta0 / theta, same source)
+    limit_k = T0_K * cs.throttle_ratio  # theta0 = TR
     with np.errstate(invalid="ignore"):
         return (cs.model_code == MODEL_CODES["turbofan"]) & (
-            (t * ram(low) - T0_K * cs.throttle_ratio) * (t * ram(high) - T0_K * cs.throttle_ratio) <= 0.0)
+            (t * ram_temperature_ratio(low) - limit_k) * (t * ram_temperature_ratio(high) - limit_k) <= 0.0)
 
 
 def _within_table_cell(phys: ClimbPhysics, mach, low, high):
@@ -1100,7 +1101,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         searched[~inside | (searched < h_grid - GRID_TOL_M)] = np.nan
     # A ceiling held at a layer base over a range of speeds (a flat top: the climb rate drops
     # across the base) gives a search nothing to find below it; _above_layer_base looks above.
-    plateau = np.isnan(searched) & (np.abs(h_grid[:, None] - LAYER_BASE_M[None, 1:3]).min(axis=1) < PLATEAU_M)
+    plateau = np.isnan(searched) & _layer_base_between(h_grid, h_grid, PLATEAU_M)
     m_thrust[plateau], searched[plateau] = m_grid[plateau], h_grid[plateau]
     rest = np.flatnonzero(np.isnan(searched))
     if rest.size:

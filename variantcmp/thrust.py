@@ -43,13 +43,20 @@ def density_lapse_from_logs(ln_sigma, lapse_exponent, ln_sigma_tropopause, expon
     return np.exp(ln_frac)
 
 
+def ram_temperature_ratio(mach):
+    """Total-to-static temperature ratio 1 + (gamma-1)/2 M^2 (isentropic flow: Mattingly et al.,
+    *Aircraft Engine Design*, 2nd ed., AIAA 2002, ch. 2)."""
+    m = np.asarray(mach, dtype=float)
+    return 1.0 + 0.5 * (GAMMA - 1.0) * m * m
+
+
 def stagnation_ratios(mach, temperature_k, pressure_pa):
     """Total-temperature and total-pressure ratios theta0, delta0 (to sea-level standard).
 
     Source: Mattingly et al., *Aircraft Engine Design*, 2nd ed. (AIAA 2002), ch. 2:
     theta0 = (T/T_std)(1 + (gamma-1)/2 M^2), delta0 = (p/p_std)(1 + (gamma-1)/2 M^2)^(gamma/(gamma-1)).
     """
-    ram = 1.0 + 0.5 * (GAMMA - 1.0) * np.asarray(mach, dtype=float) ** 2
+    ram = ram_temperature_ratio(mach)
     theta0 = np.asarray(temperature_k) / T0_K * ram
     delta0 = np.asarray(pressure_pa) / P0_PA * ram ** (GAMMA / (GAMMA - 1.0))
     return theta0, delta0
@@ -75,7 +82,7 @@ def turbofan_mach_terms(mach):
     Returns (ram temperature ratio, ram pressure ratio, 1 - 0.49 sqrt(M), 1.5 + M); same source.
     """
     m = np.asarray(mach, dtype=float)
-    ram = 1.0 + 0.5 * (GAMMA - 1.0) * m * m
+    ram = ram_temperature_ratio(m)
     return ram, ram ** (GAMMA / (GAMMA - 1.0)), 1.0 - 0.49 * np.sqrt(m), 1.5 + m
 
 
