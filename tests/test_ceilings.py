@@ -391,3 +391,34 @@ def test_joint_best_speed_search_matches_a_reference_optimiser(monkeypatch):
             assert best.thrust_m[i] >= -ref.fun - 0.3 * FT, i
             assert best.thrust_m[i] <= -ref.fun + 3.0 * FT, i
     assert checked > 40
+
+
+def test_a_thrust_ceiling_held_at_the_tropopause_is_the_tropopause(demo):
+    # Facts of the trade: the ISA tropopause is at 11,000 m (ISO 2533, from memory), and at
+    # constant Mach the climb rate drops there, as below it the falling true airspeed feeds the
+    # climb (the acceleration factor, e.g. Mair & Birdsall, *Aircraft Performance*, ch. 2). Over
+    # a range of speeds the thrust ceiling is then the tropopause itself. Reference: fixed-Mach
+    # solves at 161 speeds over each case's range; no speed may beat the best-speed search, and
+    # where the scan meets a flat top the search must give it to the millimetre.
+    import dataclasses
+
+    from variantcmp import solver
+    from variantcmp.cases import build_cases
+    from variantcmp.table import selected_pairs
+
+    cases, _ = build_cases(demo, selected_pairs(demo, Conditions()), lambda v: np.linspace(0.55, 1.05, 12) * v.mtow_kg,
+                           np.arange(-15.0, 50.0, 5.0), [0.0, 300.0, 500.0], "best", 1.3)
+    best = solver.solve_ceilings(cases, processes=1)
+    near = np.flatnonzero(np.abs(best.thrust_m - 11_000.0) < 5.0)
+    cases = cases.take(near)
+    k = 161
+    lo, hi = cases.mach_low[:, None], cases.mach_high[:, None]
+    speeds = lo + (hi - lo) * np.linspace(0.0, 1.0, k)[None, :]
+    rep = cases.take(np.repeat(np.arange(len(cases)), k))
+    scan = solver.solve_ceilings(dataclasses.replace(rep, mach=speeds.ravel().copy()), processes=1).thrust_m
+    brute = np.nanmax(np.where(np.isnan(scan), -np.inf, scan).reshape(len(cases), k), axis=1)
+    found = best.thrust_m[near]
+    assert np.all(found >= brute - 1e-3)
+    flat = np.abs(brute - 11_000.0) <= 1e-3
+    assert flat.sum() >= 3
+    assert np.all(np.abs(found[flat] - 11_000.0) <= 1e-3)

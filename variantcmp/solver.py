@@ -56,6 +56,7 @@ CO_LIMIT_M = 10.0  # two limits this close both bind (e.g. thrust and buffet at 
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
 BEST_MACH_ITERATIONS = 18
+FALL_M = 1.0  # a grid speed's thrust ceiling this far below the best faster one: past the hump
 BEST_MACH_SEARCH_ITERATIONS = 12  # at most: a case stops once its bracket is within BEST_MACH_TOL
 BEST_MACH_TOL = 3e-4
 SEARCH_MIN_HALF_WIDTH_M = 10.0  # narrowest window for a best-speed search root (guesses are often off by more)
@@ -64,11 +65,11 @@ SLOPE_STEP_M = 1.0  # finite-difference step for the excess climb rate's slope
 LAYER_GUARD_M = 50.0  # no Newton steps this close to a layer base
 RESCUE_ITERATIONS, RESCUE_TOL_M = 40, 0.5  # Brent's search for a narrow climbing window between scan levels
 JOINT_MACH_STEP = 2e-3  # the joint search's speeds either side of its current one
-JOINT_ITERATIONS = 5  # most settle in three or four; the few left go to Brent's search
+JOINT_ITERATIONS = 8  # most settle in three or four; the few left go to Brent's search
 JOINT_MACH_TOL = 1e-4  # a speed this still is settled (the ceiling is flat at its best speed)
 JOINT_MAX_MACH_STEP = 0.05
+JOINT_RATE_TOL_MS = 1e-6  # a best climb rate this small is its root (0.5 mm at a typical slope of 2e-3/s)
 JOINT_MAX_STEP_M = 600.0
-JOINT_BASE_MARGIN_M = 1.0  # steps that come this close to a layer base leave the joint search
 PLATEAU_M = 1e-3  # a grid root this close to a layer base sits on it (roots there come out at the base +- 1e-6 m)
 CLIMB_MACH_ITERATIONS = 24  # golden section in Mach at a fixed altitude: range x 0.618^24, about 1e-5
 CHUNK = 16_384
@@ -480,11 +481,10 @@ def _brent_max(func, grid, values, max_iter, tol):
     return x, fx
 
 
-def _layer_base_between(a_m, b_m, margin_m=JOINT_BASE_MARGIN_M):
-    """Whether the tropopause or the 20 km base lies between two altitudes (or within a margin)."""
-    low, high = np.minimum(a_m, b_m) - margin_m, np.maximum(a_m, b_m) + margin_m
+def _on_layer_base(altitude_m):
+    """Whether each altitude sits on the tropopause or the 20 km base (within PLATEAU_M)."""
     with np.errstate(invalid="ignore"):
-        return ((low[:, None] <= LAYER_BASE_M[None, 1:3]) & (high[:, None] >= LAYER_BASE_M[None, 1:3])).any(axis=1)
+        return (np.abs(altitude_m[:, None] - LAYER_BASE_M[None, 1:3]) <= PLATEAU_M).any(axis=1)
 
 
 def _turbofan_switch_between(phys: ClimbPhysics, altitude_m, low, high):
@@ -522,19 +522,27 @@ def _joint_best(phys: ClimbPhysics, mach, altitude_m, low, high, slope_per_s):
     that speed (the envelope theorem); a secant step in altitude on that best rate follows
     (Newton's method for the optimum: Nocedal & Wright, *Numerical Optimization*, 2nd ed.,
     ch. 3; central differences: ibid. ch. 8). A case is settled once both its speed and its
-    altitude stop moving. Cases whose steps reach a layer base (the climb rate jumps there) and
-    turbofans near their lapse branch change are left to the caller.
+    altitude stop moving. The climb rate jumps at a layer base, so each case's steps stay in the
+    layer it starts in: one that climbs just below the base above has a flat top there (its
+    ceiling is the base, for a range of speeds), answered as the base itself; one pressed against
+    the base below, and turbofans near their lapse branch change, are left to the caller.
     """
     cs = phys.cases
     n = len(cs)
     m_out, h_out = np.full(n, np.nan), np.full(n, np.nan)
     d = JOINT_MACH_STEP
     with np.errstate(invalid="ignore"):
-        ok = (np.isfinite(altitude_m) & (slope_per_s < 0.0) & (high - low > 4.0 * d)
-              & ~_layer_base_between(altitude_m, altitude_m))
+        ok = np.isfinite(altitude_m) & (slope_per_s < 0.0) & (high - low > 4.0 * d)
     idx = np.flatnonzero(ok)
     sub, m, h, slope = phys.subset(idx), mach[idx], altitude_m[idx], slope_per_s[idx]
     lo, hi = low[idx], high[idx]
+    # The layer each case starts in, a hair inside its bases (a start on a base: the layer below,
+    # where a flat top shows).
+    h = np.where(_on_layer_base(h), h - 2.0 * PLATEAU_M, h)
+    bases = LAYER_BASE_M[1:3]
+    k = np.searchsorted(bases, h)
+    floor = np.where(k > 0, bases[np.maximum(k - 1, 0)] + PLATEAU_M, -np.inf)
+    ceiling = np.where(k < bases.size, bases[np.minimum(k, bases.size - 1)] - PLATEAU_M, np.inf)
     h_prev = e_prev = None
     m_prev, measured = np.full(idx.size, np.nan), np.zeros(idx.size, dtype=bool)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
@@ -542,7 +550,14 @@ def _joint_best(phys: ClimbPhysics, mach, altitude_m, low, high, slope_per_s):
             if idx.size == 0:
                 break
             x = np.clip(m, lo + d, hi - d)
-            e_lo, e_mid, e_hi = (sub.excess(h, x + k * d) for k in (-1.0, 0.0, 1.0))
+            e_lo, e_mid, e_hi = (sub.excess(h, x + j * d) for j in (-1.0, 0.0, 1.0))
+            # Climbing just below the base above: the ceiling at that speed is the base.
+            e_max = np.fmax(np.fmax(e_lo, e_mid), e_hi)
+            top = np.flatnonzero((h == ceiling) & (e_max >= 0.0))
+            if top.size:
+                best_of_three = np.argmax(np.stack([e_lo[top], e_mid[top], e_hi[top]]), axis=0) - 1.0
+                m_out[idx[top]] = x[top] + best_of_three * d
+                h_out[idx[top]] = bases[np.minimum(np.searchsorted(bases, ceiling[top]), bases.size - 1)]
             grad, curv = (e_hi - e_lo) / (2.0 * d), (e_hi - 2.0 * e_mid + e_lo) / (d * d)
             # Uphill by the parabola's vertex where it is concave, else by the largest step.
             step = np.where(curv < 0.0, np.clip(-grad / curv, -JOINT_MAX_MACH_STEP, JOINT_MAX_MACH_STEP),
@@ -554,19 +569,22 @@ def _joint_best(phys: ClimbPhysics, mach, altitude_m, low, high, slope_per_s):
                 secant = (e_best - e_prev) / (h - h_prev)
                 fresh = (np.abs(h - h_prev) > 1e-3) & (secant < 0.0)
                 slope, measured = np.where(fresh, secant, slope), measured | fresh
-            h_new = h - np.clip(e_best / slope, -JOINT_MAX_STEP_M, JOINT_MAX_STEP_M)
-            # Settled only on a slope this search measured (one learnt elsewhere may be far off).
-            settled = (measured & (np.abs(m_new - m_prev) < JOINT_MACH_TOL) & (np.abs(h_new - h) < SEARCH_TOL_M)
-                       & (curv < 0.0))
-            fail = ~np.isfinite(h_new) | (~(curv < 0.0) & (np.abs(u) < d)) | _layer_base_between(h, h_new)
+            h_new = np.clip(h - np.clip(e_best / slope, -JOINT_MAX_STEP_M, JOINT_MAX_STEP_M), floor, ceiling)
+            # Settled only on a slope this search measured (one learnt elsewhere may be far off),
+            # or where the best rate is so near zero that no slope could move it (a start that was
+            # already the answer: the altitude never moves enough to measure one).
+            settled = ((measured | (np.abs(e_best) < JOINT_RATE_TOL_MS)) & (np.abs(m_new - m_prev) < JOINT_MACH_TOL)
+                       & (np.abs(h_new - h) < SEARCH_TOL_M) & (curv < 0.0))
+            fail = ~np.isfinite(h_new) | (~(curv < 0.0) & (np.abs(u) < d)) | (h_new == floor)
             fail |= _turbofan_switch_between(sub, h_new, x - d, x + d)
+            fail[top] = True  # answered above
             done = np.flatnonzero(settled & ~fail)
             m_out[idx[done]], h_out[idx[done]] = m_new[done], h_new[done]
             keep = np.flatnonzero(~settled & ~fail)
             if keep.size < idx.size:
                 idx, sub = idx[keep], sub.subset(keep)
-                m_new, h_new, h, e_best, slope, lo, hi, measured = (
-                    v[keep] for v in (m_new, h_new, h, e_best, slope, lo, hi, measured))
+                m_new, h_new, h, e_best, slope, lo, hi, measured, floor, ceiling = (
+                    v[keep] for v in (m_new, h_new, h, e_best, slope, lo, hi, measured, floor, ceiling))
             m_prev, h_prev, e_prev, m, h = m_new, h, e_best, m_new, h_new
     return m_out, h_out
 
@@ -777,6 +795,23 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
 TABLE_PROBES = 8
 
 
+def _may_climb(phys: ClimbPhysics, table, case, altitude_m, pressure_pa, mach):
+    """Whether table-engine cases (``case``: rows, repeated as needed) may climb at altitudes:
+    False only where the thrust is below the drag without wave drag (the excess climb rate is
+    then negative: the energy-share factor is positive and the required climb rate is not).
+
+    A table look-up and a few products per point, where the excess climb rate costs the
+    atmosphere and the full drag: most probes above a thrust ceiling fail this way.
+    """
+    cs = phys.cases
+    thrust = table.at(altitude_m / FT, table.mach_terms(mach)) * phys.thrust_n[case]
+    q_s = phys.qs_per_pm2[case] * mach * mach * pressure_pa
+    w = phys.w_n[case]
+    drag = q_s * cs.cd0[case] + cs.k[case] * w * w / q_s
+    with np.errstate(invalid="ignore"):
+        return ~(thrust < drag * (1.0 - 1e-9)) | (cs.climb_ms[case] < 0.0)
+
+
 def _climbs_above(phys: ClimbPhysics, mach, root_m, top_m, top_known=False):
     """Whether each table-engine case climbs at a grid altitude (or midway) between root and top.
 
@@ -799,6 +834,15 @@ def _climbs_above(phys: ClimbPhysics, mach, root_m, top_m, top_known=False):
             probes = np.hstack([probes, top])
             valid = np.hstack([valid, top > root + 1.0])
         who, which = np.nonzero(valid)
+        probe = which < TABLE_PROBES
+        if probe.any():
+            # The table's own altitudes: their pressures once, not per probe.
+            node = np.minimum(pick[who[probe], which[probe]], points.size - 1)
+            keep = _may_climb(phys, cs.tables[tid], rows[who[probe]], points[node], isa_state(points)[1][node],
+                              mach[rows[who[probe]]])
+            drop = np.flatnonzero(probe)[~keep]
+            if drop.size:
+                who, which = np.delete(who, drop), np.delete(which, drop)
         if who.size == 0:
             continue
         sub = phys.subset(rows[who])
@@ -1018,13 +1062,14 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     grid = cs.mach_low[:, None] + (cs.mach_high - cs.mach_low)[:, None] * np.linspace(0.0, 1.0, g)[None, :]
     # Fastest speed first (where the quick bracket works best); each next root is started from
     # the line through the previous two, in a window as wide as their step.
-    # Past two falls in a row from its peak a case's thrust ceiling is taken to keep falling
-    # towards low speed (one hump, stall-bound there): its remaining columns are not solved.
+    # Once a case's thrust ceiling has clearly fallen from its peak (by more than FALL_M) it is
+    # taken to keep falling towards low speed (one hump, stall-bound there): its remaining
+    # columns are not solved. (A tolerance, as a flat top at a layer base scatters by 1e-6 m.)
     columns, guess, half, last, before = [None] * g, None, WARM_HALF_WIDTH_M, None, None
-    peak, falls = np.full(n, -np.inf), np.zeros(n, dtype=np.int64)
+    peak, fallen = np.full(n, -np.inf), np.zeros(n, dtype=bool)
     for j in reversed(range(g)):
         mach_j = np.ascontiguousarray(grid[:, j])
-        live = np.flatnonzero(falls < 2)
+        live = np.flatnonzero(~fallen)
         if live.size == n:
             columns[j] = _fixed_mach(phys, mach_j, guess, guess_half_width_m=half, tol_m=GRID_TOL_M)
         else:
@@ -1037,7 +1082,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                                                  guess_half_width_m=pick(half), tol_m=GRID_TOL_M))
         found = columns[j].thrust_m
         value = _objective(found)
-        falls = np.where(value < peak, falls + 1, 0)
+        fallen |= value < peak - FALL_M
         peak = np.maximum(peak, value)
         before, last = last, (found if last is None else np.where(np.isfinite(found), found, last))
         if before is None:
@@ -1101,19 +1146,24 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         searched[~inside | (searched < h_grid - GRID_TOL_M)] = np.nan
     # A ceiling held at a layer base over a range of speeds (a flat top: the climb rate drops
     # across the base) gives a search nothing to find below it; _above_layer_base looks above.
-    plateau = np.isnan(searched) & _layer_base_between(h_grid, h_grid, PLATEAU_M)
+    plateau = np.isnan(searched) & _on_layer_base(h_grid)
     m_thrust[plateau], searched[plateau] = m_grid[plateau], h_grid[plateau]
     rest = np.flatnonzero(np.isnan(searched))
     if rest.size:
         m_thrust[rest], searched[rest] = _brent_max(lambda i, m, near, spread: thrust_at(rest[i], m, near, spread),
                                                     grid[rest], values[rest], BEST_MACH_SEARCH_ITERATIONS, BEST_MACH_TOL)
-    _above_layer_base(phys, m_thrust, searched)
     _past_table_mach_node(phys, thrust_at, grid, values, m_thrust, searched, guess_all, slope)
+    _above_layer_base(phys, m_thrust, searched)  # after the far side, which may end on a flat top too
     # The search's root at its best speed is within SEARCH_TOL_M: a window that wide settles it
     # to ROOT_TOL_M.
     known = np.isfinite(searched)
-    final = _fixed_mach(phys, m_thrust, np.where(known, searched, guess_all(m_thrust)),
-                        guess_half_width_m=np.where(known, 4.0 * SEARCH_TOL_M, WARM_HALF_WIDTH_M))
+    # On a flat top the root is the layer base itself: a window just below it, PLATEAU_M wide
+    # (the regula falsi, whose secant sees the jump there as a steep slope, may stop a few cm short).
+    flat = known & _on_layer_base(searched)
+    below_base = np.where(np.abs(searched - LAYER_BASE_M[1]) <= PLATEAU_M, LAYER_BASE_M[1], LAYER_BASE_M[2]) - 0.5 * PLATEAU_M
+    final = _fixed_mach(phys, m_thrust, np.where(flat, below_base, np.where(known, searched, guess_all(m_thrust))),
+                        guess_half_width_m=np.where(flat, 0.5 * PLATEAU_M, np.where(known, 4.0 * SEARCH_TOL_M,
+                                                                                     WARM_HALF_WIDTH_M)))
     thrust_best = _objective(final.thrust_m)  # to the full tolerance (the search's roots are looser)
     m_best = m_thrust.copy()
 
