@@ -422,3 +422,30 @@ def test_a_thrust_ceiling_held_at_the_tropopause_is_the_tropopause(demo):
     flat = np.abs(brute - 11_000.0) <= 1e-3
     assert flat.sum() >= 3
     assert np.all(np.abs(found[flat] - 11_000.0) <= 1e-3)
+
+
+def test_a_best_speed_climbing_past_the_thrust_table_is_never_a_number():
+    # Definition, checked by brute force (no external source): the best-speed thrust ceiling is
+    # unknown where any speed still climbs at the top of the engine's thrust table (the data stop
+    # there). Speeds that do may lie between the search's grid speeds; a dense scan of 161
+    # fixed-Mach solves per case must agree with the search case by case, both ways.
+    import dataclasses
+
+    from variantcmp import solver
+    from variantcmp.cases import build_cases
+    from variantcmp.catalogue import bundled_fleet_dir, load_catalogue
+
+    survey = load_catalogue(bundled_fleet_dir() / "tallon-fells-survey.toml")
+    pairs = [(v.id, e) for v in survey.variants.values() for e in v.engine_options]
+    cases, _ = build_cases(survey, pairs, lambda v: np.linspace(0.55, 1.05, 12) * v.mtow_kg,
+                           np.arange(-15.0, 50.0, 5.0), [0.0, 300.0], "best", 1.3)
+    cases = cases.take(np.flatnonzero(cases.top_m < solver.MODEL_TOP_M))
+    best = solver.solve_ceilings(cases, processes=1)
+    k = 161
+    speeds = cases.mach_low[:, None] + (cases.mach_high - cases.mach_low)[:, None] * np.linspace(0.0, 1.0, k)[None, :]
+    rep = cases.take(np.repeat(np.arange(len(cases)), k))
+    scan = solver.solve_ceilings(dataclasses.replace(rep, mach=speeds.ravel().copy()), processes=1)
+    past_top = ((scan.flags & solver.THRUST_DATA_TOP) != 0).reshape(len(cases), k).any(axis=1)
+    assert 10 < past_top.sum() < len(cases)
+    assert np.array_equal(np.isnan(best.thrust_m), past_top)
+    assert np.array_equal((best.flags & solver.THRUST_DATA_TOP) != 0, past_top)

@@ -70,6 +70,7 @@ JOINT_MACH_TOL = 1e-4  # a speed this still is settled (the ceiling is flat at i
 JOINT_MAX_MACH_STEP = 0.05
 JOINT_RATE_TOL_MS = 1e-6  # a best climb rate this small is its root (0.5 mm at a typical slope of 2e-3/s)
 JOINT_MAX_STEP_M = 600.0
+TABLE_TOP_LOOK_M = 300.0  # a best thrust ceiling this close under the thrust table's top gets a look at the top
 PLATEAU_M = 1e-3  # a grid root this close to a layer base sits on it (roots there come out at the base +- 1e-6 m)
 CLIMB_MACH_ITERATIONS = 24  # golden section in Mach at a fixed altitude: range x 0.618^24, about 1e-5
 CHUNK = 16_384
@@ -589,13 +590,13 @@ def _joint_best(phys: ClimbPhysics, mach, altitude_m, low, high, slope_per_s):
     return m_out, h_out
 
 
-def _best_climbing_mach(phys: ClimbPhysics, altitude_m):
-    """Speed in each case's range with the largest excess climb rate at a fixed altitude, and
-    that excess (golden section: smooth in Mach at a fixed altitude)."""
+def _best_climbing_mach(phys: ClimbPhysics, altitude_m, low=None, high=None):
+    """Speed in each case's range (or in [low, high]) with the largest excess climb rate at a
+    fixed altitude, and that excess (golden section: smooth in Mach at a fixed altitude)."""
     cs = phys.cases
+    low, high = cs.mach_low if low is None else low, cs.mach_high if high is None else high
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        return _golden_max(lambda idx, m: _objective(phys.excess(altitude_m, m)), cs.mach_low, cs.mach_high,
-                           CLIMB_MACH_ITERATIONS)
+        return _golden_max(lambda idx, m: _objective(phys.excess(altitude_m, m)), low, high, CLIMB_MACH_ITERATIONS)
 
 
 def _above_layer_base(phys: ClimbPhysics, m_best, h_best):
@@ -1082,7 +1083,8 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                                                  guess_half_width_m=pick(half), tol_m=GRID_TOL_M))
         found = columns[j].thrust_m
         value = _objective(found)
-        fallen |= value < peak - FALL_M
+        # A speed still climbing at the top of the thrust table is no fall (its ceiling is unknown).
+        fallen |= (value < peak - FALL_M) & ~(columns[j].flags & THRUST_DATA_TOP).astype(bool)
         peak = np.maximum(peak, value)
         before, last = last, (found if last is None else np.where(np.isfinite(found), found, last))
         if before is None:
@@ -1203,6 +1205,17 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     stall_best = closed_form_ceilings_m(cs, cs.mach_high)[1]
 
     grid_flags = np.bitwise_or.reduce(at_grid["flags"], axis=1)
+    # A best just under the top of the thrust table may lie beside speeds between the grid's
+    # that still climb there: where the best climb rate at the table top over the speeds within
+    # a grid step is not negative, the grid missed a speed beyond the data.
+    with np.errstate(invalid="ignore"):
+        look = np.flatnonzero(np.isfinite(thrust_best) & (cs.top_m - thrust_best < TABLE_TOP_LOOK_M)
+                              & (cs.top_m < MODEL_TOP_M) & ~(grid_flags & THRUST_DATA_TOP).astype(bool))
+    if look.size:
+        step = (cs.mach_high - cs.mach_low)[look] / (g - 1)
+        lo, hi = np.maximum(m_thrust[look] - step, cs.mach_low[look]), np.minimum(m_thrust[look] + step, cs.mach_high[look])
+        e_top = _best_climbing_mach(phys.subset(look), cs.top_m[look], lo, hi)[1]
+        grid_flags[look[e_top >= 0.0]] |= THRUST_DATA_TOP
     # Where some speed still climbs at the top of the thrust table, the best-speed thrust
     # ceiling lies beyond the data: unknown, not the best of the other speeds.
     thrust_best[(grid_flags & THRUST_DATA_TOP).astype(bool)] = np.nan
