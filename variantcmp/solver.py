@@ -56,7 +56,8 @@ CO_LIMIT_M = 10.0  # two limits this close both bind (e.g. thrust and buffet at 
 GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
 BEST_MACH_ITERATIONS = 18
-FALL_M = 1.0  # a grid speed's thrust ceiling this far below the best faster one: past the hump
+FALL_M = 1.0  # a grid speed's thrust ceiling this far below the best faster one: a fall
+TABLE_FALLS = 2  # falls in a row past the hump for table engines (a dip in a table's Mach columns can rise again)
 BEST_MACH_SEARCH_ITERATIONS = 12  # at most: a case stops once its bracket is within BEST_MACH_TOL
 BEST_MACH_TOL = 3e-4
 SEARCH_MIN_HALF_WIDTH_M = 10.0  # narrowest window for a best-speed search root (guesses are often off by more)
@@ -643,11 +644,13 @@ def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h
             node[group] = near
     with np.errstate(invalid="ignore"):
         inside = (node > lo + BEST_MACH_TOL) & (node < hi - BEST_MACH_TOL) & np.isfinite(h_best)
-        inside &= np.abs(m_best - node) > BEST_MACH_TOL
     who = np.flatnonzero(inside)
     if who.size == 0:
         return
-    below = m_best[who] < node[who]  # the best so far lies below the node: search above it
+    # The best so far below the node: search above it. A best on the node itself (a search that
+    # ran into the kink there) came from the cell of the best grid speed: search the other one.
+    side = np.where(np.abs(m_best - node) <= BEST_MACH_TOL, grid[rows, i], m_best)
+    below = side[who] < node[who]
     a = np.where(below, node[who], lo[who])
     b = np.where(below, hi[who], node[who])
     # The joint search from the side's middle (its start from the grid), Brent's for the rest.
@@ -1063,20 +1066,30 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     grid = cs.mach_low[:, None] + (cs.mach_high - cs.mach_low)[:, None] * np.linspace(0.0, 1.0, g)[None, :]
     # Fastest speed first (where the quick bracket works best); each next root is started from
     # the line through the previous two, in a window as wide as their step.
-    # Once a case's thrust ceiling has clearly fallen from its peak (by more than FALL_M) it is
-    # taken to keep falling towards low speed (one hump, stall-bound there): its remaining
-    # columns are not solved. (A tolerance, as a flat top at a layer base scatters by 1e-6 m.)
+    # Past a fall of its thrust ceiling (more than FALL_M below the peak: a flat top at a layer
+    # base scatters by 1e-6 m; for table engines TABLE_FALLS in a row) a case's thrust ceiling
+    # is taken to keep falling towards low speed (one hump, stall-bound there). No slower speed can then beat the
+    # best maximum altitude found once the last thrust ceiling, or that speed's other limits
+    # (closed forms), are no higher: such speeds are not solved.
     columns, guess, half, last, before = [None] * g, None, WARM_HALF_WIDTH_M, None, None
-    peak, fallen = np.full(n, -np.inf), np.zeros(n, dtype=bool)
+    peak, falls, past = np.full(n, -np.inf), np.zeros(n, dtype=np.int64), np.zeros(n, dtype=bool)
+    best_max, latest = np.full(n, -np.inf), np.full(n, np.inf)
+    needed = np.where(cs.model_code == MODEL_CODES["table"], TABLE_FALLS, 1)
     for j in reversed(range(g)):
         mach_j = np.ascontiguousarray(grid[:, j])
-        live = np.flatnonzero(~fallen)
+        skip = np.zeros(n, dtype=bool)
+        if past.any():
+            buffet_j, stall_j, cabin_j, _ = closed_form_ceilings_m(cs, mach_j)
+            others = np.fmin(np.fmin(np.where(np.isnan(buffet_j), np.inf, buffet_j), stall_j),
+                             np.fmin(cs.certified_m, cabin_j))
+            skip = past & ((latest <= best_max) | (others <= best_max))
+        live = np.flatnonzero(~skip)
         if live.size == n:
             columns[j] = _fixed_mach(phys, mach_j, guess, guess_half_width_m=half, tol_m=GRID_TOL_M)
         else:
             columns[j] = _blank_ceilings(n, mach_j)
             # The closed forms cost little: keep them for every speed (buffet's own best speed).
-            columns[j].buffet_m[:], columns[j].stall_m[:], columns[j].cabin_m[:], _ = closed_form_ceilings_m(cs, mach_j)
+            columns[j].buffet_m[:], columns[j].stall_m[:], columns[j].cabin_m[:] = buffet_j, stall_j, cabin_j
             if live.size:
                 pick = (lambda x, live=live: None if x is None else (x[live] if np.ndim(x) else x))  # noqa: E731
                 columns[j].put(live, _fixed_mach(phys.subset(live), mach_j[live], pick(guess),
@@ -1084,7 +1097,11 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         found = columns[j].thrust_m
         value = _objective(found)
         # A speed still climbing at the top of the thrust table is no fall (its ceiling is unknown).
-        fallen |= (value < peak - FALL_M) & ~(columns[j].flags & THRUST_DATA_TOP).astype(bool)
+        fall = (value < peak - FALL_M) & ~(columns[j].flags & THRUST_DATA_TOP).astype(bool)
+        falls = np.where(fall, falls + 1, np.where(value >= peak, 0, falls))
+        past |= falls >= needed
+        latest = np.where(skip, latest, value)
+        best_max = np.maximum(best_max, _objective(columns[j].max_altitude_m))
         peak = np.maximum(peak, value)
         before, last = last, (found if last is None else np.where(np.isfinite(found), found, last))
         if before is None:
@@ -1159,13 +1176,13 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     # The search's root at its best speed is within SEARCH_TOL_M: a window that wide settles it
     # to ROOT_TOL_M.
     known = np.isfinite(searched)
-    # On a flat top the root is the layer base itself: a window just below it, PLATEAU_M wide
-    # (the regula falsi, whose secant sees the jump there as a steep slope, may stop a few cm short).
+    # On a flat top the root is the layer base itself (to 1e-6 m, as _split_at_layer_base gives
+    # it): a window that wide just below it. (In a window across the base the regula falsi,
+    # whose secant sees the jump there as a steep slope, may stop a few cm short.)
     flat = known & _on_layer_base(searched)
-    below_base = np.where(np.abs(searched - LAYER_BASE_M[1]) <= PLATEAU_M, LAYER_BASE_M[1], LAYER_BASE_M[2]) - 0.5 * PLATEAU_M
+    below_base = np.where(np.abs(searched - LAYER_BASE_M[1]) <= PLATEAU_M, LAYER_BASE_M[1], LAYER_BASE_M[2]) - 0.5e-6
     final = _fixed_mach(phys, m_thrust, np.where(flat, below_base, np.where(known, searched, guess_all(m_thrust))),
-                        guess_half_width_m=np.where(flat, 0.5 * PLATEAU_M, np.where(known, 4.0 * SEARCH_TOL_M,
-                                                                                     WARM_HALF_WIDTH_M)))
+                        guess_half_width_m=np.where(flat, 0.5e-6, np.where(known, 4.0 * SEARCH_TOL_M, WARM_HALF_WIDTH_M)))
     thrust_best = _objective(final.thrust_m)  # to the full tolerance (the search's roots are looser)
     m_best = m_thrust.copy()
 
