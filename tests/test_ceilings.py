@@ -250,15 +250,17 @@ def test_limits_below_the_atmosphere_model_are_not_numbers(demo):
     assert (f["note"].str.len_chars() > 0).all()  # and each row says why
 
 
-@pytest.mark.parametrize("fleet", ["demo", "survey", "slow-buffet-peak", "synthetic"])
+@pytest.mark.parametrize("fleet", ["demo", "survey", "slow-buffet-peak", "buffet-spike", "table-dip", "synthetic"])
 def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path):
     # Definition of the best speed (the speed at which the maximum altitude is highest), checked
     # by brute force, no external source: fixed-Mach solves at 161 speeds over each case's range,
     # then 41 around the best of them. The search must be no lower than the scan, for the maximum
     # altitude and for the thrust ceiling alone. The benchmark's fleet has wide speed ranges (no
     # buffet data) and a drag rise that make the optimum lopsided; the survey fleet's thrust
-    # tables have kinks at their Mach columns; the third set is buffet-bound, its buffet ceiling
-    # peaking at a slower speed than its thrust ceiling.
+    # tables have kinks at their Mach columns; the next sets are buffet-bound, the buffet
+    # ceiling peaking at a slower speed than the thrust ceiling or in a spike narrower than the
+    # grid's steps; the last has a thrust table whose Mach columns dip over two grid steps and
+    # rise again (thrust fraction = pressure ratio x a factor per column).
     import dataclasses
 
     from variantcmp import bench, solver
@@ -279,6 +281,25 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
                                         buffet_cl=[1.50, 1.20, 1.10, 1.00, 0.70, 0.30])])
         cases, _ = build_cases(cat, [("a1", "e1")], lambda v: np.linspace(0.4, 1.05, 14) * v.mtow_kg,
                                np.arange(-15.0, 50.0, 10.0), [0.0, 300.0], "best", 1.3)
+    elif fleet == "buffet-spike":
+        cat = write_catalogue(tmp_path / "c.toml", [_engine(static_thrust_kn=60.0)],
+                              [_variant(mmo=0.82, buffet_mach=[0.30, 0.45, 0.47, 0.49, 0.60, 0.84],
+                                        buffet_cl=[1.20, 1.20, 1.60, 1.20, 0.90, 0.40])])
+        cases, _ = build_cases(cat, [("a1", "e1")], lambda v: np.linspace(0.6, 1.05, 10) * v.mtow_kg,
+                               np.arange(-15.0, 50.0, 10.0), [0.0, 300.0], "best", 1.3)
+    elif fleet == "table-dip":
+        from variantcmp.atmosphere import isa_pressure_pa
+
+        altitudes_ft = [-2000, 0, 5000, 10000, 15000, 20000, 25000, 30000, 35000, 40000, 45000, 51000]
+        factors = [1.35, 1.35, 1.35, 1.35, 0.8, 0.8, 1.0, 1.0, 1.0]
+        table = _engine(model="table", static_thrust_kn=45.0, table_altitude_ft=altitudes_ft,
+                        table_mach=[0.0, 0.2, 0.4, 0.45, 0.5, 0.6, 0.7, 0.75, 0.9],
+                        table_thrust_fraction=[[float(isa_pressure_pa(a * FT) / 101325.0) * f for f in factors]
+                                               for a in altitudes_ft])
+        del table["lapse_exponent"]
+        cat = write_catalogue(tmp_path / "c.toml", [table], [_variant(mmo=0.82, mtow_kg=38_500.0)])
+        cases, _ = build_cases(cat, [("a1", "e1")], lambda v: np.linspace(0.6, 1.05, 10) * v.mtow_kg,
+                               np.arange(-15.0, 50.0, 10.0), [0.0, 300.0], "best", 1.3)
     else:
         cases = bench.synthetic_cases(bench.synthetic_fleet(), 1500, mach="best")
     best = solver.solve_ceilings(cases, processes=1)
@@ -293,10 +314,15 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
     step = (hi - lo) / 160.0
     coarse_m = lo + (hi - lo) * np.linspace(0.0, 1.0, 161)[None, :]
     coarse = scan(coarse_m)
+    # The search's own speed too: what it reports must be flown there (and a spike of the buffet
+    # boundary narrower than the scan's steps is no reason for the search to look higher).
+    own = scan(np.where(np.isnan(best.mach), lo[:, 0], best.mach)[:, None])
     for which, found in enumerate((best.max_altitude_m, best.thrust_m)):
         centre = coarse_m[np.arange(len(cases)), np.argmax(coarse[which], axis=1)][:, None]
         fine = scan(np.clip(centre + step * np.linspace(-1.0, 1.0, 41)[None, :], lo, hi))[which]
         brute = np.maximum(coarse[which].max(axis=1), fine.max(axis=1))
+        if which == 0:
+            brute = np.maximum(brute, own[0][:, 0])
         found = np.where(np.isnan(found), -np.inf, found)
         if which == 0:
             assert np.array_equal(np.isfinite(found), np.isfinite(brute))

@@ -57,7 +57,6 @@ GOLDEN = (np.sqrt(5.0) - 1.0) / 2.0
 BEST_MACH_GRID = 8
 BEST_MACH_ITERATIONS = 18
 FALL_M = 1.0  # a grid speed's thrust ceiling this far below the best faster one: a fall
-TABLE_FALLS = 2  # falls in a row past the hump for table engines (a dip in a table's Mach columns can rise again)
 BEST_MACH_SEARCH_ITERATIONS = 12  # at most: a case stops once its bracket is within BEST_MACH_TOL
 BEST_MACH_TOL = 3e-4
 SEARCH_MIN_HALF_WIDTH_M = 10.0  # narrowest window for a best-speed search root (guesses are often off by more)
@@ -666,6 +665,10 @@ def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h
             return thrust_at(who[rest[idx]], m, near, spread)
 
         m_side[rest], h_side[rest] = _brent_max(on_side, side, side_values, BEST_MACH_SEARCH_ITERATIONS, BEST_MACH_TOL)
+    # The node itself too: a peak on the kink, which searches from either side only approach.
+    h_node = thrust_at(who, node[who], h_best[who], np.full(who.size, 2.0 * SEARCH_MIN_HALF_WIDTH_M))
+    on_node = h_node > np.fmax(h_side, h_best[who])
+    m_side[on_node], h_side[on_node] = node[who][on_node], h_node[on_node]
     better = np.flatnonzero(h_side > h_best[who])
     m_best[who[better]], h_best[who[better]] = m_side[better], h_side[better]
 
@@ -946,6 +949,22 @@ def buffet_peak_mach(cases: CaseSet, low, high):
     return out
 
 
+def buffet_nodes_around(cases: CaseSet, mach):
+    """The buffet boundary's Mach points either side of ``mach`` per case (strictly below and
+    above; ``mach`` itself past the ends, and where the case has no buffet data)."""
+    low, high = np.array(mach, dtype=float), np.array(mach, dtype=float)
+    bid = cases.buffet_id
+    for i in np.flatnonzero(np.bincount(bid[bid >= 0])):
+        rows = np.flatnonzero(bid == i)
+        node = (cases.buffet_key >= 10.0 * i) & (cases.buffet_key < 10.0 * (i + 1))
+        m = cases.buffet_key[node] - 10.0 * i
+        below = np.searchsorted(m, low[rows], side="left") - 1
+        above = np.searchsorted(m, high[rows], side="right")
+        low[rows] = np.where(below >= 0, m[np.maximum(below, 0)], low[rows])
+        high[rows] = np.where(above < m.size, m[np.minimum(above, m.size - 1)], high[rows])
+    return low, high
+
+
 def buffet_ceiling_m(cases: CaseSet, mach):
     """Buffet-onset ceiling (m) at the case's load-factor margin: the pressure at which
     g_margin W = (gamma/2) p M^2 S CL_buffet (Anderson, *Introduction to Flight*, eq. 4.83).
@@ -1067,14 +1086,15 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     # Fastest speed first (where the quick bracket works best); each next root is started from
     # the line through the previous two, in a window as wide as their step.
     # Past a fall of its thrust ceiling (more than FALL_M below the peak: a flat top at a layer
-    # base scatters by 1e-6 m; for table engines TABLE_FALLS in a row) a case's thrust ceiling
-    # is taken to keep falling towards low speed (one hump, stall-bound there). No slower speed can then beat the
+    # base scatters by 1e-6 m) a case's thrust ceiling is taken to keep falling towards low
+    # speed (one hump, stall-bound there). Not for table engines: a dip in a table's Mach
+    # columns, over any number of grid speeds, can rise again. No slower speed can then beat the
     # best maximum altitude found once the last thrust ceiling, or that speed's other limits
     # (closed forms), are no higher: such speeds are not solved.
     columns, guess, half, last, before = [None] * g, None, WARM_HALF_WIDTH_M, None, None
-    peak, falls, past = np.full(n, -np.inf), np.zeros(n, dtype=np.int64), np.zeros(n, dtype=bool)
+    peak, past = np.full(n, -np.inf), np.zeros(n, dtype=bool)
     best_max, latest = np.full(n, -np.inf), np.full(n, np.inf)
-    needed = np.where(cs.model_code == MODEL_CODES["table"], TABLE_FALLS, 1)
+    smooth = cs.model_code != MODEL_CODES["table"]
     for j in reversed(range(g)):
         mach_j = np.ascontiguousarray(grid[:, j])
         skip = np.zeros(n, dtype=bool)
@@ -1096,10 +1116,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                                                  guess_half_width_m=pick(half), tol_m=GRID_TOL_M))
         found = columns[j].thrust_m
         value = _objective(found)
-        # A speed still climbing at the top of the thrust table is no fall (its ceiling is unknown).
-        fall = (value < peak - FALL_M) & ~(columns[j].flags & THRUST_DATA_TOP).astype(bool)
-        falls = np.where(fall, falls + 1, np.where(value >= peak, 0, falls))
-        past |= falls >= needed
+        past |= (value < peak - FALL_M) & smooth
         latest = np.where(skip, latest, value)
         best_max = np.maximum(best_max, _objective(columns[j].max_altitude_m))
         peak = np.maximum(peak, value)
@@ -1188,6 +1205,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
 
     grid_res = Ceilings(**{k: v.ravel() for k, v in at_grid.items()})
     grid_score = _score(grid_res, grid_res.thrust_m).reshape(n, g)
+    m_buffet = buffet_peak_mach(cs, cs.mach_low, cs.mach_high)
     todo = np.flatnonzero(~(np.isfinite(final.max_altitude_m) & np.isin(final.limit, (0, 3, 4))))
     if todo.size:
         sub = phys.subset(todo)
@@ -1197,15 +1215,32 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         sg = grid[todo]
         r = np.arange(todo.size)
         lo, hi = sg[r, np.maximum(i - 1, 0)], sg[r, np.minimum(i + 1, g - 1)]
+        # A narrow peak of the buffet boundary can lie between grid speeds: where the buffet
+        # ceiling's own best speed beats the best grid speed, a second search goes around it,
+        # between the boundary's points either side (where the buffet ceiling is smooth). Both
+        # searches run as one (the second on repeated cases), sharing their calls.
+        m_peak = np.where(np.isfinite(m_buffet[todo]), m_buffet[todo], sg[r, i])
+        at_peak = _fixed_mach(sub, m_peak, guess_sub(m_peak))
+        around = np.flatnonzero(_score(at_peak, at_peak.thrust_m) > gs[r, i])
+        peak_lo, peak_hi = buffet_nodes_around(sub.cases, m_peak)
+        rows2 = np.concatenate([r, around])
+        sub2 = sub if around.size == 0 else sub.subset(rows2)
 
         def combined(idx, m):
-            res = _fixed_mach(sub, m, guess_sub(m), thrust_needed=False)
-            return _score(res, np.where(np.isposinf(res.thrust_m), guess_sub(m), res.thrust_m))
+            res = _fixed_mach(sub2, m, guess_sub(m, rows2), thrust_needed=False)
+            return _score(res, np.where(np.isposinf(res.thrust_m), guess_sub(m, rows2), res.thrust_m))
 
-        m_gold, _ = _golden_max(combined, lo, hi, BEST_MACH_ITERATIONS)
-        # The best of: the golden result, the best grid speed, the thrust-best speed.
-        candidates = [m_gold, sg[r, i], m_thrust[todo]]
-        results = [_fixed_mach(sub, m, guess_sub(m)) for m in candidates[:2]] + [final.take(todo)]
+        m_both, _ = _golden_max(combined, np.concatenate([lo, np.maximum(peak_lo, sg[:, 0])[around]]),
+                                np.concatenate([hi, np.minimum(peak_hi, sg[:, -1])[around]]), BEST_MACH_ITERATIONS)
+        m_gold, m_near_peak = m_both[:todo.size], m_peak.copy()
+        m_near_peak[around] = m_both[todo.size:]
+        # The best of: the two searches, the best grid speed, the buffet ceiling's best speed,
+        # the thrust-best speed.
+        candidates = [m_gold, sg[r, i], m_peak, m_near_peak, m_thrust[todo]]
+        near_peak = at_peak.take(np.arange(todo.size))
+        if around.size:
+            near_peak.put(around, _fixed_mach(sub.subset(around), m_near_peak[around], guess_sub(m_near_peak[around], around)))
+        results = [_fixed_mach(sub, m, guess_sub(m)) for m in candidates[:2]] + [at_peak, near_peak, final.take(todo)]
         scores = np.stack([_score(res, res.thrust_m) for res in results])
         pick = np.argmax(scores, axis=0)
         for k, (m, res) in enumerate(zip(candidates, results)):
@@ -1217,7 +1252,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     _between_grid_speeds(phys, at_grid["flags"], final, m_best)
     thrust_best = np.maximum(thrust_best, _objective(final.thrust_m))
 
-    buffet_best = np.maximum.reduce([_objective(buffet_ceiling_m(cs, buffet_peak_mach(cs, cs.mach_low, cs.mach_high))),
+    buffet_best = np.maximum.reduce([_objective(buffet_ceiling_m(cs, m_buffet)),
                                      _objective(at_grid["buffet_m"]).max(axis=1), _objective(final.buffet_m)])
     stall_best = closed_form_ceilings_m(cs, cs.mach_high)[1]
 
