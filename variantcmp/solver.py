@@ -666,7 +666,7 @@ def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h
 
         m_side[rest], h_side[rest] = _brent_max(on_side, side, side_values, BEST_MACH_SEARCH_ITERATIONS, BEST_MACH_TOL)
     # The node itself too: a peak on the kink, which searches from either side only approach.
-    h_node = thrust_at(who, node[who], h_best[who], np.full(who.size, 2.0 * SEARCH_MIN_HALF_WIDTH_M))
+    h_node = thrust_at(who, node[who], h_best[who], np.full(who.size, np.nan))
     on_node = h_node > np.fmax(h_side, h_best[who])
     m_side[on_node], h_side[on_node] = node[who][on_node], h_node[on_node]
     better = np.flatnonzero(h_side > h_best[who])
