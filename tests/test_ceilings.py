@@ -260,7 +260,8 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
     # tables have kinks at their Mach columns; the next sets are buffet-bound, the buffet
     # ceiling peaking at a slower speed than the thrust ceiling or in a spike narrower than the
     # grid's steps; the last has a thrust table whose Mach columns dip over two grid steps and
-    # rise again (thrust fraction = pressure ratio x a factor per column).
+    # rise again (thrust fraction = pressure ratio x a factor per column), with a sharp peak of
+    # the thrust ceiling on a table Mach between grid speeds.
     import dataclasses
 
     from variantcmp import bench, solver
@@ -292,13 +293,16 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
 
         altitudes_ft = [-2000, 0, 5000, 10000, 15000, 20000, 25000, 30000, 35000, 40000, 45000, 51000]
         factors = [1.35, 1.35, 1.35, 1.35, 0.8, 0.8, 1.0, 1.0, 1.0]
-        table = _engine(model="table", static_thrust_kn=45.0, table_altitude_ft=altitudes_ft,
-                        table_mach=[0.0, 0.2, 0.4, 0.45, 0.5, 0.6, 0.7, 0.75, 0.9],
-                        table_thrust_fraction=[[float(isa_pressure_pa(a * FT) / 101325.0) * f for f in factors]
-                                               for a in altitudes_ft])
-        del table["lapse_exponent"]
-        cat = write_catalogue(tmp_path / "c.toml", [table], [_variant(mmo=0.82, mtow_kg=38_500.0)])
-        cases, _ = build_cases(cat, [("a1", "e1")], lambda v: np.linspace(0.6, 1.05, 10) * v.mtow_kg,
+        tables = [_engine(id=f"e{k}", model="table", static_thrust_kn=thrust_kn, table_altitude_ft=altitudes_ft,
+                          table_mach=[0.0, 0.2, 0.4, 0.45, 0.5, 0.6, 0.7, 0.75, 0.9],
+                          table_thrust_fraction=[[float(isa_pressure_pa(a * FT) / 101325.0) * f for f in factors]
+                                                 for a in altitudes_ft])
+                  for k, thrust_kn in ((1, 45.0), (2, 55.0))]
+        for table in tables:
+            del table["lapse_exponent"]
+        cat = write_catalogue(tmp_path / "c.toml", tables,
+                              [_variant(mmo=0.82, mtow_kg=38_500.0, engine_options=["e1", "e2"])])
+        cases, _ = build_cases(cat, [("a1", "e1"), ("a1", "e2")], lambda v: np.linspace(0.6, 1.05, 10) * v.mtow_kg,
                                np.arange(-15.0, 50.0, 10.0), [0.0, 300.0], "best", 1.3)
     else:
         cases = bench.synthetic_cases(bench.synthetic_fleet(), 1500, mach="best")

@@ -622,6 +622,49 @@ def _above_layer_base(phys: ClimbPhysics, m_best, h_best):
         m_best[on[up[better]]], h_best[on[up[better]]] = m_star[up[better]], h_up[better]
 
 
+def _table_mach_peaks(phys: ClimbPhysics, m_best, h_best):
+    """Table engines: a peak of the thrust ceiling on a table Mach between grid speeds (in place).
+
+    The thrust has a kink at each table Mach, and a sharp one can put a narrow peak of the
+    thrust ceiling there, between grid speeds and away from the best of them. Each table Mach in
+    a case's range that still climbs at the best ceiling found (one flat evaluation) is solved;
+    a higher ceiling there replaces the best. Returns the cases whose ceiling at such a Mach is
+    beyond the top of the thrust table.
+    """
+    cs = phys.cases
+    n = len(cs)
+    case, mach = [], []
+    for code, tid, group in phys.groups:
+        if code != MODEL_CODES["table"]:
+            continue
+        rows = np.arange(n)[group]
+        machs = cs.tables[tid].mach
+        with np.errstate(invalid="ignore"):
+            inside = ((machs[None, :] > cs.mach_low[rows, None]) & (machs[None, :] < cs.mach_high[rows, None])
+                      & np.isfinite(h_best[rows, None]))
+        who, which = np.nonzero(inside)
+        case.append(rows[who])
+        mach.append(machs[which])
+    beyond = np.zeros(n, dtype=bool)
+    if not case or not np.concatenate(case).size:
+        return beyond
+    case, mach = np.concatenate(case), np.concatenate(mach)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        higher = np.flatnonzero(phys.subset(case).excess(h_best[case], mach) >= 0.0)
+    if higher.size == 0:
+        return beyond
+    case, mach = case[higher], mach[higher]
+    h, flags = thrust_ceiling_m(phys.subset(case), mach, h_best[case] + WARM_HALF_WIDTH_M, WARM_HALF_WIDTH_M,
+                                SEARCH_TOL_M)
+    beyond[case[(flags & THRUST_DATA_TOP).astype(bool)]] = True
+    value = _objective(h)
+    order = np.lexsort((value, case))  # by case, highest ceiling last
+    last = order[np.append(case[order][1:] != case[order][:-1], True)]
+    better = last[value[last] > h_best[case[last]]]
+    m_best[case[better]], h_best[case[better]] = mach[better], h[better]
+    return beyond
+
+
 def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h_best, guess, slope):
     """Table engines: the search again on the far side of the table Mach nearest the best found.
 
@@ -1188,6 +1231,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     if rest.size:
         m_thrust[rest], searched[rest] = _brent_max(lambda i, m, near, spread: thrust_at(rest[i], m, near, spread),
                                                     grid[rest], values[rest], BEST_MACH_SEARCH_ITERATIONS, BEST_MACH_TOL)
+    beyond_table = _table_mach_peaks(phys, m_thrust, searched)
     _past_table_mach_node(phys, thrust_at, grid, values, m_thrust, searched, guess_all, slope)
     _above_layer_base(phys, m_thrust, searched)  # after the far side, which may end on a flat top too
     # The search's root at its best speed is within SEARCH_TOL_M: a window that wide settles it
@@ -1217,30 +1261,44 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         lo, hi = sg[r, np.maximum(i - 1, 0)], sg[r, np.minimum(i + 1, g - 1)]
         # A narrow peak of the buffet boundary can lie between grid speeds: where the buffet
         # ceiling's own best speed beats the best grid speed, a second search goes around it,
-        # between the boundary's points either side (where the buffet ceiling is smooth). Both
-        # searches run as one (the second on repeated cases), sharing their calls.
+        # between the boundary's points either side (where the buffet ceiling is smooth). So can
+        # the thrust ceiling's (a kink at a table Mach): where the thrust-best speed lies outside
+        # the first bracket, a third goes around it, a grid step either side. All run as one (on
+        # repeated cases), sharing their calls.
         m_peak = np.where(np.isfinite(m_buffet[todo]), m_buffet[todo], sg[r, i])
         at_peak = _fixed_mach(sub, m_peak, guess_sub(m_peak))
         around = np.flatnonzero(_score(at_peak, at_peak.thrust_m) > gs[r, i])
         peak_lo, peak_hi = buffet_nodes_around(sub.cases, m_peak)
-        rows2 = np.concatenate([r, around])
-        sub2 = sub if around.size == 0 else sub.subset(rows2)
+        m_t = m_thrust[todo]
+        step = (sg[:, -1] - sg[:, 0]) / (g - 1)
+        apart = np.flatnonzero(np.isfinite(m_t) & ((m_t < lo) | (m_t > hi)))
+        rows2 = np.concatenate([r, around, apart])
+        sub2 = sub if rows2.size == todo.size else sub.subset(rows2)
 
         def combined(idx, m):
             res = _fixed_mach(sub2, m, guess_sub(m, rows2), thrust_needed=False)
             return _score(res, np.where(np.isposinf(res.thrust_m), guess_sub(m, rows2), res.thrust_m))
 
-        m_both, _ = _golden_max(combined, np.concatenate([lo, np.maximum(peak_lo, sg[:, 0])[around]]),
-                                np.concatenate([hi, np.minimum(peak_hi, sg[:, -1])[around]]), BEST_MACH_ITERATIONS)
-        m_gold, m_near_peak = m_both[:todo.size], m_peak.copy()
-        m_near_peak[around] = m_both[todo.size:]
-        # The best of: the two searches, the best grid speed, the buffet ceiling's best speed,
-        # the thrust-best speed.
-        candidates = [m_gold, sg[r, i], m_peak, m_near_peak, m_thrust[todo]]
-        near_peak = at_peak.take(np.arange(todo.size))
+        m_all, _ = _golden_max(combined,
+                               np.concatenate([lo, np.maximum(peak_lo, sg[:, 0])[around],
+                                               np.maximum(m_t - step, sg[:, 0])[apart]]),
+                               np.concatenate([hi, np.minimum(peak_hi, sg[:, -1])[around],
+                                               np.minimum(m_t + step, sg[:, -1])[apart]]), BEST_MACH_ITERATIONS)
+        m_gold = m_all[:todo.size]
+        m_near_peak, m_near_thrust = m_peak.copy(), m_gold.copy()
+        m_near_peak[around] = m_all[todo.size:todo.size + around.size]
+        m_near_thrust[apart] = m_all[todo.size + around.size:]
+        # The best of: the searches, the best grid speed, the buffet ceiling's best speed, the
+        # thrust-best speed.
+        candidates = [m_gold, sg[r, i], m_peak, m_near_peak, m_near_thrust, m_t]
+        near_peak, near_thrust = at_peak.take(r), None
         if around.size:
             near_peak.put(around, _fixed_mach(sub.subset(around), m_near_peak[around], guess_sub(m_near_peak[around], around)))
-        results = [_fixed_mach(sub, m, guess_sub(m)) for m in candidates[:2]] + [at_peak, near_peak, final.take(todo)]
+        results = [_fixed_mach(sub, m, guess_sub(m)) for m in candidates[:2]] + [at_peak, near_peak]
+        near_thrust = results[0].take(r)
+        if apart.size:
+            near_thrust.put(apart, _fixed_mach(sub.subset(apart), m_near_thrust[apart], guess_sub(m_near_thrust[apart], apart)))
+        results += [near_thrust, final.take(todo)]
         scores = np.stack([_score(res, res.thrust_m) for res in results])
         pick = np.argmax(scores, axis=0)
         for k, (m, res) in enumerate(zip(candidates, results)):
@@ -1257,6 +1315,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     stall_best = closed_form_ceilings_m(cs, cs.mach_high)[1]
 
     grid_flags = np.bitwise_or.reduce(at_grid["flags"], axis=1)
+    grid_flags[beyond_table] |= THRUST_DATA_TOP
     # A best just under the top of the thrust table may lie beside speeds between the grid's
     # that still climb there: where the best climb rate at the table top over the speeds within
     # a grid step is not negative, the grid missed a speed beyond the data.
