@@ -495,3 +495,36 @@ def test_a_best_speed_climbing_past_the_thrust_table_is_never_a_number():
     assert 10 < past_top.sum() < len(cases)
     assert np.array_equal(np.isnan(best.thrust_m), past_top)
     assert np.array_equal((best.flags & solver.THRUST_DATA_TOP) != 0, past_top)
+
+
+def test_a_narrow_band_of_flyable_speeds_between_grid_speeds_is_found(tmp_path):
+    # Definition, checked by brute force (no external source): a low VMO puts the VMO floor above
+    # the buffet ceiling at most speeds of this heavy, hot case, so that it can be flown only in
+    # a band about 0.025 Mach wide, between the search's grid speeds. The best speed must find
+    # it: a number, no lower than a dense scan of fixed-Mach solves (161 speeds).
+    import dataclasses
+
+    from variantcmp import solver
+    from variantcmp.cases import build_cases
+
+    turbofan = _engine(model="turbofan", static_thrust_kn=66.0, rating_fraction=0.95, throttle_ratio=1.08,
+                       flat_rate_isa_dev_c=20.0, hot_day_loss_per_c=0.01)
+    del turbofan["lapse_exponent"]
+    cat = write_catalogue(tmp_path / "c.toml", [turbofan],
+                          [_variant(mtow_kg=38_500.0, wing_area_m2=84.0, aspect_ratio=9.8, oswald_e=0.83, cd0=0.02,
+                                    cl_max=1.52, cruise_mach=0.68, mmo=0.70, vmo_kt=210.0, sweep_deg=25.0,
+                                    thickness_ratio=0.12, korn_factor=0.93,
+                                    buffet_mach=[0.30, 0.45, 0.50, 0.55, 0.60, 0.65, 0.70],
+                                    buffet_cl=[0.9, 1.3, 0.8, 1.3, 0.7, 1.2, 0.6])])
+    cases, _ = build_cases(cat, [("a1", "e1")], lambda v: np.array([1.3]) * v.mtow_kg, [45.0], [800.0], "best", 1.3)
+    best = solver.solve_ceilings(cases, processes=1)
+    k = 161
+    speeds = np.linspace(cases.mach_low[0], cases.mach_high[0], k)
+    scan = solver.solve_ceilings(dataclasses.replace(cases.take(np.zeros(k, dtype=int)), mach=speeds), processes=1)
+    flyable = np.isfinite(scan.max_altitude_m)
+    assert 0 < flyable.sum() < 0.1 * k  # a narrow band
+    grid = np.linspace(cases.mach_low[0], cases.mach_high[0], solver.BEST_MACH_GRID)
+    at_grid = solver.solve_ceilings(dataclasses.replace(cases.take(np.zeros(grid.size, dtype=int)), mach=grid),
+                                    processes=1)
+    assert np.isnan(at_grid.max_altitude_m).all()  # no grid speed flies
+    assert best.max_altitude_m[0] >= np.nanmax(scan.max_altitude_m) - 0.3 * FT

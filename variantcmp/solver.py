@@ -72,6 +72,7 @@ JOINT_RATE_TOL_MS = 1e-6  # a best climb rate this small is its root (0.5 mm at 
 JOINT_MAX_STEP_M = 600.0
 TABLE_TOP_LOOK_M = 300.0  # a best thrust ceiling this close under the thrust table's top gets a look at the top
 PLATEAU_M = 1e-3  # a grid root this close to a layer base sits on it (roots there come out at the base +- 1e-6 m)
+ISLAND_SPEEDS = 48  # dense scan for cases whose grid met unflyable speeds
 CLIMB_MACH_ITERATIONS = 24  # golden section in Mach at a fixed altitude: range x 0.618^24, about 1e-5
 CHUNK = 16_384
 BEST_CHUNK = 25_000  # best speed makes many calls on small sets: larger chunks share their overhead
@@ -716,6 +717,43 @@ def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h
     m_best[who[better]], h_best[who[better]] = m_side[better], h_side[better]
 
 
+def _flyable_islands(phys: ClimbPhysics, idx, final: Ceilings, m_best, guess):
+    """Cases whose grid met speeds that cannot be flown: the best of a dense speed scan (in place).
+
+    Where a VMO floor rises above the buffet or thrust ceiling, or a buffet ceiling above the top
+    of the thrust table, the flyable speeds can form islands narrower than the grid's step; the
+    searches around the best grid speed do not reach them. These few cases get ISLAND_SPEEDS
+    fixed-Mach solves over their range and a golden-section search between the best one's
+    neighbours; the best of those and the answer so far is kept.
+    """
+    if idx.size == 0:
+        return
+    cs = phys.cases
+    k, r = ISLAND_SPEEDS, np.arange(idx.size)
+    sub = phys.subset(idx)
+    lo, hi = cs.mach_low[idx], cs.mach_high[idx]
+    dense = lo[:, None] + (hi - lo)[:, None] * np.linspace(0.0, 1.0, k)[None, :]
+    rep = np.repeat(r, k)
+    m_flat = dense.ravel()
+    scan = _fixed_mach(sub.subset(rep), m_flat, guess(m_flat, idx[rep]))
+    q = np.argmax(_score(scan, scan.thrust_m).reshape(idx.size, k), axis=1)
+
+    def combined(i, m):
+        res = _fixed_mach(sub, m, guess(m, idx), thrust_needed=False)
+        return _score(res, np.where(np.isposinf(res.thrust_m), guess(m, idx), res.thrust_m))
+
+    m_gold, _ = _golden_max(combined, dense[r, np.maximum(q - 1, 0)], dense[r, np.minimum(q + 1, k - 1)],
+                            BEST_MACH_ITERATIONS)
+    candidates = [dense[r, q], m_gold]
+    results = [scan.take(r * k + q), _fixed_mach(sub, m_gold, guess(m_gold, idx)), final.take(idx)]
+    pick = np.argmax(np.stack([_score(res, res.thrust_m) for res in results]), axis=0)
+    for c, m in enumerate(candidates):
+        sel = np.flatnonzero(pick == c)
+        if sel.size:
+            final.put(idx[sel], results[c].take(sel))
+            m_best[idx[sel]] = m[sel]
+
+
 def _between_grid_speeds(phys: ClimbPhysics, grid_flags, final: Ceilings, m_best):
     """Cases that cannot climb at any grid speed: the speed that climbs best at the floor (in place).
 
@@ -1307,6 +1345,11 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                 m_best[todo[sel]] = m[sel]
                 final.put(todo[sel], res.take(sel))
 
+    # Speeds that cannot be flown among the grid's (or no answer): there may be islands.
+    unflyable = (at_grid["flags"] & (ABOVE_MMO | BELOW_VMO_FLOOR | NO_COMMON_ALTITUDE | BELOW_FLOOR | THRUST_DATA_TOP))
+    suspect = np.zeros(n, dtype=bool)
+    suspect[todo] = unflyable[todo].any(axis=1) | np.isnan(final.max_altitude_m[todo])
+    _flyable_islands(phys, np.flatnonzero(suspect), final, m_best, guess_all)
     _between_grid_speeds(phys, at_grid["flags"], final, m_best)
     thrust_best = np.maximum(thrust_best, _objective(final.thrust_m))
 
