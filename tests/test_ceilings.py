@@ -276,17 +276,14 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
         survey = load_catalogue(bundled_fleet_dir() / "tallon-fells-survey.toml")
         cases, _ = build_cases(survey, selected_pairs(survey, Conditions()), lambda v: np.linspace(0.55, 1.05, 6) * v.mtow_kg,
                                np.arange(-15.0, 50.0, 10.0), [0.0, 100.0, 300.0], "best", 1.3)
-    elif fleet == "slow-buffet-peak":
+    elif fleet in ("slow-buffet-peak", "buffet-spike"):
+        boundary, weights = {"slow-buffet-peak": (([0.30, 0.45, 0.55, 0.62, 0.67, 0.84], [1.50, 1.20, 1.10, 1.00, 0.70, 0.30]),
+                                                  np.linspace(0.4, 1.05, 14)),
+                             "buffet-spike": (([0.30, 0.45, 0.47, 0.49, 0.60, 0.84], [1.20, 1.20, 1.60, 1.20, 0.90, 0.40]),
+                                              np.linspace(0.6, 1.05, 10))}[fleet]
         cat = write_catalogue(tmp_path / "c.toml", [_engine(static_thrust_kn=60.0)],
-                              [_variant(mmo=0.82, buffet_mach=[0.30, 0.45, 0.55, 0.62, 0.67, 0.84],
-                                        buffet_cl=[1.50, 1.20, 1.10, 1.00, 0.70, 0.30])])
-        cases, _ = build_cases(cat, [("a1", "e1")], lambda v: np.linspace(0.4, 1.05, 14) * v.mtow_kg,
-                               np.arange(-15.0, 50.0, 10.0), [0.0, 300.0], "best", 1.3)
-    elif fleet == "buffet-spike":
-        cat = write_catalogue(tmp_path / "c.toml", [_engine(static_thrust_kn=60.0)],
-                              [_variant(mmo=0.82, buffet_mach=[0.30, 0.45, 0.47, 0.49, 0.60, 0.84],
-                                        buffet_cl=[1.20, 1.20, 1.60, 1.20, 0.90, 0.40])])
-        cases, _ = build_cases(cat, [("a1", "e1")], lambda v: np.linspace(0.6, 1.05, 10) * v.mtow_kg,
+                              [_variant(mmo=0.82, buffet_mach=boundary[0], buffet_cl=boundary[1])])
+        cases, _ = build_cases(cat, [("a1", "e1")], lambda v: weights * v.mtow_kg,
                                np.arange(-15.0, 50.0, 10.0), [0.0, 300.0], "best", 1.3)
     elif fleet == "table-dip":
         from variantcmp.atmosphere import isa_pressure_pa

@@ -647,9 +647,9 @@ def _table_mach_peaks(phys: ClimbPhysics, m_best, h_best):
         case.append(rows[who])
         mach.append(machs[which])
     beyond = np.zeros(n, dtype=bool)
-    if not case or not np.concatenate(case).size:
+    case, mach = np.concatenate(case or [np.zeros(0, np.intp)]), np.concatenate(mach or [np.zeros(0)])
+    if case.size == 0:
         return beyond
-    case, mach = np.concatenate(case), np.concatenate(mach)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         higher = np.flatnonzero(phys.subset(case).excess(h_best[case], mach) >= 0.0)
     if higher.size == 0:
@@ -717,6 +717,21 @@ def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h
     m_best[who[better]], h_best[who[better]] = m_side[better], h_side[better]
 
 
+def _combined_score(phys: ClimbPhysics, mach, guess_m):
+    """The maximum altitude's score at a speed per case, for a search over speeds: the thrust
+    ceiling is solved only where thrust binds (elsewhere its guess stands in for the room)."""
+    res = _fixed_mach(phys, mach, guess_m, thrust_needed=False)
+    return _score(res, np.where(np.isposinf(res.thrust_m), guess_m, res.thrust_m))
+
+
+def _resolved(phys: ClimbPhysics, base: Ceilings, rows, mach, guess_m) -> Ceilings:
+    """A copy of ``base`` with the cases ``rows`` solved again at ``mach[rows]``."""
+    out = base.take(np.arange(len(phys.cases)))
+    if rows.size:
+        out.put(rows, _fixed_mach(phys.subset(rows), mach[rows], guess_m[rows]))
+    return out
+
+
 def _flyable_islands(phys: ClimbPhysics, idx, final: Ceilings, m_best, guess):
     """Cases whose grid met speeds that cannot be flown: the best of a dense speed scan (in place).
 
@@ -738,12 +753,8 @@ def _flyable_islands(phys: ClimbPhysics, idx, final: Ceilings, m_best, guess):
     scan = _fixed_mach(sub.subset(rep), m_flat, guess(m_flat, idx[rep]))
     q = np.argmax(_score(scan, scan.thrust_m).reshape(idx.size, k), axis=1)
 
-    def combined(i, m):
-        res = _fixed_mach(sub, m, guess(m, idx), thrust_needed=False)
-        return _score(res, np.where(np.isposinf(res.thrust_m), guess(m, idx), res.thrust_m))
-
-    m_gold, _ = _golden_max(combined, dense[r, np.maximum(q - 1, 0)], dense[r, np.minimum(q + 1, k - 1)],
-                            BEST_MACH_ITERATIONS)
+    m_gold, _ = _golden_max(lambda i, m: _combined_score(sub, m, guess(m, idx)), dense[r, np.maximum(q - 1, 0)],
+                            dense[r, np.minimum(q + 1, k - 1)], BEST_MACH_ITERATIONS)
     candidates = [dense[r, q], m_gold]
     results = [scan.take(r * k + q), _fixed_mach(sub, m_gold, guess(m_gold, idx)), final.take(idx)]
     pick = np.argmax(np.stack([_score(res, res.thrust_m) for res in results]), axis=0)
@@ -1313,11 +1324,7 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         rows2 = np.concatenate([r, around, apart])
         sub2 = sub if rows2.size == todo.size else sub.subset(rows2)
 
-        def combined(idx, m):
-            res = _fixed_mach(sub2, m, guess_sub(m, rows2), thrust_needed=False)
-            return _score(res, np.where(np.isposinf(res.thrust_m), guess_sub(m, rows2), res.thrust_m))
-
-        m_all, _ = _golden_max(combined,
+        m_all, _ = _golden_max(lambda idx, m: _combined_score(sub2, m, guess_sub(m, rows2)),
                                np.concatenate([lo, np.maximum(peak_lo, sg[:, 0])[around],
                                                np.maximum(m_t - step, sg[:, 0])[apart]]),
                                np.concatenate([hi, np.minimum(peak_hi, sg[:, -1])[around],
@@ -1329,14 +1336,9 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         # The best of: the searches, the best grid speed, the buffet ceiling's best speed, the
         # thrust-best speed.
         candidates = [m_gold, sg[r, i], m_peak, m_near_peak, m_near_thrust, m_t]
-        near_peak, near_thrust = at_peak.take(r), None
-        if around.size:
-            near_peak.put(around, _fixed_mach(sub.subset(around), m_near_peak[around], guess_sub(m_near_peak[around], around)))
-        results = [_fixed_mach(sub, m, guess_sub(m)) for m in candidates[:2]] + [at_peak, near_peak]
-        near_thrust = results[0].take(r)
-        if apart.size:
-            near_thrust.put(apart, _fixed_mach(sub.subset(apart), m_near_thrust[apart], guess_sub(m_near_thrust[apart], apart)))
-        results += [near_thrust, final.take(todo)]
+        results = [_fixed_mach(sub, m, guess_sub(m)) for m in candidates[:2]] + [at_peak]
+        results += [_resolved(sub, at_peak, around, m_near_peak, guess_sub(m_near_peak)),
+                    _resolved(sub, results[0], apart, m_near_thrust, guess_sub(m_near_thrust)), final.take(todo)]
         scores = np.stack([_score(res, res.thrust_m) for res in results])
         pick = np.argmax(scores, axis=0)
         for k, (m, res) in enumerate(zip(candidates, results)):
