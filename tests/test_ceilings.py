@@ -250,7 +250,8 @@ def test_limits_below_the_atmosphere_model_are_not_numbers(demo):
     assert (f["note"].str.len_chars() > 0).all()  # and each row says why
 
 
-@pytest.mark.parametrize("fleet", ["demo", "survey", "slow-buffet-peak", "buffet-spike", "table-dip", "synthetic"])
+@pytest.mark.parametrize("fleet", ["demo", "survey", "slow-buffet-peak", "buffet-spike", "table-dip", "no-drag-rise",
+                                   "beyond-table-top", "close-table-columns", "synthetic"])
 def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path):
     # Definition of the best speed (the speed at which the maximum altitude is highest), checked
     # by brute force, no external source: fixed-Mach solves at 161 speeds over each case's range,
@@ -261,7 +262,13 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
     # ceiling peaking at a slower speed than the thrust ceiling or in a spike narrower than the
     # grid's steps; the last has a thrust table whose Mach columns dip over two grid steps and
     # rise again (thrust fraction = pressure ratio x a factor per column), with a sharp peak of
-    # the thrust ceiling on a table Mach between grid speeds.
+    # the thrust ceiling on a table Mach between grid speeds; then a variant with no drag rise,
+    # whose thrust ceiling peaks at the fastest speed (MMO) for a density-lapse engine and below
+    # it for a turbofan. The last two come from a stress test of the searches (invented data):
+    # a table engine that still climbs at the table's top over a range of speeds, so that its
+    # thrust ceiling bounds nothing there, with a buffet ceiling crossing that top; and a table
+    # whose Mach columns lie close together, its thrust ceiling peaking sharply between two of
+    # them on the far side of the table Mach next to the best grid speed.
     import dataclasses
 
     from variantcmp import bench, solver
@@ -301,6 +308,39 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
                               [_variant(mmo=0.82, mtow_kg=38_500.0, engine_options=["e1", "e2"])])
         cases, _ = build_cases(cat, [("a1", "e1"), ("a1", "e2")], lambda v: np.linspace(0.6, 1.05, 10) * v.mtow_kg,
                                np.arange(-15.0, 50.0, 10.0), [0.0, 300.0], "best", 1.3)
+    elif fleet in ("beyond-table-top", "close-table-columns"):
+        from variantcmp.atmosphere import isa_pressure_pa
+
+        if fleet == "beyond-table-top":
+            altitudes_ft, machs, factors = ([-2000, 1000, 6000, 12000, 16000, 20000, 39000, 40000],
+                                            [0.0, 0.176, 0.447, 0.9], [1.0, 0.821, 0.788, 0.941])
+            engine = dict(static_thrust_kn=116.0, rating_fraction=0.97, flat_rate_isa_dev_c=18.2, hot_day_loss_per_c=0.0086)
+            variant = dict(engine_count=1, wing_area_m2=85.75, aspect_ratio=8.45, oswald_e=0.834, cd0=0.0258,
+                           cl_max=1.563, mtow_kg=39_842.0, mmo=0.841, sweep_deg=33.0, thickness_ratio=0.136,
+                           korn_factor=0.918, buffet_mach=[0.3, 0.4458, 0.5831, 0.7241, 0.8844],
+                           buffet_cl=[1.159, 0.953, 0.925, 0.789, 0.668])
+            weights, devs, climbs = np.linspace(0.45, 1.0, 24), [-13.3, 9.7, 22.0], [100.0, 200.0]
+        else:
+            altitudes_ft, machs = [-2000, 3000, 5000, 7000, 9000, 11000, 14000, 22000, 35000, 38000, 40000], \
+                [0.0, 0.367, 0.384, 0.457, 0.529, 0.612, 0.658, 0.74, 0.9]
+            factors = [1.0, 0.8515, 0.8532, 0.8653, 0.8843, 0.9149, 0.9359, 0.9807, 1.0976]
+            engine = dict(static_thrust_kn=61.95)
+            variant = dict(wing_area_m2=91.19, aspect_ratio=8.37, oswald_e=0.741, cd0=0.02454, cl_max=1.457,
+                           mtow_kg=52_436.0, mmo=0.798, sweep_deg=25.9, thickness_ratio=0.1013, korn_factor=0.937)
+            weights, devs, climbs = np.linspace(0.9, 1.3, 18), [-15.0, 21.2, 22.7], [500.0, 800.0]
+        table = _engine(model="table", table_altitude_ft=altitudes_ft, table_mach=machs,
+                        table_thrust_fraction=[[float(isa_pressure_pa(a * FT) / 101325.0) * f for f in factors]
+                                               for a in altitudes_ft], **engine)
+        del table["lapse_exponent"]
+        cat = write_catalogue(tmp_path / "c.toml", [table], [_variant(**variant)])
+        cases, _ = build_cases(cat, [("a1", "e1")], lambda v: weights * v.mtow_kg, devs, climbs, "best", 1.3)
+    elif fleet == "no-drag-rise":
+        turbofan = _engine(id="e2", model="turbofan", static_thrust_kn=75.0, throttle_ratio=1.08)
+        del turbofan["lapse_exponent"]
+        cat = write_catalogue(tmp_path / "c.toml", [_engine(lapse_exponent=0.8), turbofan],
+                              [_variant(mmo=0.86, engine_options=["e1", "e2"])])
+        cases, _ = build_cases(cat, [("a1", "e1"), ("a1", "e2")], lambda v: np.linspace(0.5, 1.1, 13) * v.mtow_kg,
+                               np.arange(-15.0, 50.0, 10.0), [0.0, 300.0], "best", 1.3)
     else:
         cases = bench.synthetic_cases(bench.synthetic_fleet(), 1500, mach="best")
     best = solver.solve_ceilings(cases, processes=1)
@@ -329,8 +369,79 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
             assert np.array_equal(np.isfinite(found), np.isfinite(brute))
         ok = np.isfinite(brute) & np.isfinite(found)  # a thrust ceiling beyond the thrust table is no number
         assert ok.sum() > 100
-        assert np.all(found[ok] >= brute[ok] - 0.3 * FT)
+        # Just under a thrust table's top, where a buffet ceiling crosses it, the answer is a cliff
+        # edge (past it the ceiling lies beyond the data) that the golden-section search reaches
+        # to about 1 ft: a known limit (DEVELOPERS.md). Elsewhere the searches' tolerance.
+        slack_ft = 1.0 if fleet == "beyond-table-top" and which == 0 else 0.3
+        assert np.all(found[ok] >= brute[ok] - slack_ft * FT)
         assert np.all(found[ok] <= brute[ok] + 5.0 * FT)  # no speed flies higher than the scan allows (a few ft between points)
+
+
+@pytest.mark.parametrize("top_known", [False, True])
+def test_hump_probes_screened_out_cannot_climb(tmp_path, top_known):
+    # Self-consistency, no external source: the table-engine hump check screens its probes with
+    # the climb rate without wave drag, which wave drag only lowers. Its answer must be the one
+    # that evaluating the full excess climb rate at every probe gives: climbs at a table altitude
+    # (or midway) between the root and the top, or at the top itself. Tables whose Mach columns
+    # dip and rise again, with and without compressibility data, hot and cold, 0-800 ft/min.
+    from variantcmp import solver
+    from variantcmp.atmosphere import isa_pressure_pa
+    from variantcmp.cases import build_cases
+
+    altitudes_ft = [-2000, 0, 5000, 10000, 15000, 20000, 25000, 30000, 35000, 40000, 45000, 51000]
+    factors = [1.3, 1.3, 0.8, 0.8, 1.1, 1.0, 0.9]
+    engine = _engine(model="table", static_thrust_kn=60.0, table_altitude_ft=altitudes_ft,
+                     table_mach=[0.0, 0.3, 0.45, 0.5, 0.6, 0.75, 0.9],
+                     table_thrust_fraction=[[float(isa_pressure_pa(a * FT) / 101325.0) * f for f in factors]
+                                            for a in altitudes_ft])
+    del engine["lapse_exponent"]
+    cat = write_catalogue(tmp_path / "c.toml", [engine],
+                          [_variant(id="a1", mmo=0.84), _variant(id="a2", mmo=0.84, sweep_deg=28.0,
+                                                                  thickness_ratio=0.12, korn_factor=0.93)])
+    cases, _ = build_cases(cat, [("a1", "e1"), ("a2", "e1")], lambda v: np.linspace(0.5, 1.1, 7) * v.mtow_kg,
+                           [-15.0, 15.0, 40.0], [0.0, 300.0, 800.0], 0.7, 1.3)
+    rng = np.random.default_rng(11)
+    n = len(cases)
+    phys = solver.ClimbPhysics(cases)
+    mach = rng.uniform(0.3, 0.85, n)
+    root = rng.uniform(-500.0, 14_000.0, n)
+    top = np.minimum(root + rng.uniform(0.0, 6_000.0, n), cases.top_m)
+    got = solver._climbs_above(phys, mach, root, top, top_known)
+
+    nodes = np.array(altitudes_ft) * FT
+    points = np.sort(np.concatenate([nodes, 0.5 * (nodes[1:] + nodes[:-1])]))
+    expect = np.zeros(n, dtype=bool)
+    for i in range(n):  # every probe the check looks at, by the full evaluation
+        above = points[points >= root[i] + 1.0][:solver.TABLE_PROBES]
+        probes = list(above[above < top[i]]) + ([top[i]] if not top_known and top[i] > root[i] + 1.0 else [])
+        one = phys.subset(np.full(len(probes), i))
+        expect[i] = bool((one.excess(np.array(probes), np.full(len(probes), mach[i])) >= 0.0).any()) if probes else False
+    assert 0 < expect.sum() < n  # both outcomes occur
+    np.testing.assert_array_equal(got, expect)
+
+
+def test_parabola_peak_between_samples_against_numpy_polyfit():
+    # The far-side check's estimate of a peak between samples: the vertex of the parabola through
+    # the best sample and its neighbours. Reference: numpy.polyfit (degree 2) through those three
+    # points; samples given out of order; no vertex (-inf) where the parabola does not peak
+    # between the neighbours.
+    from variantcmp import solver
+
+    rng = np.random.default_rng(2)
+    x = np.sort(rng.uniform(0.5, 0.7, (200, 9)), axis=1)
+    top, height, width = rng.uniform(0.52, 0.68, 200), rng.uniform(-0.05, 0.05, 200), rng.uniform(5.0, 400.0, 200)
+    f = height[:, None] - width[:, None] * (x - top[:, None]) ** 2 - 0.02 * np.abs(x - 0.6)  # peaks, not parabolas
+    shuffle = rng.permuted(np.tile(np.arange(9), (200, 1)), axis=1)
+    got = solver._parabola_peak(np.take_along_axis(x, shuffle, axis=1), np.take_along_axis(f, shuffle, axis=1))
+    for r in range(200):
+        i = int(np.clip(np.argmax(f[r]), 1, 7))
+        c2, c1, c0 = np.polyfit(x[r, i - 1:i + 2], f[r, i - 1:i + 2], 2)
+        vertex = -c1 / (2.0 * c2)
+        if c2 < 0.0 and x[r, i - 1] < vertex < x[r, i + 1]:
+            assert got[r] == pytest.approx(c0 - c1 * c1 / (4.0 * c2), rel=1e-9, abs=1e-12)
+        else:
+            assert got[r] == -np.inf
+    assert np.isfinite(got).sum() > 100
 
 
 def test_answers_do_not_depend_on_chunks_or_processes():

@@ -96,6 +96,9 @@ def test_energy_share_factor_against_total_energy(h_m, dev, mach):
     f_numeric = (1.0 / de_dhp) * (t_mid + dev) / t_mid
     _, _, lapse = isa_state(h_m)
     assert aero.energy_share_factor(mach, t_mid + dev, t_mid, lapse) == pytest.approx(f_numeric, rel=1e-6)
+    # The same factor times T_ISA/T, in one expression (the climb rate in pressure altitude).
+    assert aero.pressure_climb_factor(mach, t_mid + dev, t_mid, lapse) == pytest.approx(
+        f_numeric * t_mid / (t_mid + dev), rel=1e-6)
 
 
 def test_energy_share_factor_magnitudes():
@@ -189,6 +192,23 @@ def test_thrust_table_matches_scipy_bilinear(alt):
     np.testing.assert_array_equal(np.isnan(got), np.isnan(expect))
     ok = ~np.isnan(expect)
     np.testing.assert_allclose(got[ok], expect[ok], rtol=1e-12, atol=1e-12)
+
+
+def test_thrust_table_probe_points_match_scipy_bilinear():
+    # The values the hump check reads at a table's altitudes and midway between them are the
+    # interpolation's own there. Reference: scipy.interpolate.RegularGridInterpolator (linear).
+    from scipy.interpolate import RegularGridInterpolator
+
+    alt = np.array([-2000.0, 0.0, 10000.0, 25000.0, 41000.0, 51000.0])
+    mach = np.array([0.0, 0.3, 0.6, 0.85])
+    frac = np.random.default_rng(5).uniform(0.1, 1.0, (alt.size, mach.size))
+    points, at = thrust.TableLapse(alt, mach, frac).probe_points()
+    np.testing.assert_array_equal(points[0::2], alt)
+    np.testing.assert_allclose(points[1::2], 0.5 * (alt[1:] + alt[:-1]))
+    ref = RegularGridInterpolator((alt, mach), frac, method="linear")
+    grid = np.stack(np.meshgrid(points, mach, indexing="ij"), axis=-1)
+    np.testing.assert_allclose(at[:, :mach.size], ref(grid), rtol=1e-12, atol=1e-12)
+    assert np.isnan(at[:, mach.size:]).all()  # a Mach outside the table: no data
 
 
 @settings(max_examples=25, deadline=None)

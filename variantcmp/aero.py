@@ -100,3 +100,13 @@ def energy_share_factor(mach, temperature_k, isa_temperature_k, lapse_rate_k_per
     ratio = np.asarray(isa_temperature_k) / np.asarray(temperature_k)
     coeff = GAMMA * R_AIR * np.asarray(lapse_rate_k_per_m) / (2.0 * G0)
     return 1.0 / (1.0 + coeff * np.asarray(mach) ** 2 * ratio)
+
+
+def pressure_climb_factor(mach, temperature_k, isa_temperature_k, lapse_rate_k_per_m):
+    """(T_ISA/T) x f, f the :func:`energy_share_factor` (same source), in one expression:
+
+        dh_p/dt = (F - D) V / W x (T_ISA/T) f,  (T_ISA/T) f = T_ISA / (T + (gamma R beta/(2 g0)) M^2 T_ISA).
+    """
+    t_isa = np.asarray(isa_temperature_k)
+    coeff = GAMMA * R_AIR * np.asarray(lapse_rate_k_per_m) / (2.0 * G0)
+    return t_isa / (np.asarray(temperature_k) + coeff * np.asarray(mach) ** 2 * t_isa)

@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .aero import energy_share_factor, korn_coefficients, lock_wave_drag
+from .aero import energy_share_factor, korn_coefficients, lock_wave_drag, pressure_climb_factor
 from .airspeed import pressure_for_cas_at_mach_pa
 from .atmosphere import (G0, GAMMA, LAYER_BASE_M, MODEL_TOP_M, R_AIR, RHO0_KG_M3, T0_K, isa_state, pressure_altitude_m,
                          speed_of_sound_ms)
@@ -46,6 +46,8 @@ SCAN_LEVELS_M = np.concatenate([
                                                    38_000.0, 47_000.0, 60_000.0, MODEL_TOP_M]])
 QUICK_CL_FRACTIONS = (0.6, 0.4, 0.25, 0.12)  # of CL*, stepping down from CLmax to bracket the root
 WARM_HALF_WIDTH_M = 250.0  # window around a nearby speed's thrust ceiling
+GRID_START = 5  # the grid speed solved first (of BEST_MACH_GRID, slowest 0): a middle one
+FIRST_STEP_HALF_WIDTH_M = 1500.0  # window around the first grid speed's thrust ceiling for the next one
 WARM_REACH = 2.0  # a second look this many windows beyond a window that missed the root
 HUMP_CHECK_HALF_WIDTH_M = 50.0  # warm windows at least this wide get the table-engine hump check
 ROOT_TOL_M = 0.003  # about 0.01 ft
@@ -73,6 +75,7 @@ JOINT_MAX_STEP_M = 600.0
 TABLE_TOP_LOOK_M = 300.0  # a best thrust ceiling this close under the thrust table's top gets a look at the top
 PLATEAU_M = 1e-3  # a grid root this close to a layer base sits on it (roots there come out at the base +- 1e-6 m)
 ISLAND_SPEEDS = 48  # dense scan for cases whose grid met unflyable speeds
+FAR_SIDE_SPEEDS = 9  # speeds of the far side of a table Mach (its ends included) checked before it is searched
 CLIMB_MACH_ITERATIONS = 24  # golden section in Mach at a fixed altitude: range x 0.618^24, about 1e-5
 CHUNK = 16_384
 BEST_CHUNK = 25_000  # best speed makes many calls on small sets: larger chunks share their overhead
@@ -696,6 +699,28 @@ def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h
     below = side[who] < node[who]
     a = np.where(below, node[who], lo[who])
     b = np.where(below, hi[who], node[who])
+    # Only where some speed of the far side still climbs at the best ceiling found (less the
+    # search's tolerance: near-ties are searched) can that side do better: the excess climb rate
+    # at that altitude, in one flat call, at FAR_SIDE_SPEEDS evenly spaced speeds of the side and
+    # at every table Mach in it (the node included), where the excess climb rate has its kinks
+    # (a narrow peak sits on one); between them it is smooth in Mach, and a peak between two of
+    # these speeds shows as the vertex of the parabola through the best of them and its neighbours.
+    tables = [(cs.tables[tid].mach, group) for code, tid, group in phys.groups if code == MODEL_CODES["table"]]
+    k = FAR_SIDE_SPEEDS + max(machs.size for machs, _ in tables)
+    probe = np.repeat(a[:, None], k, axis=1)  # (a repeated where a table has fewer Mach columns)
+    probe[:, :FAR_SIDE_SPEEDS] += (b - a)[:, None] * np.linspace(0.0, 1.0, FAR_SIDE_SPEEDS)[None, :]
+    for machs, group in tables:
+        in_group = np.zeros(n, dtype=bool)
+        in_group[group] = True
+        mine = np.flatnonzero(in_group[who])
+        probe[mine, FAR_SIDE_SPEEDS:FAR_SIDE_SPEEDS + machs.size] = np.clip(machs[None, :], a[mine, None], b[mine, None])
+    rep = np.repeat(who, k)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        e = phys.subset(rep).excess(h_best[rep] - 2.0 * SEARCH_TOL_M, probe.ravel()).reshape(who.size, k)
+    keep = np.flatnonzero((e >= 0.0).any(axis=1) | (_parabola_peak(probe, e) >= 0.0))
+    if keep.size == 0:
+        return
+    who, a, b = who[keep], a[keep], b[keep]
     # The joint search from the side's middle (its start from the grid), Brent's for the rest.
     mid = 0.5 * (a + b)
     m_side, h_side = _joint_best(phys.subset(who), mid, guess(mid, who), a, b, slope[who])
@@ -715,6 +740,24 @@ def _past_table_mach_node(phys: ClimbPhysics, thrust_at, grid, values, m_best, h
     m_side[on_node], h_side[on_node] = node[who][on_node], h_node[on_node]
     better = np.flatnonzero(h_side > h_best[who])
     m_best[who[better]], h_best[who[better]] = m_side[better], h_side[better]
+
+
+def _parabola_peak(x, f):
+    """Per row of samples f(x) (any order), the vertex value of the parabola through the best
+    sample and its neighbours in x (Brent's parabolic step), where that parabola peaks between
+    them; -inf elsewhere. A peak between two samples rises above the best of them."""
+    order = np.argsort(x, axis=1)
+    x, f = np.take_along_axis(x, order, axis=1), _objective(np.take_along_axis(f, order, axis=1))
+    rows = np.arange(x.shape[0])
+    i = np.clip(np.argmax(f, axis=1), 1, x.shape[1] - 2)
+    d0, d2 = x[rows, i - 1] - x[rows, i], x[rows, i + 1] - x[rows, i]
+    f0, f1, f2 = f[rows, i - 1], f[rows, i], f[rows, i + 1]
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        s0, s2 = (f0 - f1) / d0, (f2 - f1) / d2  # the two chords' slopes
+        curv = 2.0 * (s2 - s0) / (d2 - d0)  # the second derivative
+        rise = s0 - 0.5 * curv * d0  # the slope at the best sample
+        t = -rise / curv  # the vertex, from the best sample
+        return np.where((curv < 0.0) & (t > d0) & (t < d2), f1 + 0.5 * rise * t, -np.inf)
 
 
 def _combined_score(phys: ClimbPhysics, mach, guess_m):
@@ -788,6 +831,28 @@ def _between_grid_speeds(phys: ClimbPhysics, grid_flags, final: Ceilings, m_best
     m_best[stuck[climbs[ok]]] = m_star[climbs[ok]]
 
 
+def _thrust_ceiling_below(phys: ClimbPhysics, rows, mach, altitude_m):
+    """Of the table-engine cases ``rows``, those whose thrust ceiling at ``mach`` lies below an
+    altitude (finite, inside the thrust table): the excess climb rate is negative there and at the
+    table's altitudes (and midway) above it up to where the speed flies at CLmax, so no hump of it
+    rises higher (the hump check of ``thrust_ceiling_m``)."""
+    cs = phys.cases
+    top = np.minimum(cs.top_m, MODEL_TOP_M)
+    h = altitude_m[rows]
+    with np.errstate(invalid="ignore"):
+        rows = rows[np.isfinite(h) & (h >= cs.floor_m[rows]) & (h < top[rows])]
+    if rows.size == 0:
+        return rows
+    sub = phys.subset(rows)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        e = sub.excess(altitude_m[rows], mach[rows])
+    fall = np.flatnonzero(e < 0.0)  # NaN (no thrust data at this Mach) is solved as usual
+    rows, sub = rows[fall], sub.subset(fall)
+    if rows.size == 0:
+        return rows
+    return rows[~_climbs_above(sub, mach[rows], altitude_m[rows], _cl_max_altitude(phys, rows, mach, top, altitude_m))]
+
+
 def _interpolated_guess(cases: CaseSet, grid_values):
     """Thrust ceiling between grid speeds, interpolated from the grid: a start for the root."""
     n, g = grid_values.shape
@@ -847,10 +912,8 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
                 wide = np.broadcast_to(half_width_m, (n,))[hot] > HUMP_CHECK_HALF_WIDTH_M
                 table = hot[(cs.model_code[hot] == MODEL_CODES["table"]) & wide]
                 if table.size:
-                    qs_t = phys.qs_per_pm2[table] * mach[table] ** 2
-                    at_cl_max = pressure_altitude_m(phys.w_n[table] / (qs_t * cs.cl_max[table]))
-                    high = np.maximum(np.clip(at_cl_max, cs.floor_m[table], top[table]), result[table])
-                    redo = table[_climbs_above(phys.subset(table), mach[table], result[table], high)]
+                    redo = table[_climbs_above(phys.subset(table), mach[table], result[table],
+                                               _cl_max_altitude(phys, table, mach, top, result))]
                     if redo.size:
                         result[redo], flags[redo] = thrust_ceiling_m(phys.subset(redo), mach[redo], tol_m=tol_m)
             return result, flags
@@ -891,31 +954,27 @@ def thrust_ceiling_m(phys: ClimbPhysics, mach, guess_m=None, half_width_m=WARM_H
     return result, flags
 
 
-TABLE_PROBES = 8
-
-
-def _may_climb(phys: ClimbPhysics, table, case, altitude_m, pressure_pa, mach):
-    """Whether table-engine cases (``case``: rows, repeated as needed) may climb at altitudes:
-    False only where the thrust is below the drag without wave drag (the excess climb rate is
-    then negative: the energy-share factor is positive and the required climb rate is not).
-
-    A table look-up and a few products per point, where the excess climb rate costs the
-    atmosphere and the full drag: most probes above a thrust ceiling fail this way.
-    """
+def _cl_max_altitude(phys: ClimbPhysics, rows, mach, top, root):
+    """The top of the table-engine hump check for the cases ``rows``: the altitude where the
+    Mach flies at CLmax (far past the excess peak), within the thrust data, not below the root."""
     cs = phys.cases
-    thrust = table.at(altitude_m / FT, table.mach_terms(mach)) * phys.thrust_n[case]
-    q_s = phys.qs_per_pm2[case] * mach * mach * pressure_pa
-    w = phys.w_n[case]
-    drag = q_s * cs.cd0[case] + cs.k[case] * w * w / q_s
-    with np.errstate(invalid="ignore"):
-        return ~(thrust < drag * (1.0 - 1e-9)) | (cs.climb_ms[case] < 0.0)
+    qs = phys.qs_per_pm2[rows] * mach[rows] ** 2
+    at_cl_max = pressure_altitude_m(phys.w_n[rows] / (qs * cs.cl_max[rows]))
+    return np.maximum(np.clip(at_cl_max, cs.floor_m[rows], top[rows]), root[rows])
+
+
+TABLE_PROBES = 8
+MAY_CLIMB_MARGIN_MS = 1e-9  # rounding between the two evaluations of the climb rate
 
 
 def _climbs_above(phys: ClimbPhysics, mach, root_m, top_m, top_known=False):
-    """Whether each table-engine case climbs at a grid altitude (or midway) between root and top.
+    """Whether each table-engine case climbs at a table altitude (or midway) between root and top.
 
     Up to TABLE_PROBES such altitudes per case, and the top itself unless ``top_known`` (the
-    caller has seen it not climb). Only the probes that exist are evaluated, as one flat set.
+    caller has seen it not climb). Most probes above a thrust ceiling fall short of the required
+    climb rate even without wave drag (which only lowers it): that climb rate, from the table's
+    own values at its altitudes and the atmosphere there, costs a few products per probe; only
+    the probes it leaves, and the top, get the full excess climb rate, as one flat set.
     """
     cs = phys.cases
     out = np.zeros(len(cs), dtype=bool)
@@ -923,25 +982,34 @@ def _climbs_above(phys: ClimbPhysics, mach, root_m, top_m, top_known=False):
         if code != MODEL_CODES["table"]:
             continue
         rows = np.arange(len(cs))[group]
-        nodes = cs.tables[tid].altitude_ft * FT
-        points = np.sort(np.concatenate([nodes, 0.5 * (nodes[1:] + nodes[:-1])]))
-        root, top = root_m[rows, None], top_m[rows, None]
-        pick = np.searchsorted(points, root[:, 0] + 1.0, side="left")[:, None] + np.arange(TABLE_PROBES)[None, :]
-        probes = points[np.minimum(pick, points.size - 1)]
-        valid = (pick < points.size) & (probes < top)
+        table = cs.tables[tid]
+        points_ft, fraction = table.probe_points()
+        points = points_ft * FT
+        root, top = root_m[rows], top_m[rows]
+        pick = np.searchsorted(points, root + 1.0, side="left")[:, None] + np.arange(TABLE_PROBES)[None, :]
+        k = np.minimum(pick, points.size - 1)
+        who, which = np.nonzero((pick < points.size) & (points[k] < top[:, None]))
+        if who.size:
+            # The climb rate without wave drag at those probes (the climb equation of ClimbPhysics).
+            case, node, m = rows[who], k[who, which], mach[rows[who]]
+            j, ty = table.mach_terms(m)
+            at = node * fraction.shape[1] + j
+            thrust = fraction.ravel()[at] * (1.0 - ty) + fraction.ravel()[at + 1] * ty
+            thrust *= phys.thrust_n[case]
+            t_isa, p, lapse = (x[node] for x in isa_state(points))
+            q_s = phys.qs_per_pm2[case] * m * m * p
+            w = phys.w_n[case]
+            thrust -= q_s * cs.cd0[case] + cs.k[case] * w * w / q_s
+            t = t_isa + cs.isa_dev_c[case]
+            rate = thrust * (m * speed_of_sound_ms(t) / w) * pressure_climb_factor(m, t, t_isa, lapse)
+            with np.errstate(invalid="ignore"):
+                keep = ~(rate < cs.climb_ms[case] - MAY_CLIMB_MARGIN_MS)  # NaN (no data): evaluated
+            who, which = who[keep], which[keep]
+        probes = points[k]
         if not top_known:
-            probes = np.hstack([probes, top])
-            valid = np.hstack([valid, top > root + 1.0])
-        who, which = np.nonzero(valid)
-        probe = which < TABLE_PROBES
-        if probe.any():
-            # The table's own altitudes: their pressures once, not per probe.
-            node = np.minimum(pick[who[probe], which[probe]], points.size - 1)
-            keep = _may_climb(phys, cs.tables[tid], rows[who[probe]], points[node], isa_state(points)[1][node],
-                              mach[rows[who[probe]]])
-            drop = np.flatnonzero(probe)[~keep]
-            if drop.size:
-                who, which = np.delete(who, drop), np.delete(which, drop)
+            tops = np.flatnonzero(top > root + 1.0)
+            who, which = np.concatenate([who, tops]), np.concatenate([which, np.full(tops.size, TABLE_PROBES)])
+            probes = np.hstack([probes, top[:, None]])
         if who.size == 0:
             continue
         sub = phys.subset(rows[who])
@@ -1160,64 +1228,106 @@ def _score(res: Ceilings, thrust_m):
     return _objective(res.max_altitude_m) + 1e-3 * np.where(np.isfinite(room), room, 0.0)
 
 
+def _grid_sweeps(phys: ClimbPhysics, grid) -> list[Ceilings]:
+    """Every limit at the grid's speeds (``grid``: cases x BEST_MACH_GRID, slowest first), one
+    ``Ceilings`` per speed; speeds that cannot beat the best maximum altitude found are left
+    unsolved (their thrust ceiling NaN, the closed forms kept).
+
+    Two sweeps from GRID_START, a middle speed where nearly every case climbs: towards the
+    fastest, then from the middle towards the slowest. Each root is started from the line
+    through the sweep's previous two, in a window as wide as their step. Past a fall of its
+    thrust ceiling along a sweep (more than FALL_M below the sweep's peak: a flat top at a layer
+    base scatters by 1e-6 m) a case's thrust ceiling is taken to keep falling that way (one hump);
+    so is one that rose from the middle to the next faster speed, on the slow sweep. No further
+    speed of the sweep can then beat the best maximum altitude found where the last thrust
+    ceiling, or that speed's other limits (closed forms), are no higher: it is not solved. Not
+    for table engines, whose thrust ceiling can rise again after a dip in a table's Mach
+    columns: past a fall they are checked at each speed (``_thrust_ceiling_below``), one
+    evaluation and the hump-check probes where a solve takes five or more.
+    """
+    cs = phys.cases
+    n, g = grid.shape
+    columns = [None] * g
+    best_max = np.full(n, -np.inf)
+    smooth = cs.model_code != MODEL_CODES["table"]
+    start = min(GRID_START, g - 1)
+    for sweep in (range(start, g), range(start - 1, -1, -1)):
+        if len(sweep) == 0:
+            continue
+        fell = np.zeros(n, dtype=bool)
+        if sweep[0] == start:
+            guess, half, last, before = None, WARM_HALF_WIDTH_M, None, None
+            peak, latest = np.full(n, -np.inf), np.full(n, np.inf)
+        else:
+            # Back from the middle, started from the line through the middle and the next faster
+            # speed; a ceiling that rose from the middle to the next faster speed falls this way.
+            last = columns[start].thrust_m
+            peak = latest = _objective(last)
+            guess, half, before = last, FIRST_STEP_HALF_WIDTH_M, None
+            if start + 1 < g:
+                before = columns[start + 1].thrust_m
+                step = np.where(np.isfinite(last - before), last - before, 0.0)
+                guess, half = last + step, np.maximum(WARM_HALF_WIDTH_M, np.abs(step))
+                fell = _objective(before) > peak + FALL_M
+        for j in sweep:
+            mach_j = np.ascontiguousarray(grid[:, j])
+            skip = np.zeros(n, dtype=bool)
+            past = fell & smooth
+            closed = None
+            if past.any():
+                closed = closed_form_ceilings_m(cs, mach_j)
+                buffet_j, stall_j, cabin_j, _ = closed
+                others = np.fmin(np.fmin(np.where(np.isnan(buffet_j), np.inf, buffet_j), stall_j),
+                                 np.fmin(cs.certified_m, cabin_j))
+                skip = past & ((latest <= best_max) | (others <= best_max))
+            screen = np.flatnonzero(fell & ~smooth)
+            if screen.size:
+                skip[_thrust_ceiling_below(phys, screen, mach_j, best_max)] = True
+            live = np.flatnonzero(~skip)
+            if live.size == n:
+                columns[j] = _fixed_mach(phys, mach_j, guess, guess_half_width_m=half, tol_m=GRID_TOL_M)
+            else:
+                columns[j] = _blank_ceilings(n, mach_j)
+                # The closed forms cost little: keep them for every speed (buffet's own best speed).
+                buffet_j, stall_j, cabin_j, _ = closed or closed_form_ceilings_m(cs, mach_j)
+                columns[j].buffet_m[:], columns[j].stall_m[:], columns[j].cabin_m[:] = buffet_j, stall_j, cabin_j
+                if live.size:
+                    pick = (lambda x, live=live: None if x is None else (x[live] if np.ndim(x) else x))  # noqa: E731
+                    columns[j].put(live, _fixed_mach(phys.subset(live), mach_j[live], pick(guess),
+                                                     guess_half_width_m=pick(half), tol_m=GRID_TOL_M))
+            found = columns[j].thrust_m
+            value = _objective(found)
+            fell |= value < peak - FALL_M
+            latest = np.where(skip, latest, value)
+            best_max = np.maximum(best_max, _objective(columns[j].max_altitude_m))
+            peak = np.maximum(peak, value)
+            before, last = last, (found if last is None else np.where(np.isfinite(found), found, last))
+            if before is None:
+                guess, half = last, FIRST_STEP_HALF_WIDTH_M
+            else:
+                step = np.where(np.isfinite(last - before), last - before, 0.0)
+                guess, half = last + step, np.maximum(WARM_HALF_WIDTH_M, np.abs(step))
+    return columns
+
+
 def _best_speed(phys: ClimbPhysics) -> Ceilings:
     """Best speed per case: the Mach at which the feasible band closes highest.
 
-    1. The limits on a grid of speeds (each thrust root started from the previous speed's).
+    1. The limits on a grid of speeds (``_grid_sweeps``: outwards from a middle speed, each
+       thrust root started from the previous speeds'; speeds that cannot do better not solved).
     2. The thrust ceiling's own best speed from the best grid speed: by Newton steps in altitude
        and Mach together (``_joint_best``) where the excess climb rate is smooth, else by Brent's
        search, whose roots take Newton steps with a slope learnt on the first (they move little
        between its speeds). Table engines: the other side of the nearest table Mach as well.
     3. Where thrust, the certified or the cabin ceiling binds there, no speed does better (each is
-       an upper bound of the maximum altitude at every speed): done. Elsewhere (buffet or stall
-       binding, the coffin corner) a golden-section search on the combined maximum altitude.
+       an upper bound of the maximum altitude at every speed): done; so where the buffet ceiling
+       binds at its own best speed. Elsewhere (buffet or stall binding, the coffin corner) a
+       golden-section search on the combined maximum altitude.
     """
     cs = phys.cases
     n, g = len(cs), BEST_MACH_GRID
     grid = cs.mach_low[:, None] + (cs.mach_high - cs.mach_low)[:, None] * np.linspace(0.0, 1.0, g)[None, :]
-    # Fastest speed first (where the quick bracket works best); each next root is started from
-    # the line through the previous two, in a window as wide as their step.
-    # Past a fall of its thrust ceiling (more than FALL_M below the peak: a flat top at a layer
-    # base scatters by 1e-6 m) a case's thrust ceiling is taken to keep falling towards low
-    # speed (one hump, stall-bound there). Not for table engines: a dip in a table's Mach
-    # columns, over any number of grid speeds, can rise again. No slower speed can then beat the
-    # best maximum altitude found once the last thrust ceiling, or that speed's other limits
-    # (closed forms), are no higher: such speeds are not solved.
-    columns, guess, half, last, before = [None] * g, None, WARM_HALF_WIDTH_M, None, None
-    peak, past = np.full(n, -np.inf), np.zeros(n, dtype=bool)
-    best_max, latest = np.full(n, -np.inf), np.full(n, np.inf)
-    smooth = cs.model_code != MODEL_CODES["table"]
-    for j in reversed(range(g)):
-        mach_j = np.ascontiguousarray(grid[:, j])
-        skip = np.zeros(n, dtype=bool)
-        if past.any():
-            buffet_j, stall_j, cabin_j, _ = closed_form_ceilings_m(cs, mach_j)
-            others = np.fmin(np.fmin(np.where(np.isnan(buffet_j), np.inf, buffet_j), stall_j),
-                             np.fmin(cs.certified_m, cabin_j))
-            skip = past & ((latest <= best_max) | (others <= best_max))
-        live = np.flatnonzero(~skip)
-        if live.size == n:
-            columns[j] = _fixed_mach(phys, mach_j, guess, guess_half_width_m=half, tol_m=GRID_TOL_M)
-        else:
-            columns[j] = _blank_ceilings(n, mach_j)
-            # The closed forms cost little: keep them for every speed (buffet's own best speed).
-            columns[j].buffet_m[:], columns[j].stall_m[:], columns[j].cabin_m[:] = buffet_j, stall_j, cabin_j
-            if live.size:
-                pick = (lambda x, live=live: None if x is None else (x[live] if np.ndim(x) else x))  # noqa: E731
-                columns[j].put(live, _fixed_mach(phys.subset(live), mach_j[live], pick(guess),
-                                                 guess_half_width_m=pick(half), tol_m=GRID_TOL_M))
-        found = columns[j].thrust_m
-        value = _objective(found)
-        past |= (value < peak - FALL_M) & smooth
-        latest = np.where(skip, latest, value)
-        best_max = np.maximum(best_max, _objective(columns[j].max_altitude_m))
-        peak = np.maximum(peak, value)
-        before, last = last, (found if last is None else np.where(np.isfinite(found), found, last))
-        if before is None:
-            guess = last
-        else:
-            step = np.where(np.isfinite(last - before), last - before, 0.0)
-            guess, half = last + step, np.maximum(WARM_HALF_WIDTH_M, 0.5 * np.abs(step))
+    columns = _grid_sweeps(phys, grid)
     at_grid = {k: np.stack([getattr(c, k) for c in columns], axis=1) for k in Ceilings.__dataclass_fields__}
     thrust_grid = at_grid["thrust_m"]
     guess_all = _interpolated_guess(cs, thrust_grid)
@@ -1299,7 +1409,14 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
     grid_res = Ceilings(**{k: v.ravel() for k, v in at_grid.items()})
     grid_score = _score(grid_res, grid_res.thrust_m).reshape(n, g)
     m_buffet = buffet_peak_mach(cs, cs.mach_low, cs.mach_high)
-    todo = np.flatnonzero(~(np.isfinite(final.max_altitude_m) & np.isin(final.limit, (0, 3, 4))))
+    # Thrust bounds the maximum altitude at every speed only where its ceiling is known at every
+    # speed: not where a speed still climbs at the top of the thrust table (its ceiling lies
+    # beyond the data, maybe higher than the best found).
+    grid_flags = np.bitwise_or.reduce(at_grid["flags"], axis=1)
+    grid_flags[beyond_table] |= THRUST_DATA_TOP
+    done = np.isfinite(final.max_altitude_m) & np.isin(final.limit, (0, 3, 4))
+    done &= ~((final.limit == LIMITS.index("thrust")) & (grid_flags & THRUST_DATA_TOP).astype(bool))
+    todo = np.flatnonzero(~done)
     if todo.size:
         sub = phys.subset(todo)
         guess_sub = _interpolated_guess(sub.cases, thrust_grid[todo])
@@ -1316,27 +1433,35 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
         # repeated cases), sharing their calls.
         m_peak = np.where(np.isfinite(m_buffet[todo]), m_buffet[todo], sg[r, i])
         at_peak = _fixed_mach(sub, m_peak, guess_sub(m_peak))
-        around = np.flatnonzero(_score(at_peak, at_peak.thrust_m) > gs[r, i])
+        # Where the buffet ceiling binds at its own best speed, no speed goes higher (the buffet
+        # ceiling bounds the maximum altitude at every speed): no search.
+        open_ = ~(np.isfinite(m_buffet[todo]) & (at_peak.limit == LIMITS.index("buffet"))
+                  & np.isfinite(at_peak.max_altitude_m))
+        go = np.flatnonzero(open_)
+        around = np.flatnonzero((_score(at_peak, at_peak.thrust_m) > gs[r, i]) & open_)
         peak_lo, peak_hi = buffet_nodes_around(sub.cases, m_peak)
         m_t = m_thrust[todo]
         step = (sg[:, -1] - sg[:, 0]) / (g - 1)
-        apart = np.flatnonzero(np.isfinite(m_t) & ((m_t < lo) | (m_t > hi)))
-        rows2 = np.concatenate([r, around, apart])
-        sub2 = sub if rows2.size == todo.size else sub.subset(rows2)
-
-        m_all, _ = _golden_max(lambda idx, m: _combined_score(sub2, m, guess_sub(m, rows2)),
-                               np.concatenate([lo, np.maximum(peak_lo, sg[:, 0])[around],
-                                               np.maximum(m_t - step, sg[:, 0])[apart]]),
-                               np.concatenate([hi, np.minimum(peak_hi, sg[:, -1])[around],
-                                               np.minimum(m_t + step, sg[:, -1])[apart]]), BEST_MACH_ITERATIONS)
-        m_gold = m_all[:todo.size]
+        apart = np.flatnonzero(np.isfinite(m_t) & ((m_t < lo) | (m_t > hi)) & open_)
+        rows2 = np.concatenate([go, around, apart])
+        m_gold = m_peak.copy()  # the buffet peak where there is no search
         m_near_peak, m_near_thrust = m_peak.copy(), m_gold.copy()
-        m_near_peak[around] = m_all[todo.size:todo.size + around.size]
-        m_near_thrust[apart] = m_all[todo.size + around.size:]
+        if rows2.size:
+            sub2 = sub if rows2.size == todo.size else sub.subset(rows2)
+            m_all, _ = _golden_max(lambda idx, m: _combined_score(sub2, m, guess_sub(m, rows2)),
+                                   np.concatenate([lo[go], np.maximum(peak_lo, sg[:, 0])[around],
+                                                   np.maximum(m_t - step, sg[:, 0])[apart]]),
+                                   np.concatenate([hi[go], np.minimum(peak_hi, sg[:, -1])[around],
+                                                   np.minimum(m_t + step, sg[:, -1])[apart]]), BEST_MACH_ITERATIONS)
+            m_gold[go] = m_all[:go.size]
+            m_near_thrust = m_gold.copy()
+            m_near_peak[around] = m_all[go.size:go.size + around.size]
+            m_near_thrust[apart] = m_all[go.size + around.size:]
         # The best of: the searches, the best grid speed, the buffet ceiling's best speed, the
         # thrust-best speed.
         candidates = [m_gold, sg[r, i], m_peak, m_near_peak, m_near_thrust, m_t]
-        results = [_fixed_mach(sub, m, guess_sub(m)) for m in candidates[:2]] + [at_peak]
+        results = [_resolved(sub, at_peak, go, m_gold, guess_sub(m_gold)), _fixed_mach(sub, sg[r, i], guess_sub(sg[r, i])),
+                   at_peak]
         results += [_resolved(sub, at_peak, around, m_near_peak, guess_sub(m_near_peak)),
                     _resolved(sub, results[0], apart, m_near_thrust, guess_sub(m_near_thrust)), final.take(todo)]
         scores = np.stack([_score(res, res.thrust_m) for res in results])
@@ -1359,8 +1484,6 @@ def _best_speed(phys: ClimbPhysics) -> Ceilings:
                                      _objective(at_grid["buffet_m"]).max(axis=1), _objective(final.buffet_m)])
     stall_best = closed_form_ceilings_m(cs, cs.mach_high)[1]
 
-    grid_flags = np.bitwise_or.reduce(at_grid["flags"], axis=1)
-    grid_flags[beyond_table] |= THRUST_DATA_TOP
     # A best just under the top of the thrust table may lie beside speeds between the grid's
     # that still climb there: where the best climb rate at the table top over the speeds within
     # a grid step is not negative, the grid missed a speed beyond the data.
@@ -1458,34 +1581,66 @@ def _shared_array(n: int, dtype) -> np.ndarray:
 
 
 def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | None:
-    """Chunks shared between forked workers, which take the next chunk as they finish one.
+    """Chunks shared between this process and ``processes - 1`` forked workers, each taking the
+    next chunk as it finishes one.
 
     fork: the workers read the parent's case arrays in place and write their results straight
     into shared memory, so nothing is pickled either way (a process pool sending results back
-    lost most of the second core, measured). None if a worker failed: the caller then solves
-    in this process, where a failure shows with its cause.
+    lost most of the second core, measured). This process works too: it is warm where a new
+    worker first pays for its memory, and one fork fewer. None if a chunk failed: the caller
+    then solves in this process, where a failure shows with its cause.
     """
     ctx = multiprocessing.get_context("fork")
     out = Ceilings.allocate(len(cases), _shared_array)
     next_chunk = ctx.Value("q", 0)
 
     def work():
+        while True:
+            with next_chunk.get_lock():
+                k = next_chunk.value
+                next_chunk.value = k + 1
+            if k >= len(bounds):
+                break
+            part = slice(*bounds[k])
+            out.put(part, _solve_chunk(cases.take(part)))
+
+    def child():
         try:
-            while True:
-                with next_chunk.get_lock():
-                    k = next_chunk.value
-                    next_chunk.value = k + 1
-                if k >= len(bounds):
-                    break
-                part = slice(*bounds[k])
-                out.put(part, _solve_chunk(cases.take(part)))
+            _keep_freed_memory()
+            work()
         except BaseException:  # noqa: BLE001  (reported by the exit code; re-raised by the serial run)
             os._exit(1)
         os._exit(0)
 
-    workers = [ctx.Process(target=work, daemon=True) for _ in range(processes)]
+    workers = [ctx.Process(target=child, daemon=True) for _ in range(processes - 1)]
     for w in workers:
         w.start()
-    for w in workers:
-        w.join()
-    return out if all(w.exitcode == 0 for w in workers) else None
+    try:
+        work()
+        failed = False
+    except Exception:  # noqa: BLE001  (the serial run shows it with its cause)
+        failed = True
+    except BaseException:
+        for w in workers:
+            w.kill()
+        raise
+    finally:
+        for w in workers:
+            w.join()
+    return None if failed or any(w.exitcode != 0 for w in workers) else out
+
+
+def _keep_freed_memory():
+    """In a worker: keep freed memory for reuse instead of giving it back to the system.
+
+    The solvers allocate and free thousands of temporary arrays; glibc returns the top of the
+    heap to the system whenever enough of it is free, and each page taken back later costs a
+    page fault (measured: about a tenth of a worker's time). A worker lives for one job.
+    """
+    try:
+        import ctypes
+        libc = ctypes.CDLL(None)
+        libc.mallopt(-1, 1 << 30)  # M_TRIM_THRESHOLD
+        libc.mallopt(-3, 1 << 26)  # M_MMAP_THRESHOLD: temporaries from the heap, not fresh maps
+    except (OSError, AttributeError):
+        pass

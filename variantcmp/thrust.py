@@ -136,6 +136,20 @@ class TableLapse:
         self._b = np.hstack([slope, nan_cols]).ravel()
         self._columns = self.mach.size + 2
         self._bins = _uniform_bins(xs)
+        self._probes = None  # probe_points(), made when first asked for
+
+    def probe_points(self):
+        """The table's altitudes and the points midway between them (ft, ascending) and the
+        fraction there per Mach column (points x (columns + 2), the last two NaN: a Mach outside
+        the table), as the interpolation gives it: the nodes' values and their means."""
+        if self._probes is None:
+            xs, z = self.altitude_ft, self.fraction
+            points = np.empty(2 * xs.size - 1)
+            points[0::2], points[1::2] = xs, 0.5 * (xs[1:] + xs[:-1])
+            at = np.empty((points.size, z.shape[1]))
+            at[0::2], at[1::2] = z, 0.5 * (z[1:] + z[:-1])
+            self._probes = points, np.hstack([at, np.full((points.size, 2), np.nan)])
+        return self._probes
 
     def __call__(self, altitude_ft, mach):
         return self.at(altitude_ft, self.mach_terms(np.broadcast_to(np.asarray(mach, dtype=float),
