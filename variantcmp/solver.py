@@ -1263,11 +1263,9 @@ def _grid_sweeps(phys: ClimbPhysics, grid) -> list[Ceilings]:
             # speed; a ceiling that rose from the middle to the next faster speed falls this way.
             last = columns[start].thrust_m
             peak = latest = _objective(last)
-            guess, half, before = last, FIRST_STEP_HALF_WIDTH_M, None
-            if start + 1 < g:
-                before = columns[start + 1].thrust_m
-                step = np.where(np.isfinite(last - before), last - before, 0.0)
-                guess, half = last + step, np.maximum(WARM_HALF_WIDTH_M, np.abs(step))
+            before = columns[start + 1].thrust_m if start + 1 < g else None
+            guess, half = _next_guess(last, before)
+            if before is not None:
                 fell = _objective(before) > peak + FALL_M
         for j in sweep:
             mach_j = np.ascontiguousarray(grid[:, j])
@@ -1302,12 +1300,18 @@ def _grid_sweeps(phys: ClimbPhysics, grid) -> list[Ceilings]:
             best_max = np.maximum(best_max, _objective(columns[j].max_altitude_m))
             peak = np.maximum(peak, value)
             before, last = last, (found if last is None else np.where(np.isfinite(found), found, last))
-            if before is None:
-                guess, half = last, FIRST_STEP_HALF_WIDTH_M
-            else:
-                step = np.where(np.isfinite(last - before), last - before, 0.0)
-                guess, half = last + step, np.maximum(WARM_HALF_WIDTH_M, np.abs(step))
+            guess, half = _next_guess(last, before)
     return columns
+
+
+def _next_guess(last, before):
+    """A grid speed's thrust-ceiling guess and window half-width from the sweep's previous two
+    speeds' (``before`` None: only one so far, a wide window around it): the line through them,
+    in a window as wide as their step."""
+    if before is None:
+        return last, FIRST_STEP_HALF_WIDTH_M
+    step = np.where(np.isfinite(last - before), last - before, 0.0)
+    return last + step, np.maximum(WARM_HALF_WIDTH_M, np.abs(step))
 
 
 def _best_speed(phys: ClimbPhysics) -> Ceilings:
