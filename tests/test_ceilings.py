@@ -56,13 +56,15 @@ def test_buffet_ceiling_ignores_the_day_and_flat_rating_holds_thrust(demo, w, de
     # Buffet onset at a fixed Mach is a pressure limit, n W = (gamma/2) p M^2 S CL_b (Anderson,
     # Introduction to Flight, eq. 4.83): the same at ISA and ISA+dev. A flat-rated engine keeps
     # its ISA thrust up to its flat-rate deviation (definition of flat rating, common practice,
-    # no source): with a table engine (thrust read at ISA) the thrust ceiling then moves only by
-    # the climb-rate terms, a few hundred ft at most, not by the thousands a density lapse gives.
+    # no source): its lapse is read at ISA temperature, so up to that deviation the thrust
+    # ceiling moves only by the climb-rate terms, a few hundred ft at most, not by the thousands
+    # a density lapse gives.
     f = ceilings_table(demo, Conditions(weights=_pct(w), isa_devs_c=(0.0, dev)))
     isa = f.filter(pl.col("isa_dev_c") == 0.0)
     day = f.filter(pl.col("isa_dev_c") == dev) if dev != 0.0 else isa
     np.testing.assert_allclose(isa["buffet_ceiling_ft"].to_numpy(), day["buffet_ceiling_ft"].to_numpy())
-    flat = [i for i, e in enumerate(isa["engine"]) if demo.engines[e].flat_rate_isa_dev_c is not None]
+    flat = [i for i, e in enumerate(isa["engine"])
+            if demo.engines[e].flat_rate_isa_dev_c is not None and dev <= demo.engines[e].flat_rate_isa_dev_c]
     assert flat
     moved = np.abs(isa["thrust_ceiling_ft"].to_numpy()[flat] - day["thrust_ceiling_ft"].to_numpy()[flat])
     assert np.all(moved < 400.0)
@@ -459,17 +461,98 @@ def test_answers_do_not_depend_on_chunks_or_processes():
         np.testing.assert_allclose(getattr(whole, name), getattr(serial, name), rtol=0, atol=1e-6, err_msg=name)
 
 
-def test_buffet_data_only_above_mmo_is_flagged_at_best_speed(tmp_path):
-    # The catalogue's contract (the best speed stays below MMO; a limit without data is shown as
-    # such, not as a number), no external source: buffet data that start above MMO leave buffet
-    # unchecked at every allowed speed, and the best speed says so, as a fixed Mach does.
+def test_buffet_data_only_above_mmo_leave_best_speed_without_an_answer(tmp_path):
+    # The catalogue's contract (the best speed stays below MMO; a limit that cannot be checked
+    # gives no maximum altitude, not a number), no external source: buffet data that start above
+    # MMO leave no allowed speed where every limit is known, and the row says why.
     cat = write_catalogue(tmp_path / "c.toml", [_engine()], [_variant(mmo=0.55, cruise_mach=0.5, buffet_mach=[0.6, 0.7, 0.8],
                                                                        buffet_cl=[1.0, 0.9, 0.7])])
     best = ceilings_table(cat, Conditions(mach="best")).row(0, named=True)
-    assert best["buffet_ceiling_ft"] is None and "buffet not checked" in best["note"]
-    assert best["mach"] <= 0.55 + 1e-9
-    fixed = ceilings_table(cat, Conditions(mach=best["mach"])).row(0, named=True)
-    assert fixed["max_altitude_ft"] == pytest.approx(best["max_altitude_ft"], abs=0.1)
+    assert best["max_altitude_ft"] is None and best["flight_level"] is None and best["limit"] is None
+    assert "no buffet data at the speeds allowed" in best["note"]
+
+
+def test_a_fixed_mach_outside_the_buffet_data_gives_no_maximum_altitude(tmp_path):
+    # The tool's contract (a limit that cannot be evaluated is shown as such, never as a number),
+    # no external source: buffet data over M0.70-0.80 only; at M0.65 the maximum altitude, flight
+    # level, limit and target columns are blank and the note names the missing data. The best
+    # speed only uses speeds where every limit is known: its Mach lies inside the data.
+    buffet = dict(buffet_mach=[0.70, 0.75, 0.80], buffet_cl=[0.80, 0.74, 0.62], mmo=0.82)
+    cat = write_catalogue(tmp_path / "c.toml", [_engine()], [_variant(**buffet)])
+    row = ceilings_table(cat, Conditions(mach=0.65, target_fl_ft=30000.0)).row(0, named=True)
+    for col in ("max_altitude_ft", "flight_level", "limit", "margin_ft", "reaches_target"):
+        assert row[col] is None, col
+    assert row["buffet_ceiling_ft"] is None and row["thrust_ceiling_ft"] is not None
+    assert "no buffet data at M0.650" in row["note"] and "M0.700-0.800" in row["note"]
+    best = ceilings_table(cat, Conditions(mach="best", weights=_pct(60, 80, 100), isa_devs_c=(0.0, 20.0)))
+    assert best["max_altitude_ft"].is_not_null().all()
+    assert best["mach"].min() >= 0.70 - 1e-9 and best["mach"].max() <= 0.80 + 1e-9
+    assert not best["note"].str.contains("buffet").any()
+    inside = ceilings_table(cat, Conditions(mach=0.75)).row(0, named=True)
+    assert inside["max_altitude_ft"] is not None and "buffet" not in inside["note"]
+    # Without any buffet data the variant has no buffet limit, as before.
+    plain = write_catalogue(tmp_path / "p.toml", [_engine()], [_variant(mmo=0.82)])
+    row = ceilings_table(plain, Conditions(mach=0.65)).row(0, named=True)
+    assert row["max_altitude_ft"] is not None and row["buffet_ceiling_ft"] is None and row["limit"] != "buffet"
+
+
+def _isa_scalar(h_m):
+    """Temperature (K) and pressure (Pa) of the ISA below 20 km (ICAO Doc 7488/3 closed forms,
+    written out here independently of variantcmp.atmosphere)."""
+    g, r = 9.80665, 287.05287
+    if h_m <= 11_000.0:
+        t = 288.15 - 0.0065 * h_m
+        return t, 101_325.0 * (t / 288.15) ** (g / (r * 0.0065))
+    return 216.65, 22_632.06 * np.exp(-g * (h_m - 11_000.0) / (r * 216.65))
+
+
+def _mattingly_alpha(mach, t_k, p_pa, tr):
+    """High-bypass turbofan lapse (Mattingly et al., Aircraft Engine Design, 2nd ed. 2002, ch. 2;
+    from memory), scalar, written out here."""
+    theta0, delta0 = t_k / 288.15 * (1 + 0.2 * mach**2), p_pa / 101_325.0 * (1 + 0.2 * mach**2) ** 3.5
+    return max(delta0 * (1 - 0.49 * np.sqrt(mach) - 3 * max(theta0 - tr, 0.0) / (1.5 + mach)), 0.0)
+
+
+@pytest.mark.parametrize("throttle_ratio", [0.90, 1.05])
+def test_flat_rated_turbofan_loses_its_hot_day_thrust_once(tmp_path, throttle_ratio):
+    # Independent check with scipy's brentq: at a fixed Mach the absolute ceiling is where thrust
+    # equals drag, n F0 alpha(M, T, p)/alpha_SLS x hot(dT) = q S CD0 + K W^2 / (q S), q = 0.7 p M^2
+    # (steady level flight, Anderson, Aircraft Performance and Design, ch. 5). Static thrust is
+    # the thrust at sea level, static, ISA (its definition: hence / alpha_SLS, which matters for a
+    # throttle ratio below 1); a flat-rated engine's lapse sees the ISA temperature and the loss
+    # per deg C above the flat-rate deviation is its only hot-day loss (flat rating, common
+    # practice, no source).
+    from scipy.optimize import brentq
+
+    n, f0, s_m2, a, e, cd0, w_kg, mach = 2, 120.0, 122.0, 9.5, 0.8, 0.019, 100_000.0, 0.60
+    engine = dict(model="turbofan", static_thrust_kn=f0, throttle_ratio=throttle_ratio)
+    flat = dict(engine, id="flat", flat_rate_isa_dev_c=15.0, hot_day_loss_per_c=0.010)
+    plain = dict(engine, id="plain")
+    cat = write_catalogue(tmp_path / "c.toml", [flat, plain], [_variant(
+        engine_options=["flat", "plain"], wing_area_m2=s_m2, aspect_ratio=a, oswald_e=e, cd0=cd0, cl_max=1.6,
+        mtow_kg=w_kg, cruise_mach=mach)])
+    devs = (0.0, 10.0, 15.0, 20.0, 30.0)
+    rows = ceilings_table(cat, Conditions(isa_devs_c=devs, climb_fpm=(0.0,))).rows(named=True)
+    k, w_n = 1.0 / (np.pi * a * e), w_kg * 9.80665
+    sls = _mattingly_alpha(0.0, 288.15, 101_325.0, throttle_ratio)
+
+    def ceiling_ft(dev, flat_rated):
+        def excess(h_m):
+            t_isa, p = _isa_scalar(h_m)
+            seen = t_isa if flat_rated else t_isa + dev
+            hot = 1.0 - 0.010 * max(dev - 15.0, 0.0) if flat_rated else 1.0
+            qs = 0.7 * p * mach**2 * s_m2
+            return n * f0 * 1e3 * _mattingly_alpha(mach, seen, p, throttle_ratio) / sls * hot - (qs * cd0 + k * w_n**2 / qs)
+        return brentq(excess, 0.0, 19_999.0, xtol=1e-6) / FT
+
+    for row in rows:
+        expected = ceiling_ft(row["isa_dev_c"], row["engine"] == "flat")
+        assert row["thrust_ceiling_ft"] == pytest.approx(expected, abs=0.5), (row["engine"], row["isa_dev_c"])
+    flat_ft = {r["isa_dev_c"]: r["thrust_ceiling_ft"] for r in rows if r["engine"] == "flat"}
+    plain_ft = {r["isa_dev_c"]: r["thrust_ceiling_ft"] for r in rows if r["engine"] == "plain"}
+    assert flat_ft[15.0] == pytest.approx(flat_ft[0.0], abs=0.1) and flat_ft[10.0] == pytest.approx(flat_ft[0.0], abs=0.1)
+    assert flat_ft[15.0] >= plain_ft[15.0] - 0.1  # the flat rating only ever adds thrust up to its deviation
+    assert flat_ft[30.0] < flat_ft[20.0] < flat_ft[15.0]
 
 
 def test_a_weight_below_any_empty_weight_is_questioned(demo):
@@ -495,7 +578,8 @@ def test_a_narrow_band_of_climbing_speeds_is_found(tmp_path):
 
     regional = tomllib.loads((bundled_fleet_dir() / "fernholt-regional.toml").read_text())
     survey = tomllib.loads((bundled_fleet_dir() / "tallon-fells-survey.toml").read_text())
-    engine = next(e for e in survey["engine"] if e["id"] == "wren-20")
+    engine = {k: v for k, v in next(e for e in survey["engine"] if e["id"] == "wren-20").items()
+              if k not in ("flat_rate_isa_dev_c", "hot_day_loss_per_c")}  # the bare lapse: hot days cost most
     airframe = {k: v for k, v in regional["variant"][0].items() if k not in ("buffet_mach", "buffet_cl", "mmo", "vmo_kt")}
     cat = write_catalogue(tmp_path / "c.toml", [engine], [{**airframe, "engine_options": ["wren-20"]}])
     cases, _ = build_cases(cat, [(airframe["id"], "wren-20")], lambda v: [v.mtow_kg], [25.0], [300.0], "best", 1.3)
@@ -636,3 +720,18 @@ def test_a_narrow_band_of_flyable_speeds_between_grid_speeds_is_found(tmp_path):
                                     processes=1)
     assert np.isnan(at_grid.max_altitude_m).all()  # no grid speed flies
     assert best.max_altitude_m[0] >= np.nanmax(scan.max_altitude_m) - 0.3 * FT
+
+
+def test_demo_turbofans_hold_to_their_flat_rating_then_lose_thousands_of_feet(demo):
+    # Fact of the trade (common practice, no source): a maximum-altitude table of a flat-rated
+    # engine holds to the flat-rating deviation and then falls by thousands of feet on hotter
+    # days. The demo's turbofans are flat rated, so the demo shows it.
+    rows = ceilings_table(demo, Conditions(weights=_pct(95.0), isa_devs_c=(-20.0, 0.0, 40.0)))
+    turbofans = [e for e in demo.engines.values() if e.model == "turbofan"]
+    assert turbofans and all(e.flat_rate_isa_dev_c is not None for e in turbofans)
+    for e in turbofans:
+        mine = rows.filter(pl.col("engine") == e.id)
+        thrust = {dev: mine.filter(pl.col("isa_dev_c") == dev)["thrust_ceiling_ft"].to_numpy() for dev in (-20.0, 0.0, 40.0)}
+        assert np.all(np.abs(thrust[-20.0] - thrust[0.0]) < 400.0)
+        hot = np.nan_to_num(thrust[40.0], nan=-np.inf)  # no thrust ceiling at all: cannot climb
+        assert np.all(hot < thrust[0.0] - 3000.0)

@@ -91,7 +91,12 @@ def climb_rate_fpm(fleet, variant, engine, weight_kg, isa_dev, alt_ft, mach):
     cd = v.cd0 + v.k * cl**2 + aero.wave_drag_coefficient(mach, cl, v.thickness_ratio, v.sweep_deg, v.korn_factor)
     n = v.engine_count * e.static_thrust_kn * 1000 * e.rating_fraction
     if e.model == "turbofan":
-        f = n * thrust.turbofan_lapse_fraction(mach, temp, p, e.throttle_ratio)
+        # Static thrust is the thrust at sea level, static, ISA (its definition): the lapse is
+        # divided by its value there. Flat rated: the lapse sees the ISA temperature (definition of
+        # flat rating, common practice, no source).
+        seen = t_isa if e.flat_rate_isa_dev_c is not None else temp
+        f = n * thrust.turbofan_lapse_fraction(mach, seen, p, e.throttle_ratio)
+        f = f / thrust.turbofan_lapse_fraction(0.0, 288.15, 101_325.0, e.throttle_ratio)
         f = f * thrust.hot_day_factor(isa_dev, e.flat_rate_isa_dev_c, e.hot_day_loss_per_c)
     elif e.model == "density-lapse":
         # Flat rated: thrust held at its ISA value up to the flat-rate deviation (definition of

@@ -130,8 +130,10 @@ def _scalar_excess(v, e, mass, dev, mach, climb_ms, h):
         frac = (rho / 1.225) ** e.lapse_exponent if rho >= rho11 else (rho11 / 1.225) ** e.lapse_exponent * (rho / rho11) ** m2
     elif e.model == "turbofan":
         ram = 1 + 0.2 * mach * mach
-        th0, d0 = t / 288.15 * ram, p / 101325 * ram**3.5
+        seen = t_isa if e.flat_rate_isa_dev_c is not None else t  # flat rated: ISA temperature
+        th0, d0 = seen / 288.15 * ram, p / 101325 * ram**3.5
         frac = max(d0 * (1 - 0.49 * math.sqrt(mach) - 3 * max(th0 - e.throttle_ratio, 0) / (1.5 + mach)), 0.0)
+        frac /= 1 - 2 * max(1 - e.throttle_ratio, 0)  # static thrust is the thrust at sea level, ISA
     else:
         frac = _scalar_table(e, h / FT, mach)
     hot = 1.0

@@ -25,7 +25,7 @@ from .atmosphere import (G0, GAMMA, LAYER_BASE_M, MODEL_TOP_M, R_AIR, RHO0_KG_M3
                          speed_of_sound_ms)
 from .cases import FLOOR_M, FT, MODEL_CODES, CaseSet, CaseView
 from .thrust import (density_lapse_from_logs, hot_day_factor, ram_temperature_ratio, turbofan_lapse_from_terms,
-                     turbofan_mach_terms)
+                     turbofan_mach_terms, turbofan_sea_level_fraction)
 
 LIMITS = ("thrust", "buffet", "stall", "certified", "cabin")
 
@@ -187,7 +187,11 @@ class ClimbPhysics:
         cs = self.cases
         self.w_n = cs.weight_kg * G0
         self.qs_per_pm2 = 0.5 * GAMMA * cs.wing_area_m2  # q S = (gamma/2) p M^2 S
+        # The thrust the lapse fraction multiplies: static thrust, the hot-day factor, and for
+        # turbofans 1 / the lapse at sea level (static thrust is the thrust there, TR < 1 too).
+        sea_level = np.where(cs.model_code == MODEL_CODES["turbofan"], turbofan_sea_level_fraction(cs.throttle_ratio), 1.0)
         self.thrust_n = cs.thrust_sls_n * hot_day_factor(cs.isa_dev_c, cs.flat_rate_isa_dev_c, cs.hot_day_loss_per_c)
+        self.thrust_n /= sea_level
         self.m_crit0, self.m_crit_slope = korn_coefficients(cs.thickness_ratio, cs.sweep_deg, cs.korn_factor)
         self.has_wave = bool(np.isfinite(self.m_crit0).any())
         # Density lapse above the tropopause: the exponent's change there, and ln(rho_11/rho0).
@@ -236,16 +240,16 @@ class ClimbPhysics:
         t_isa = t_isa if t_isa.shape == out.shape else np.broadcast_to(t_isa, out.shape)
         for code, tid, idx in self.groups:
             sub = (lambda a, idx=idx: col(a)[idx])  # noqa: E731  (per-case arrays of the group)
+            # A flat-rated engine holds its ISA thrust up to the flat-rate deviation (the loss
+            # above it is hot_day_factor): its lapse sees the ISA temperature, not the day's.
+            t_seen = np.where(sub(self.flat_rated), t_isa[idx], t[idx]) if code < 2 else None
             if code == 0:
-                # A flat-rated engine holds its ISA thrust up to the flat-rate deviation (the loss
-                # above it is hot_day_factor): its lapse sees ISA density, not the day's.
                 with np.errstate(divide="ignore"):
-                    t_seen = np.where(sub(self.flat_rated), t_isa[idx], t[idx])
                     ln_sigma = np.log(p[idx] / (R_AIR * RHO0_KG_M3 * t_seen))
                 frac = density_lapse_from_logs(ln_sigma, sub(cs.lapse_exponent), sub(self.ln_sigma11),
                                                sub(self.lapse_change))
             elif code == 1:
-                frac = turbofan_lapse_from_terms(t[idx], p[idx], sub(cs.throttle_ratio),
+                frac = turbofan_lapse_from_terms(t_seen, p[idx], sub(cs.throttle_ratio),
                                                  tuple(sub(x) for x in terms["turbofan"]))
             else:
                 j, ty = terms["table"]
@@ -497,7 +501,7 @@ def _turbofan_switch_between(phys: ClimbPhysics, altitude_m, low, high):
     :func:`variantcmp.thrust.turbofan_lapse_fraction`) between two speeds at an altitude: the
     excess climb rate has a kink in Mach there."""
     cs = phys.cases
-    t = isa_state(altitude_m)[0] + cs.isa_dev_c
+    t = isa_state(altitude_m)[0] + np.where(np.isnan(cs.flat_rate_isa_dev_c), cs.isa_dev_c, 0.0)  # flat rated: ISA
     limit_k = T0_K * cs.throttle_ratio  # theta0 = TR
     with np.errstate(invalid="ignore"):
         return (cs.model_code == MODEL_CODES["turbofan"]) & (
@@ -1175,10 +1179,12 @@ def _fixed_mach(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_needed=Tru
             sub = phys if todo.size == len(cs) else phys.subset(todo)
             guess = None if thrust_guess_m is None else thrust_guess_m[todo]
             thrust[todo], flags[todo] = thrust_ceiling_m(sub, mach[todo], guess, tol_m=tol_m)
+    # Buffet data that stop short of this Mach: the buffet limit cannot be checked, so no maximum
+    # altitude either (as a thrust table's Mach gap); NaN in the stack makes the minimum NaN.
     flags[(cs.buffet_id >= 0) & np.isnan(buffet)] |= NO_BUFFET_AT_MACH
     # A ceiling beyond the thrust table is unknown; the other limits may still bind below its top.
     thrust_for_min = np.where(flags & THRUST_DATA_TOP, np.inf, thrust)
-    stack = np.stack([thrust_for_min, np.where(np.isnan(buffet), np.inf, buffet), stall, cs.certified_m, cabin])
+    stack = np.stack([thrust_for_min, buffet, stall, cs.certified_m, cabin])
     with np.errstate(invalid="ignore"):
         max_alt = stack.min(axis=0)
         limit = np.where(np.isnan(max_alt) | np.isinf(max_alt), -1, np.argmin(np.where(np.isnan(stack), np.inf, stack), axis=0))

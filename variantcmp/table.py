@@ -93,8 +93,9 @@ def _notes(cases, res, climb_fpm, mtow_kg) -> list[str]:
         if f & s.THRUST_DATA_TOP:
             parts.append(f"still climbing at the thrust table top ({cases.top_m[i] / FT:,.0f} ft)")
         if f & s.NO_BUFFET_AT_MACH:
-            parts.append(f"no buffet data at M{cases.mach[i]:.3f}: buffet not checked" if not best[i] else
-                         f"no buffet data in the speed range: buffet not checked (best M{res.mach[i]:.3f})")
+            data = f"buffet data M{cases.buffet_low[cases.buffet_id[i]]:.3f}-{cases.buffet_high[cases.buffet_id[i]]:.3f}"
+            parts.append(f"no buffet data at M{cases.mach[i]:.3f} ({data}): buffet cannot be checked" if not best[i] else
+                         f"no buffet data at the speeds allowed ({data}): buffet cannot be checked")
         if f & s.ABOVE_MMO:
             parts.append(f"M{cases.mach[i]:.3f} above MMO {cases.mmo[i]:.3f}")
         if f & s.BELOW_VMO_FLOOR:

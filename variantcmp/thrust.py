@@ -95,11 +95,21 @@ def turbofan_lapse_from_terms(temperature_k, pressure_pa, throttle_ratio, terms)
     return np.maximum(delta0 * (base - hot), 0.0)
 
 
+def turbofan_sea_level_fraction(throttle_ratio):
+    """:func:`turbofan_lapse_fraction` at sea level, static, ISA (same source): 1 for TR >= 1,
+    1 - 2 (1 - TR) below (theta0 = 1 is then past the break). The solver divides by it so that an
+    engine's static thrust is its thrust there whatever its throttle ratio."""
+    tr = np.asarray(throttle_ratio, dtype=float)
+    return np.maximum(1.0 - 2.0 * np.maximum(1.0 - tr, 0.0), 0.0)
+
+
 def hot_day_factor(isa_dev_c, flat_rate_isa_dev_c=None, hot_day_loss_per_c=0.0):
     """Flat-rated thrust: 1 up to the flat-rate deviation, then falling linearly per degree.
 
     factor = 1 - loss x max(0, dT - dT_flat), not below zero, applied to the thrust the engine's
-    lapse model gives at ISA (a flat-rated density-lapse engine sees ISA density). Common practice
+    lapse model gives at ISA: a flat-rated engine's lapse sees the ISA temperature of the pressure
+    altitude (the density for the density lapse, theta0 for the turbofan; Mach and pressure kept),
+    so its hot-day loss comes from this factor alone. Common practice
     approximation of a flat-rated engine's hot-day loss (no single published source; see e.g.
     Torenbeek app. H for the flat-rating concept).
     """
