@@ -129,7 +129,7 @@ def test_ceiling_above_model_top_is_flagged(tmp_path):
     import dataclasses
 
     from variantcmp import solver
-    from variantcmp.table import _notes, selected_pairs
+    from variantcmp.table import case_notes, selected_pairs
     from variantcmp.cases import build_cases
 
     cat = write_catalogue(tmp_path / "c.toml", [_engine(static_thrust_kn=1000.0, lapse_exponent=0.1)],
@@ -139,7 +139,7 @@ def test_ceiling_above_model_top_is_flagged(tmp_path):
     res = solver.solve_ceilings(cases)
     assert np.isposinf(res.max_altitude_m[0]) and res.limit[0] == -1
     assert res.flags[0] & solver.ABOVE_MODEL_TOP
-    assert "model top" in _notes(cases, res, index.climb_fpm, np.full(1, 500.0))[0]
+    assert "model top" in case_notes(cases, res, index.climb_fpm, np.full(1, 500.0), np.full(1, 150.0))[0]
 
 
 def test_thrust_table_top_is_not_extrapolated(tmp_path):
@@ -555,13 +555,20 @@ def test_flat_rated_turbofan_loses_its_hot_day_thrust_once(tmp_path, throttle_ra
     assert flat_ft[30.0] < flat_ft[20.0] < flat_ft[15.0]
 
 
-def test_a_weight_below_any_empty_weight_is_questioned(demo):
-    # Fact of the trade (from memory): a jet transport's operating empty weight is about 45-60 %
-    # of its MTOW, so a weight under 30 % of MTOW is a unit slip (15 typed for 15 t gives 15 kg).
-    rows = ceilings_table(demo, Conditions(weights=(WeightSpec(15.0, "kg"), WeightSpec(60.0, "%mtow"))))
+def test_a_weight_below_the_empty_weight_is_computed_and_flagged(demo, tmp_path):
+    # Definition of operating empty weight (the aircraft cannot weigh less), and a fact of the
+    # trade where a variant gives none (from memory): a jet transport's operating empty weight is
+    # about 45-60 % of its MTOW, so a weight under 30 % of MTOW is a unit slip.
+    rows = ceilings_table(demo, Conditions(weights=(WeightSpec(15.0, "kg"), WeightSpec(70.0, "%mtow"))))
     light = rows.filter(pl.col("weight_kg") == 15.0)
-    assert light.height > 0 and light["note"].str.contains("check the weight's unit").all()
-    assert not rows.filter(pl.col("weight_kg") > 15.0)["note"].str.contains("check the weight").any()
+    assert light.height > 0 and light["note"].str.contains("below the empty weight").all()
+    assert light["below_empty_weight"].all() and light["max_altitude_ft"].is_not_null().any()
+    assert not rows.filter(pl.col("weight_kg") > 15.0)["note"].str.contains("empty weight").any()
+    assert rows["weight_pct_mtow"].filter(rows["weight_kg"] > 15.0).round(6).unique().to_list() == [70.0]
+    cat = write_catalogue(tmp_path / "c.toml", [_engine()], [_variant(oew_kg=24_000.0), _variant(id="a2")])
+    rows = ceilings_table(cat, Conditions(weights=_pct(35.0, 58.0)))
+    flagged = {(r["variant"], round(r["weight_pct_mtow"])) for r in rows.iter_rows(named=True) if r["below_empty_weight"]}
+    assert flagged == {("a1", 35), ("a1", 58)}  # a1: OEW 60 % of MTOW; a2: no OEW, 30 % floor
 
 
 def test_a_narrow_band_of_climbing_speeds_is_found(tmp_path):

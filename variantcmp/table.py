@@ -17,7 +17,7 @@ from .units import OptionError, WeightSpec
 COLUMNS = (
     "variant", "engine", "weight_kg", "isa_dev_c", "mach", "climb_fpm", "thrust_ceiling_ft",
     "buffet_ceiling_ft", "stall_ceiling_ft", "certified_ceiling_ft", "cabin_ceiling_ft",
-    "max_altitude_ft", "flight_level", "limit", "note", "over_mtow",
+    "max_altitude_ft", "flight_level", "limit", "note", "over_mtow", "weight_pct_mtow", "below_empty_weight",
 )
 TARGET_COLUMNS = ("target_ft", "margin_ft", "reaches_target")
 LIMIT_COLUMNS = dict(zip(s.LIMITS, ("thrust_ceiling_ft", "buffet_ceiling_ft", "stall_ceiling_ft",
@@ -73,11 +73,18 @@ def _ft(values_m) -> np.ndarray:
     return np.where(np.isfinite(out), out, np.nan)
 
 
-# Below this share of MTOW no transport aircraft flies (its empty weight is more): likely a unit slip.
+# Below this share of MTOW no transport aircraft flies (its empty weight is more): likely a unit
+# slip. The floor where a variant gives no operating empty weight.
 LIGHT_FRACTION = 0.3
 
 
-def _notes(cases, res, climb_fpm, mtow_kg) -> list[str]:
+def empty_weight_floor_kg(variant) -> float:
+    """The lightest weight a variant can fly at: its operating empty weight, or LIGHT_FRACTION of
+    MTOW where the catalogue gives none."""
+    return variant.oew_kg if variant.oew_kg is not None else LIGHT_FRACTION * variant.mtow_kg
+
+
+def case_notes(cases, res, climb_fpm, mtow_kg, floor_kg) -> list[str]:
     notes = []
     best = np.isnan(cases.mach)
     for i in range(len(cases)):  # text only, per row: the numbers are all computed above
@@ -111,9 +118,9 @@ def _notes(cases, res, climb_fpm, mtow_kg) -> list[str]:
             parts.append(f"{s.LIMITS[res.limit[i]]} and {s.LIMITS[res.co_limit[i]]} bind together")
         if cases.over_mtow[i]:
             parts.append("above MTOW")
-        elif cases.weight_kg[i] < LIGHT_FRACTION * mtow_kg[i]:
-            parts.append(f"only {100.0 * cases.weight_kg[i] / mtow_kg[i]:.0f} % of MTOW: check the weight's unit "
-                         "(a bare number is kg)")
+        elif cases.weight_kg[i] < floor_kg[i]:
+            parts.append(f"below the empty weight ({floor_kg[i]:,.0f} kg, {100.0 * floor_kg[i] / mtow_kg[i]:.0f} % of MTOW): "
+                         "check the weight")
         notes.append("; ".join(parts))
     return notes
 
@@ -122,6 +129,9 @@ def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
     """One row per variant x engine x weight x ISA deviation x climb criterion."""
     cases, index, res = solve(catalogue, conditions)
     climb_fpm = index.climb_fpm
+    variants = [catalogue.variants[v] for v in index.variant_ids]
+    mtow_kg = np.array([v.mtow_kg for v in variants])[cases.variant_index]
+    floor_kg = np.array([empty_weight_floor_kg(v) for v in variants])[cases.variant_index]
     max_ft = _ft(res.max_altitude_m)
     limit_names = np.array(list(s.LIMITS) + ["none"], dtype=object)
     has_alt = np.isfinite(max_ft)
@@ -142,9 +152,10 @@ def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
         "max_altitude_ft": max_ft,
         "flight_level": np.where(has_alt, np.floor(np.where(has_alt, max_ft, 0.0) / 100.0), np.nan),
         "limit": pl.Series(limit.tolist(), dtype=pl.String),
-        "note": _notes(cases, res, climb_fpm,
-                       np.array([catalogue.variants[v].mtow_kg for v in index.variant_ids])[cases.variant_index]),
+        "note": case_notes(cases, res, climb_fpm, mtow_kg, floor_kg),
         "over_mtow": cases.over_mtow,
+        "weight_pct_mtow": 100.0 * cases.weight_kg / mtow_kg,
+        "below_empty_weight": cases.weight_kg < floor_kg,
     }, nan_to_null=True).with_columns(pl.col("flight_level").cast(pl.Int64))
     if conditions.target_fl_ft is not None:
         frame = frame.with_columns(target_ft=pl.lit(float(conditions.target_fl_ft))).with_columns(
