@@ -1,7 +1,7 @@
 """Catalogue loading and validation: the demo fleets, the broken corpus, fuzzing.
 
 The accepted ranges are our own engineering choice (plausibility bounds set in
-variantcmp/catalogue.py), so validation tests need no outside source; the one physical
+variantcmp/catalogue/schema.py), so validation tests need no outside source; the one physical
 formula checked here (K = 1 / (pi A e)) names its textbook.
 """
 
