@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+import difflib
+from dataclasses import dataclass, replace
 
 import numpy as np
 import polars as pl
@@ -11,7 +12,7 @@ from . import solver as s
 from .aero import best_lift_to_drag
 from .atmosphere import G0
 from .cases import FT, build_cases
-from .units import OptionError, WeightSpec
+from .units import OptionError, WeightSpec, shown
 
 #: Columns of a ceilings table, in order (the target columns are added when a target is set).
 COLUMNS = (
@@ -45,17 +46,35 @@ def selected_pairs(catalogue, conditions: Conditions) -> list[tuple[str, str]]:
             if not conditions.engines or eid in conditions.engines]
 
 
-def check_selection(catalogue, conditions: Conditions) -> None:
-    """Refuse unknown variant or engine ids, or a selection with no variant x engine pair."""
-    for what, given, known in (("--variant", conditions.variants, catalogue.variants),
-                               ("--engine", conditions.engines, catalogue.engines)):
-        unknown = [i for i in given if i not in known]
-        if unknown:
-            raise OptionError(f"{what}: unknown id {', '.join(repr(u) for u in unknown)} in {catalogue.path}; "
-                              f"expected one of: {', '.join(known)}")
+def resolve_ids(given: tuple[str, ...], known, what: str, path) -> tuple[str, ...]:
+    """Ids as typed -> the catalogue's ids: exact, else the one that differs only in case; an
+    unknown id is refused with the closest known one ("did you mean") and the list."""
+    out = []
+    for ident in given:
+        if ident in known:
+            out.append(ident)
+            continue
+        same = [k for k in known if k.lower() == ident.lower()]
+        if len(same) == 1:
+            out.append(same[0])
+            continue
+        close = difflib.get_close_matches(ident.lower(), [k.lower() for k in known], n=1, cutoff=0.6)
+        hint = next((f" (did you mean {k!r}?)" for k in known if close and k.lower() == close[0]), "")
+        raise OptionError(f"{what}: unknown id {shown(ident)} in {path}{hint}; expected one of: {', '.join(known)}")
+    return tuple(dict.fromkeys(out))
+
+
+def check_selection(catalogue, conditions: Conditions) -> Conditions:
+    """The conditions with their variant and engine ids resolved (see :func:`resolve_ids`);
+    OptionError for an unknown id or a selection with no variant x engine pair."""
+    conditions = replace(
+        conditions,
+        variants=resolve_ids(conditions.variants, catalogue.variants, "--variant", catalogue.path),
+        engines=resolve_ids(conditions.engines, catalogue.engines, "--engine", catalogue.path))
     if not selected_pairs(catalogue, conditions):
         raise OptionError(f"--variant/--engine: no variant in {catalogue.path} offers the selected engine(s) "
                           f"{', '.join(conditions.engines)}")
+    return conditions
 
 
 def solve(catalogue, conditions: Conditions):
@@ -164,23 +183,34 @@ def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
     return frame
 
 
-def variant_figures(catalogue, variant_id: str) -> dict:
-    """Derived figures of a variant: polar, wing loading, thrust-to-weight, absolute ceiling.
+def fleet_figures(catalogue, variant_ids=None) -> dict[str, dict]:
+    """Derived figures per variant: polar, wing loading, thrust-to-weight, absolute ceiling.
 
-    The absolute ceiling is the thrust ceiling at zero residual climb, best speed, MTOW, ISA.
+    The absolute ceiling is the thrust ceiling at zero residual climb, best speed, MTOW, ISA; one
+    solve for every variant x engine option at once. Dict-valued figures are keyed by engine id.
     """
-    v = catalogue.variants[variant_id]
-    ld_max, cl_star = best_lift_to_drag(v.cd0, v.k)
-    tw = {eid: v.engine_count * catalogue.engines[eid].static_thrust_kn * 1000.0 / (v.mtow_kg * G0)
-          for eid in v.engine_options}
-    cond = Conditions(mach="best", climb_fpm=(0.0,), variants=(variant_id,))
-    cases, index, res = solve(catalogue, cond)
-    absolute = dict(zip((index.engine_ids[i] for i in cases.engine_index), _ft(res.thrust_m).tolist()))
-    return {
-        "K": float(v.k),
-        "L/D max": float(ld_max),
-        "CL at L/D max": float(cl_star),
-        "Wing loading kg/m2": v.mtow_kg / v.wing_area_m2,
-        "T/W static at MTOW": tw,
-        "Absolute ceiling ft (MTOW, ISA)": {k: (None if np.isnan(x) else x) for k, x in absolute.items()},
-    }
+    ids = tuple(catalogue.variants) if variant_ids is None else tuple(variant_ids)
+    cases, index, res = solve(catalogue, Conditions(mach="best", climb_fpm=(0.0,), variants=ids))
+    thrust_ft = _ft(res.thrust_m)
+    absolute: dict[str, dict] = {vid: {} for vid in ids}
+    for vi, ei, ft in zip(cases.variant_index.tolist(), cases.engine_index.tolist(), thrust_ft.tolist()):
+        absolute[index.variant_ids[vi]][index.engine_ids[ei]] = None if np.isnan(ft) else ft
+    figures = {}
+    for vid in ids:
+        v = catalogue.variants[vid]
+        ld_max, cl_star = best_lift_to_drag(v.cd0, v.k)
+        figures[vid] = {
+            "K": float(v.k),
+            "L/D max": float(ld_max),
+            "CL at L/D max": float(cl_star),
+            "Wing loading kg/m²": v.mtow_kg / v.wing_area_m2,
+            "T/W static at MTOW": {eid: v.engine_count * catalogue.engines[eid].static_thrust_kn * 1000.0
+                                   / (v.mtow_kg * G0) for eid in v.engine_options},
+            "Absolute ceiling ft (MTOW, ISA)": absolute[vid],
+        }
+    return figures
+
+
+def variant_figures(catalogue, variant_id: str) -> dict:
+    """:func:`fleet_figures` of one variant."""
+    return fleet_figures(catalogue, (variant_id,))[variant_id]

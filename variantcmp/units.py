@@ -27,6 +27,7 @@ CLIMB_CRITERIA_FPM: dict[str, float] = {"absolute": 0.0, "service": 100.0, "crui
 
 # Plausibility bounds: values outside are typing mistakes, not aircraft.
 MAX_WEIGHT_KG = 2.0e6
+BARE_KG_MIN = 1000.0  # a bare number below this is refused as a weight (kg meant as t or %MTOW)
 MAX_WEIGHT_PCT_MTOW = 200.0
 ISA_DEV_RANGE_C = (-80.0, 70.0)
 MAX_CLIMB_FPM = 10000.0
@@ -40,8 +41,17 @@ class OptionError(ValueError):
     """A bad user value; str() is the one-line message to show."""
 
 
+SHOWN_CHARS = 40  # a value longer than this is cut in messages (the user has it in full already)
+
+
+def shown(text: str) -> str:
+    """What the user typed, quoted for a message, cut to SHOWN_CHARS characters."""
+    text = str(text).strip()
+    return repr(text if len(text) <= SHOWN_CHARS else text[: SHOWN_CHARS - 3] + "...")
+
+
 def _fail(option: str, text: str, expected: str) -> OptionError:
-    return OptionError(f"{option}: cannot use {text.strip()!r}: expected {expected}")
+    return OptionError(f"{option}: cannot use {shown(text)}: expected {expected}")
 
 
 def _items(text: str, option: str, expected: str) -> list[str]:
@@ -50,7 +60,7 @@ def _items(text: str, option: str, expected: str) -> list[str]:
         raise _fail(option, str(text or ""), expected)
     items = [item.strip() for item in str(text).split(",")]
     if any(not item for item in items):
-        raise OptionError(f"{option}: empty item in {text.strip()!r}: expected {expected}")
+        raise OptionError(f"{option}: empty item in {shown(text)}: expected {expected}")
     return items
 
 
@@ -113,6 +123,10 @@ def parse_weight(text: str, option: str = "--weight") -> WeightSpec:
         raise _fail(option, raw, _WEIGHT_EXPECTED)
     unit, factor = _WEIGHT_UNITS[match.group(2)]
     value = _number(match.group(1)) * factor
+    if not match.group(2) and 0.0 < value < BARE_KG_MIN:
+        # No aircraft this tool models weighs under a tonne: a bare 70 is 70 t or 70 %MTOW meant.
+        raise OptionError(f"{option}: cannot use {shown(raw)}: a bare number is kg, and {value:g} kg is no "
+                          f"aircraft weight; did you mean {value:g}t or {value:g}%mtow?")
     if unit == "%mtow":
         if not 0.0 < value <= MAX_WEIGHT_PCT_MTOW:
             raise _fail(option, raw, f"a share of MTOW above 0 and at most {MAX_WEIGHT_PCT_MTOW:g} %")
@@ -128,7 +142,7 @@ def parse_weights(text: str, option: str = "--weight") -> list[WeightSpec]:
     for before, item in zip(items, items[1:]):
         if re.fullmatch(r"\d{3}", item) and re.fullmatch(r"\d{1,3}", before):
             raise OptionError(
-                f"{option}: {text.strip()!r} looks like a number with a thousands separator; "
+                f"{option}: {shown(text)} looks like a number with a thousands separator; "
                 "commas separate list items: write 62000 or 62t"
             )
     return _dedupe([parse_weight(item, option) for item in items])
@@ -201,7 +215,7 @@ def parse_climb(text: str, option: str = "--climb") -> tuple[float, str]:
         raise _fail(option, raw, _CLIMB_EXPECTED)
     if value < 0:
         raise OptionError(
-            f"{option}: cannot use {raw!r}: a residual rate of climb must be 0 ft/min or more "
+            f"{option}: cannot use {shown(raw)}: a residual rate of climb must be 0 ft/min or more "
             "(0 = absolute ceiling)"
         )
     if value > MAX_CLIMB_FPM:
@@ -286,9 +300,12 @@ def parse_flight_level(text: str, option: str = "--target") -> float:
             altitude_ft = value * 100.0 if abs(value) < 1000 else value
     if altitude_ft is None:
         raise _fail(option, raw, _FL_EXPECTED)
-    low, high = ALTITUDE_RANGE_FT
-    if not low <= altitude_ft <= high:
-        raise _fail(option, raw, f"an altitude from {low:,.0f} ft to {high:,.0f} ft")
+    high = ALTITUDE_RANGE_FT[1]
+    if altitude_ft < 0.0:
+        # Flight levels are never negative, and a level at the model floor says nothing.
+        raise _fail(option, raw, f"a level at or above FL000 (0 ft), up to {high:,.0f} ft")
+    if altitude_ft > high:
+        raise _fail(option, raw, f"an altitude from 0 ft to {high:,.0f} ft (the top of the atmosphere model)")
     return altitude_ft + 0.0
 
 
