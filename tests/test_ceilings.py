@@ -742,3 +742,22 @@ def test_demo_turbofans_hold_to_their_flat_rating_then_lose_thousands_of_feet(de
         assert np.all(np.abs(thrust[-20.0] - thrust[0.0]) < 400.0)
         hot = np.nan_to_num(thrust[40.0], nan=-np.inf)  # no thrust ceiling at all: cannot climb
         assert np.all(hot < thrust[0.0] - 3000.0)
+
+
+def test_notes_never_print_infinities_or_altitudes_outside_the_model(tmp_path):
+    # Fuzzing found "exceeds VMO below inf ft" for a 1 kt VMO, and 105,577 ft (above the model
+    # top) at 50 kt; such VMOs are now refused (see test_catalogue), and at the slowest allowed
+    # VMO the note names no altitude the model does not have.
+    import re
+
+    from variantcmp.catalogue import CatalogueError
+
+    with pytest.raises(CatalogueError, match="vmo_kt"):
+        write_catalogue(tmp_path / "bad.toml", [_engine()], [_variant(vmo_kt=1.0)])
+    cat = write_catalogue(tmp_path / "c.toml", [_engine()], [_variant(vmo_kt=80.0, mmo=0.85)])
+    rows = ceilings_table(cat, Conditions(weights=_pct(60, 100), isa_devs_c=(0.0, 30.0), mach=0.84))
+    notes = " ".join(rows["note"].to_list())
+    assert "exceeds VMO" in notes
+    assert not re.search(r"\binf\b|\bnan\b", notes)
+    for feet in re.findall(r"([\d,]+) ft", notes):
+        assert -2000 <= int(feet.replace(",", "")) <= 280_000

@@ -450,3 +450,129 @@ def test_empty_ids_and_empty_catalogue_are_refused(capsys):
     assert "empty id list" in capsys.readouterr().err
     assert main(["ceilings", ""]) == 2
     assert "catalogue argument is empty" in capsys.readouterr().err
+
+
+# --- what a new user tripped over (each fails on the code before its fix) ---------------------
+
+def test_a_bare_small_weight_is_refused_with_a_hint(capsys):
+    # A bare number is kg; 70 kg is no aircraft weight: the user meant 70 t or 70 %MTOW.
+    status, out, err = run(capsys, "ceilings", "--weight", "70")
+    assert status == 2 and out == ""
+    assert "did you mean 70t or 70%mtow?" in err
+    assert run(capsys, "ceilings", "--weight", "45000", "--format", "csv")[0] == 0
+
+
+def test_sketches_fall_back_to_ascii_on_a_dumb_terminal(capsys, monkeypatch):
+    monkeypatch.setenv("TERM", "dumb")
+    status, out, err = run(capsys, "envelope", "--variant", "v88", "--engine", "ossel-78", "--size", "80x22")
+    assert status == 0, err
+    assert out.isascii() or set(out) - set(map(chr, range(128))) <= {"—", "±"}
+    assert not any(0x2800 <= ord(ch) <= 0x28FF for ch in out)  # no braille dots
+
+
+def test_piped_check_is_as_wide_as_columns_with_no_trailing_spaces(capsys, monkeypatch):
+    for width in ("100", None):
+        if width:
+            monkeypatch.setenv("COLUMNS", width)
+        else:
+            monkeypatch.delenv("COLUMNS", raising=False)
+        status, out, err = run(capsys, "check")
+        assert status == 0, err
+        lines = out.splitlines()
+        assert not any(line != line.rstrip() for line in lines)
+        limit = int(width) if width else 160
+        assert max(len(line) for line in lines if not line.startswith("Caution")) <= limit
+
+
+@pytest.mark.parametrize("args, fragment", [
+    (["--wieght", "70t"], "unknown option '--wieght' (did you mean '--weight'?); see 'variantcmp ceilings --help'"),
+    (["--weight", "70t", "80t"], "--weight takes one value, a comma list: --weight 70t,80t"),
+    (["--mach", "0.7", "--mach", "0.8"], "--mach: given twice ('0.7', then '0.8')"),
+    (["--variant", "v8"], "did you mean 'v88'?"),
+    (["--format", "cvs"], "did you mean 'csv'?"),
+])
+def test_command_line_mistakes_get_a_hint(capsys, args, fragment):
+    status, out, err = run(capsys, "ceilings", *args)
+    assert status == 2 and out == "" and "Traceback" not in err
+    assert fragment in err
+
+
+def test_ids_and_keywords_match_whatever_their_case(capsys):
+    status, out, err = run(capsys, "ceilings", "--variant", "V88", "--engine", "OSSEL-78", "--climb", "Service",
+                           "--mach", "BEST", "--format", "CSV")
+    assert status == 0, err
+    frame = read_csv(out)
+    assert set(frame["variant"]) == {"v88"} and set(frame["engine"]) == {"ossel-78"}
+
+
+def test_an_unknown_catalogue_name_lists_the_bundled_fleets(capsys):
+    status, out, err = run(capsys, "ceilings", "fernholt")
+    assert status == 2 and out == ""
+    assert "did you mean 'fernholt-regional'?" in err and "tallon-fells-survey" in err
+
+
+def test_every_option_value_is_checked(capsys):
+    # Fuzzing found --OPTION=-- giving a traceback (argparse passes on an empty list) or being
+    # silently ignored: every value option of every command gets a usage error instead.
+    from variantcmp.cli import build_parser
+
+    parser = build_parser()
+    subs = next(a for a in parser._actions if a.__class__.__name__ == "_SubParsersAction").choices
+    for name, sub in subs.items():
+        for action in sub._actions:
+            if not action.option_strings or action.nargs is not None or action.option_strings[0] == "--help":
+                continue
+            option = action.option_strings[-1]
+            status, out, err = run(capsys, name, f"{option}=--")
+            assert status == 2 and "Traceback" not in err, (name, option, err)
+            assert option in err, (name, option, err)
+
+
+@pytest.mark.parametrize("target", ["FL-10", "-2000ft", "-1"])
+def test_targets_below_the_floor_are_refused(capsys, target):
+    status, out, err = run(capsys, "ceilings", f"--target={target}")
+    assert status == 2 and "FL000" in err and out == ""
+
+
+def test_long_values_are_cut_in_messages(capsys):
+    status, _, err = run(capsys, "ceilings", "--isa", "x" * 1000)
+    assert status == 2 and len(err) < 300 and "..." in err
+
+
+def test_exports_keep_a_stated_precision(capsys):
+    # README: ft to 0.01, kg to 0.1, deg C to 0.01, Mach to 0.0001.
+    status, out, err = run(capsys, "ceilings", "--weight", "140000lb,91.7%mtow", "--isa=-7.123", "--mach", "best",
+                           "--format", "csv")
+    assert status == 0, err
+    header, *rows = out.splitlines()
+    names = header.split(",")
+    decimals = {"max_altitude_ft": 2, "thrust_ceiling_ft": 2, "weight_kg": 1, "isa_dev_c": 2, "mach": 4}
+    for row in rows:
+        for name, value in zip(names, row.split(",")):
+            if name in decimals and "." in value:
+                assert len(value.split(".")[1]) <= decimals[name], (name, value)
+    frame = read_csv(out)
+    assert frame["weight_kg"].round(1).to_list() == frame["weight_kg"].to_list()
+
+
+def test_help_says_what_best_speed_limit_columns_are(capsys):
+    status, out, _ = run(capsys, "ceilings", "--help")
+    assert status == 0 and "each limit's own best over speed" in squash(out)
+
+
+def test_a_large_fleet_table_prints_about_as_fast_as_its_csv(capsys, tmp_path):
+    # Not a timed assertion: the table is laid out once, so it must not need more than a few
+    # renders of work. Checks the layout stays right at thousands of rows.
+    import tomllib
+
+    import tomli_w
+
+    doc = tomllib.loads(demo_catalogue_path().read_text())
+    base = doc["variant"][1]
+    doc["variant"] = [dict(base, id=f"x{i}", label=f"x{i}") for i in range(60)]
+    path = tmp_path / "many.toml"
+    path.write_text(tomli_w.dumps(doc))
+    status, out, err = run(capsys, "ceilings", str(path), "--isa=0,15,30")
+    assert status == 0, err
+    rows = [line for line in out.splitlines() if line.startswith("x")]
+    assert len(rows) == 60 * len(base["engine_options"]) * 3

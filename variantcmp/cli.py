@@ -133,6 +133,16 @@ def stdout_is_terminal() -> bool:
     return sys.stdout.isatty()
 
 
+def _stray_list_value(sub, argv: list[str], catalogue: str | None) -> str | None:
+    """A second word after a list option ("--weight 70t 80t") that argparse took for the
+    catalogue: returned so that it is reported as such, not as a missing file."""
+    if sub is None or catalogue is None or looks_like_catalogue(catalogue) or catalogue not in argv:
+        return None
+    at = argv.index(catalogue)
+    lists = {s for a in sub._actions if isinstance(a, argparse._AppendAction) for s in a.option_strings}
+    return catalogue if at >= 2 and argv[at - 2] in lists else None
+
+
 def _run_app(catalogue_text: str | None) -> int:
     if not stdout_is_terminal():
         print(f"{PROG}: the terminal app needs a terminal, and stdout is not one; for results in a file "
@@ -156,6 +166,9 @@ def _parse(parser, argv: list[str]):
     subs = _subparsers(parser)
     prepared = _prepare(argv, _value_options(parser))
     args, extras = parser.parse_known_args(prepared)
+    stray = _stray_list_value(subs.get(args.command), prepared, getattr(args, "catalogue", None))
+    if stray:
+        extras = [stray] + extras
     if extras:
         name = args.command
         if name is None:

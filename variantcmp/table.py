@@ -10,7 +10,7 @@ import polars as pl
 
 from . import solver as s
 from .aero import best_lift_to_drag
-from .atmosphere import G0
+from .atmosphere import G0, MODEL_TOP_M
 from .cases import FT, build_cases
 from .units import OptionError, WeightSpec, shown
 
@@ -125,8 +125,10 @@ def case_notes(cases, res, climb_fpm, mtow_kg, floor_kg) -> list[str]:
         if f & s.ABOVE_MMO:
             parts.append(f"M{cases.mach[i]:.3f} above MMO {cases.mmo[i]:.3f}")
         if f & s.BELOW_VMO_FLOOR:
-            parts.append(f"M{res.mach[i]:.3f} exceeds VMO below {res.vmo_floor_m[i] / FT:,.0f} ft, "
-                         "above the other limits' ceiling")
+            floor_m = res.vmo_floor_m[i]
+            where = (f"below {floor_m / FT:,.0f} ft" if np.isfinite(floor_m) and floor_m < MODEL_TOP_M
+                     else "at every altitude of the model")
+            parts.append(f"M{res.mach[i]:.3f} exceeds VMO {where}, above the other limits' ceiling")
         if f & s.NO_COMMON_ALTITUDE:
             parts.append("thrust and the other limits leave no common altitude")
         if f & s.BELOW_FLOOR:

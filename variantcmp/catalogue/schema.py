@@ -62,11 +62,13 @@ VARIANT_NUMBERS: dict[str, NumberRule] = {
     "cd0": NumberRule("the zero-lift drag coefficient", 0, 0.2, lo_open=True, hi_open=True),
     "cl_max": NumberRule("the clean 1 g maximum lift coefficient", 0, 3, lo_open=True),
     "mtow_kg": NumberRule("the maximum take-off weight in kg", 0, 1_000_000, lo_open=True),
-    "cruise_mach": NumberRule("the cruise Mach number", 0, lo_open=True, **MACH_RULE),
+    # Speed ranges span every propeller and jet transport (common practice, no source): a
+    # cruise below M0.2, an MMO below M0.3 or a VMO outside 80-450 kt CAS is a typo or a unit slip.
+    "cruise_mach": NumberRule("the cruise Mach number", 0.2, **MACH_RULE),
     "oew_kg": NumberRule("the operating empty weight in kg", 0, 1_000_000, lo_open=True),
     "max_altitude_ft": NumberRule("the certified maximum operating altitude in ft", 0, 100000, lo_open=True),
-    "mmo": NumberRule("the maximum operating Mach number", 0, lo_open=True, **MACH_RULE),
-    "vmo_kt": NumberRule("the maximum operating speed in kt (calibrated)", 0, 700, lo_open=True),
+    "mmo": NumberRule("the maximum operating Mach number", 0.3, **MACH_RULE),
+    "vmo_kt": NumberRule("the maximum operating speed in kt (calibrated)", 80, 450),
     "sweep_deg": NumberRule("the quarter-chord sweep in degrees", 0, 60),
     "thickness_ratio": NumberRule("the mean thickness-to-chord ratio", 0, 0.25, lo_open=True),
     "korn_factor": NumberRule("the Korn airfoil technology factor", 0.8, 1.0),

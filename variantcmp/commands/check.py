@@ -65,9 +65,9 @@ def _figures_table(catalogue, figures: dict[str, dict]) -> TextTable:
     scalar_keys = list(dict.fromkeys(k for f in figures.values() for k, v in f.items() if not isinstance(v, dict)))
     engine_keys = list(dict.fromkeys(k for f in figures.values() for k, v in f.items() if isinstance(v, dict)))
     columns = [Column("variant", "Variant", "left")]
-    columns += [Column(k, k) for k in scalar_keys]
+    columns += [Column(k, _two_lines(k)) for k in scalar_keys]
     columns.append(Column("engine", "Engine", "left"))
-    columns += [Column(k, k) for k in engine_keys]
+    columns += [Column(k, _two_lines(k)) for k in engine_keys]
     cells: dict[str, list[str]] = {c.key: [] for c in columns}
     ends = []
     for vid, fig in figures.items():
@@ -81,6 +81,15 @@ def _figures_table(catalogue, figures: dict[str, dict]) -> TextTable:
                 cells[k].append(_figure_text(k, (fig.get(k) or {}).get(eid)))
             ends.append(j + 1 == len(engines))
     return TextTable(columns, cells, [None] * len(ends), ends)
+
+
+def _two_lines(header: str) -> str:
+    """A long header on two lines, split at the space nearest its middle (narrower columns)."""
+    spaces = [i for i, ch in enumerate(header) if ch == " "]
+    if len(header) <= 8 or not spaces:
+        return header
+    cut = min(spaces, key=lambda i: abs(i - len(header) / 2))
+    return header[:cut] + "\n" + header[cut + 1:]
 
 
 def _figure_text(key: str, value) -> str:
