@@ -311,3 +311,82 @@ def test_fuzz_mutated_demo(tmp_path, data, source):
     path = tmp_path / "fuzz.toml"
     path.write_text(tomli_w.dumps(doc), encoding="utf-8")
     outcome(path)
+
+
+# --------------------------------------------------------------------------- propeller, fuel and engine-out keys
+
+
+def _doc(engine: dict, variant: dict | None = None) -> dict:
+    v = {"id": "a1", "engine_options": [engine["id"]], "engine_count": 2, "wing_area_m2": 61.0, "aspect_ratio": 12.0,
+         "oswald_e": 0.8, "cd0": 0.028, "cl_max": 1.6, "mtow_kg": 23_000.0, "cruise_mach": 0.45}
+    v.update(variant or {})
+    return {"catalogue": {"title": "t"}, "engine": [engine], "variant": [v]}
+
+
+def _load_doc(tmp_path, doc):
+    path = tmp_path / "c.toml"
+    path.write_text(tomli_w.dumps(doc))
+    return load_catalogue(path)
+
+
+def _messages(tmp_path, doc) -> list[str]:
+    path = tmp_path / "c.toml"
+    path.write_text(tomli_w.dumps(doc))
+    return [f"{p.key} | {p.message}" for p in problems_of(path)]
+
+
+TURBOPROP = {"id": "p1", "model": "turboprop", "shaft_power_kw": 2000.0, "propeller_efficiency": 0.82}
+
+
+def test_a_turboprop_needs_power_and_one_kind_of_propeller_efficiency(tmp_path):
+    cat = _load_doc(tmp_path, _doc(dict(TURBOPROP, psfc_kg_per_kwh=0.28, mct_thrust_ratio=0.95),
+                                   {"oei_cd0_increment": 0.004}))
+    e, v = cat.engines["p1"], cat.variants["a1"]
+    assert e.is_propeller and e.has_fuel_data and e.static_thrust_kn is None and e.mct_thrust_ratio == 0.95
+    assert v.oei_cd0 == 0.004 and v.net_decrement_pct == 1.1 and not cat.warnings
+    no_power = {k: v for k, v in TURBOPROP.items() if k != "shaft_power_kw"}
+    assert any("shaft_power_kw | missing" in m for m in _messages(tmp_path, _doc(no_power)))
+    both = dict(TURBOPROP, propeller_efficiency_mach=[0.2, 0.5], propeller_efficiency_table=[0.7, 0.85])
+    assert any("not both" in m for m in _messages(tmp_path, _doc(both)))
+    neither = {k: v for k, v in TURBOPROP.items() if k != "propeller_efficiency"}
+    assert any("propeller_efficiency | missing" in m for m in _messages(tmp_path, _doc(neither)))
+    uneven = dict(neither, propeller_efficiency_mach=[0.2, 0.4, 0.5], propeller_efficiency_table=[0.7, 0.85])
+    assert any("one efficiency per Mach" in m for m in _messages(tmp_path, _doc(uneven)))
+    jet_key = dict(TURBOPROP, static_thrust_kn=50.0, tsfc_mg_per_ns=15.0)
+    messages = _messages(tmp_path, _doc(jet_key))
+    assert any("static_thrust_kn | not used by model \"turboprop\"" in m for m in messages)
+    assert any("tsfc_mg_per_ns | not used by model \"turboprop\"" in m for m in messages)
+
+
+def test_jet_fuel_data_is_the_formula_or_a_table(tmp_path):
+    jet = {"id": "j1", "model": "density-lapse", "static_thrust_kn": 60.0}
+    cat = _load_doc(tmp_path, _doc(dict(jet, tsfc_mg_per_ns=9.5, tsfc_mach_slope=10.5)))
+    assert cat.engines["j1"].has_fuel_data
+    table = dict(jet, tsfc_table_altitude_ft=[0, 40000], tsfc_table_mach=[0.2, 0.8],
+                 tsfc_table_mg_per_ns=[[11.0, 16.0], [10.0, 15.0]])
+    assert _load_doc(tmp_path, _doc(table)).engines["j1"].tsfc_table_mg_per_ns == ((11.0, 16.0), (10.0, 15.0))
+    assert any("not both" in m for m in _messages(tmp_path, _doc(dict(table, tsfc_mg_per_ns=9.0))))
+    assert any("tsfc_mg_per_ns | missing" in m for m in _messages(tmp_path, _doc(dict(jet, tsfc_mach_slope=3.0))))
+    short = dict(table, tsfc_table_mg_per_ns=[[11.0, 16.0]])
+    assert any("tsfc_table_mg_per_ns | expected 2 rows" in m for m in _messages(tmp_path, _doc(short)))
+    assert not _load_doc(tmp_path, _doc(jet)).engines["j1"].has_fuel_data
+
+
+def test_a_turboprop_on_a_fast_variant_is_warned_about(tmp_path):
+    # Common practice, no source: propeller efficiency collapses above about M0.7.
+    cat = _load_doc(tmp_path, _doc(TURBOPROP, {"cruise_mach": 0.74}))
+    assert len(cat.warnings) == 1 and "cruise_mach" in cat.warnings[0].key
+    assert "propeller efficiency collapses" in cat.warnings[0].message
+    assert any(label == "warning" for label, _ in summarise(cat))
+
+
+def test_engine_out_defaults_follow_the_engine_count(tmp_path):
+    jet = {"id": "j1", "model": "density-lapse", "static_thrust_kn": 60.0}
+    counts = {n: _load_doc(tmp_path, _doc(jet, {"engine_count": n})).variants["a1"] for n in (1, 2, 3, 4)}
+    assert counts[1].net_decrement_pct is None
+    assert [counts[n].net_decrement_pct for n in (2, 3, 4)] == [1.1, 1.4, 1.6]
+    assert counts[2].oei_cd0 == 0.003
+    given = _load_doc(tmp_path, _doc(jet, {"net_gradient_decrement_pct": 1.3})).variants["a1"]
+    assert given.net_decrement_pct == 1.3
+    text = dict(summarise(_load_doc(tmp_path, _doc(jet))))["variant a1"]
+    assert "CD0 +0.003 (default)" in text

@@ -215,3 +215,38 @@ def _uniform_bins(altitude_ft):
     lower_edges = xs[0] + step * np.arange(count)
     cells = np.clip(np.searchsorted(xs, lower_edges, side="right") - 1, 0, xs.size - 2)
     return float(xs[0]), 1.0 / step, cells.astype(np.intp)
+
+
+def propeller_thrust_n(shaft_power_w, propeller_efficiency, true_airspeed_ms):
+    """Propeller thrust from shaft power: T = eta P / V (power available P_A = eta P = T V;
+    Anderson, *Aircraft Performance and Design*, McGraw-Hill 1999, sec. 3.3). The shaft power's
+    lapse with altitude is :func:`density_lapse_fraction` applied to power, P = P0 (rho/rho0)^m
+    (the same reference). Infinite at zero speed, as the form says: callers stay above the stall.
+    """
+    with np.errstate(divide="ignore"):
+        return np.asarray(propeller_efficiency, dtype=float) * np.asarray(shaft_power_w, dtype=float) / np.asarray(
+            true_airspeed_ms, dtype=float)
+
+
+class PropellerEfficiency:
+    """Propeller efficiency against Mach: a constant, or linear between the catalogue's points
+    and NaN outside them (never extrapolated: outside the data the answer is withheld)."""
+
+    def __init__(self, constant=None, mach=(), efficiency=()):
+        self.constant = None if constant is None else float(constant)
+        self.mach = np.asarray(mach, dtype=float)
+        self.efficiency = np.asarray(efficiency, dtype=float)
+
+    @property
+    def mach_range(self) -> tuple[float, float]:
+        """The Mach range the efficiency is known over ((0, 1) for a constant)."""
+        if self.constant is not None:
+            return 0.0, 1.0
+        return float(self.mach[0]), float(self.mach[-1])
+
+    def __call__(self, mach):
+        m = np.asarray(mach, dtype=float)
+        if self.constant is not None:
+            return np.full(m.shape, self.constant)
+        inside = (m >= self.mach[0]) & (m <= self.mach[-1])
+        return np.where(inside, np.interp(m, self.mach, self.efficiency), np.nan)

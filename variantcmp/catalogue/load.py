@@ -10,7 +10,7 @@ from pathlib import Path
 
 from .model import Catalogue, Engine, Variant
 from .problems import CatalogueError, Problem, describe, did_you_mean
-from .schema import CATALOGUE_KEYS, TOP_KEYS
+from .schema import CATALOGUE_KEYS, PROPELLER_MACH_WARNING, TOP_KEYS
 from .tables import TableReader, table_path
 from .validate import read_engine, read_variant
 
@@ -132,7 +132,23 @@ def load_catalogue(path: str | os.PathLike) -> Catalogue:
 
     if problems:
         raise CatalogueError(problems)
-    return Catalogue(path=p, title=title, description=description, engines=engines, variants=variants)
+    return Catalogue(path=p, title=title, description=description, engines=engines, variants=variants,
+                     warnings=tuple(_warnings(file, variant_raw, variants, engines)))
+
+
+def _warnings(file: str, variant_raw: list[dict], variants: dict[str, Variant], engines: dict[str, Engine]):
+    """What is valid but doubtful: a propeller engine option on a variant that cruises faster than
+    propellers work (common practice, no source: their efficiency collapses above about M0.7)."""
+    for i, raw in enumerate(variant_raw):
+        v = variants.get(str(raw.get("id", "")).strip())
+        if v is None or v.cruise_mach <= PROPELLER_MACH_WARNING:
+            continue
+        props = [e for e in v.engine_options if engines[e].is_propeller]
+        if props:
+            yield Problem(file, f"{table_path('variant', i, raw)}.cruise_mach",
+                          f"warning: cruise Mach {v.cruise_mach:g} with turboprop option(s) {', '.join(props)}: "
+                          f"propeller efficiency collapses above about M{PROPELLER_MACH_WARNING:g}; treat those "
+                          "answers with doubt")
 
 
 def _duplicates(raws: list[dict], kind: str, file: str, problems: list[Problem]) -> None:

@@ -13,7 +13,8 @@ def summarise(catalogue: Catalogue) -> list[tuple[str, str]]:
     ]
     if catalogue.description:
         rows.append(("description", " ".join(catalogue.description.split())))
-    models = ", ".join(f"{e.id} ({e.model})" for e in catalogue.engines.values())
+    models = ", ".join(f"{e.id} ({e.model}{', fuel data' if e.has_fuel_data else ''})"
+                       for e in catalogue.engines.values())
     rows.append(("engines", f"{len(catalogue.engines)}: {models}"))
     rows.append(("variants", str(len(catalogue.variants))))
     used: set[str] = set()
@@ -32,6 +33,10 @@ def summarise(catalogue: Catalogue) -> list[tuple[str, str]]:
             data.append(f"MMO {v.mmo:g}")
         if v.vmo_kt is not None:
             data.append(f"VMO {v.vmo_kt:g} kt")
+        if v.engine_count > 1:
+            default = " (default)" if v.oei_cd0_increment is None else ""
+            data.append(f"one engine out: CD0 +{v.oei_cd0:g}{default}, net gradient -{v.net_decrement_pct:g} %"
+                        + (" (default)" if v.net_gradient_decrement_pct is None else ""))
         text = (
             f"{v.label}; {v.engine_count} x {', '.join(v.engine_options)}; "
             f"optional data: {', '.join(data) if data else 'none'}"
@@ -40,4 +45,6 @@ def summarise(catalogue: Catalogue) -> list[tuple[str, str]]:
     unused = [e for e in catalogue.engines if e not in used]
     if unused:
         rows.append(("unused engines", ", ".join(unused)))
+    for w in catalogue.warnings:
+        rows.append(("warning", f"{w.key}: {w.message.removeprefix('warning: ')}"))
     return rows

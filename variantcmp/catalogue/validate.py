@@ -11,8 +11,9 @@ from ..constants import M_PER_FT
 from .model import ENGINE_MODELS, Engine, Variant
 from .problems import describe, fmt_value
 from .schema import (BUFFET_CL_RULE, BUFFET_MACH_RULE, ENGINE_COMMON_KEYS, ENGINE_KEYS, ENGINE_MODEL_KEYS,
-                     ENGINE_NUMBERS, HOT_DAY_KEYS, TABLE_ALTITUDE_RULE, TABLE_FRACTION_RULE, TABLE_MACH_RULE,
-                     VARIANT_KEYS, VARIANT_NUMBERS, VARIANT_REQUIRED)
+                     ENGINE_NUMBERS, ENGINE_RATING_KEY, HOT_DAY_KEYS, PROPELLER_EFFICIENCY_RULE, PROPELLER_MACH_RULE,
+                     TABLE_ALTITUDE_RULE, TABLE_FRACTION_RULE, TABLE_MACH_RULE, TSFC_TABLE_RULE, VARIANT_KEYS,
+                     VARIANT_NUMBERS, VARIANT_REQUIRED)
 from .tables import TableReader
 
 
@@ -40,7 +41,7 @@ def read_engine(t: TableReader) -> Engine | None:
     t.unknown_keys(allowed, elsewhere)
 
     nums = {
-        key: t.number(key, rule, required=key == "static_thrust_kn")
+        key: t.number(key, rule, required=model is not None and key == ENGINE_RATING_KEY[model])
         for key, rule in ENGINE_NUMBERS.items()
         if key in allowed
     }
@@ -54,14 +55,12 @@ def read_engine(t: TableReader) -> Engine | None:
 
     table: dict[str, Any] = {}
     if model == "table":
-        alt = t.number_list("table_altitude_ft", TABLE_ALTITUDE_RULE, increasing=True)
-        mach = t.number_list("table_mach", TABLE_MACH_RULE, increasing=True)
-        for key in ("table_altitude_ft", "table_mach"):
-            if not t.has(key):
-                t.fail(key, f"missing: a table engine needs {key} (at least 2 increasing values)")
-        frac = _fraction_table(t, alt, mach)
-        if alt and mach and frac:
-            table = dict(table_altitude_ft=alt, table_mach=mach, table_thrust_fraction=frac)
+        table = _grid(t, ("table_altitude_ft", "table_mach", "table_thrust_fraction"), TABLE_FRACTION_RULE,
+                      "a table engine needs", "thrust fractions")
+    if model == "turboprop":
+        table = _propeller_efficiency(t)
+    if model in ENGINE_MODEL_KEYS and "tsfc_mg_per_ns" in ENGINE_MODEL_KEYS[model]:
+        table.update(_tsfc(t))
 
     if t.bad:
         return None
@@ -69,11 +68,59 @@ def read_engine(t: TableReader) -> Engine | None:
     return Engine(id=ident, label=label or ident, model=model, **kwargs, **table)
 
 
-def _fraction_table(t: TableReader, alt, mach) -> tuple[tuple[float, ...], ...] | None:
-    key = "table_thrust_fraction"
+def _grid(t: TableReader, keys: tuple[str, str, str], rule, needs: str, what: str) -> dict[str, Any]:
+    """An altitude x Mach grid: increasing altitudes and Machs and one row of values per altitude."""
+    alt_key, mach_key, value_key = keys
+    alt = t.number_list(alt_key, TABLE_ALTITUDE_RULE, increasing=True)
+    mach = t.number_list(mach_key, TABLE_MACH_RULE, increasing=True)
+    for key in (alt_key, mach_key):
+        if not t.has(key):
+            t.fail(key, f"missing: {needs} {key} (at least 2 increasing values)")
+    values = _value_rows(t, alt, mach, value_key, rule, needs, what, mach_key)
+    return {alt_key: alt, mach_key: mach, value_key: values} if alt and mach and values else {}
+
+
+def _propeller_efficiency(t: TableReader) -> dict[str, Any]:
+    """A constant propeller efficiency, or one against Mach (both lists together, same length)."""
+    keys = ("propeller_efficiency_mach", "propeller_efficiency_table")
+    has_table = [k for k in keys if t.has(k)]
+    if t.has("propeller_efficiency") and has_table:
+        t.fail("propeller_efficiency", "give either propeller_efficiency (a constant) or propeller_efficiency_mach "
+                                       "with propeller_efficiency_table, not both")  # fmt: skip
+        return {}
+    if not t.has("propeller_efficiency") and not has_table:
+        t.fail("propeller_efficiency", "missing: a turboprop needs propeller_efficiency (e.g. 0.82), or "
+                                       "propeller_efficiency_mach with propeller_efficiency_table")  # fmt: skip
+        return {}
+    if not has_table:
+        return {}
+    _together(t, keys, "the propeller efficiency against Mach")
+    mach = t.number_list(keys[0], PROPELLER_MACH_RULE, increasing=True)
+    eta = t.number_list(keys[1], PROPELLER_EFFICIENCY_RULE, increasing=False)
+    if mach and eta and len(mach) != len(eta):
+        t.fail(keys[1], f"expected one efficiency per Mach in propeller_efficiency_mach ({len(mach)}), got {len(eta)}")
+        return {}
+    return {keys[0]: mach, keys[1]: eta} if mach and eta else {}
+
+
+def _tsfc(t: TableReader) -> dict[str, Any]:
+    """Fuel data of a jet: the TSFC formula's a (and b), or a table of TSFC at ISA, not both."""
+    keys = ("tsfc_table_altitude_ft", "tsfc_table_mach", "tsfc_table_mg_per_ns")
+    has_table = any(t.has(k) for k in keys)
+    if t.has("tsfc_mg_per_ns") and has_table:
+        t.fail("tsfc_mg_per_ns", "give either tsfc_mg_per_ns (with tsfc_mach_slope) or the TSFC table "
+                                 "(tsfc_table_altitude_ft, tsfc_table_mach, tsfc_table_mg_per_ns), not both")
+        return {}
+    if t.has("tsfc_mach_slope") and not t.has("tsfc_mg_per_ns"):
+        t.fail("tsfc_mg_per_ns", "missing: tsfc_mach_slope is given, and it goes with tsfc_mg_per_ns")
+    if not has_table:
+        return {}
+    return _grid(t, keys, TSFC_TABLE_RULE, "a TSFC table needs", "TSFC values")
+
+
+def _value_rows(t: TableReader, alt, mach, key: str, rule, needs: str, what: str, mach_key: str):
     if not t.has(key):
-        t.fail(key, "missing: a table engine needs table_thrust_fraction, one row of thrust fractions per "
-                    "altitude, one column per Mach")  # fmt: skip
+        t.fail(key, f"missing: {needs} {key}, one row of {what} per altitude, one column per Mach")
         return None
     rows = t.raw[key]
     shape = f"{len(alt)} rows (one per altitude) of {len(mach)} values (one per Mach)" if alt and mach else ""
@@ -87,9 +134,9 @@ def _fraction_table(t: TableReader, alt, mach) -> tuple[tuple[float, ...], ...] 
     out = []
     for i, row in enumerate(rows):
         if mach and len(row) != len(mach):
-            t.fail(f"{key}[{i}]", f"expected {len(mach)} values (one per Mach in table_mach), got {len(row)}")
+            t.fail(f"{key}[{i}]", f"expected {len(mach)} values (one per Mach in {mach_key}), got {len(row)}")
             return None
-        vals = [t.checked_number(f"{key}[{i}][{j}]", v, TABLE_FRACTION_RULE) for j, v in enumerate(row)]
+        vals = [t.checked_number(f"{key}[{i}][{j}]", v, rule) for j, v in enumerate(row)]
         if any(v is None for v in vals):
             return None
         out.append(tuple(vals))
