@@ -1,18 +1,15 @@
-"""Result tables: the solver's answers as polars DataFrames in the units users read (ft, FL)."""
+"""The ceilings table: the solver's answers as a polars DataFrame in the units users read (ft, FL),
+with the notes that say why a value is missing."""
 
 from __future__ import annotations
-
-import difflib
-from dataclasses import dataclass, replace
 
 import numpy as np
 import polars as pl
 
-from . import solver as s
-from .aero import best_lift_to_drag
-from .atmosphere import G0, MODEL_TOP_M
-from .cases import FT, build_cases
-from .units import OptionError, WeightSpec, shown
+from .. import solver as s
+from ..atmosphere import MODEL_TOP_M
+from ..cases import FT, build_cases
+from .conditions import Conditions, selected_pairs
 
 #: Columns of a ceilings table, in order (the target columns are added when a target is set).
 COLUMNS = (
@@ -25,58 +22,6 @@ LIMIT_COLUMNS = dict(zip(s.LIMITS, ("thrust_ceiling_ft", "buffet_ceiling_ft", "s
                                     "certified_ceiling_ft", "cabin_ceiling_ft")))
 
 
-@dataclass(frozen=True)
-class Conditions:
-    """What every view computes for: weights, days, speed, climb criteria, margins, selection."""
-
-    weights: tuple[WeightSpec, ...] = (WeightSpec(100.0, "%mtow"),)
-    isa_devs_c: tuple[float, ...] = (0.0,)
-    mach: float | str = "cruise"  # "cruise" (each variant's cruise Mach), a Mach, or "best"
-    climb_fpm: tuple[float, ...] = (300.0,)
-    g_margin: float = 1.3
-    target_fl_ft: float | None = None
-    variants: tuple[str, ...] = ()  # empty: all
-    engines: tuple[str, ...] = ()
-
-
-def selected_pairs(catalogue, conditions: Conditions) -> list[tuple[str, str]]:
-    """(variant id, engine id) pairs the conditions select, in catalogue order."""
-    variants = conditions.variants or tuple(catalogue.variants)
-    return [(vid, eid) for vid in variants for eid in catalogue.variants[vid].engine_options
-            if not conditions.engines or eid in conditions.engines]
-
-
-def resolve_ids(given: tuple[str, ...], known, what: str, path) -> tuple[str, ...]:
-    """Ids as typed -> the catalogue's ids: exact, else the one that differs only in case; an
-    unknown id is refused with the closest known one ("did you mean") and the list."""
-    out = []
-    for ident in given:
-        if ident in known:
-            out.append(ident)
-            continue
-        same = [k for k in known if k.lower() == ident.lower()]
-        if len(same) == 1:
-            out.append(same[0])
-            continue
-        close = difflib.get_close_matches(ident.lower(), [k.lower() for k in known], n=1, cutoff=0.6)
-        hint = next((f" (did you mean {k!r}?)" for k in known if close and k.lower() == close[0]), "")
-        raise OptionError(f"{what}: unknown id {shown(ident)} in {path}{hint}; expected one of: {', '.join(known)}")
-    return tuple(dict.fromkeys(out))
-
-
-def check_selection(catalogue, conditions: Conditions) -> Conditions:
-    """The conditions with their variant and engine ids resolved (see :func:`resolve_ids`);
-    OptionError for an unknown id or a selection with no variant x engine pair."""
-    conditions = replace(
-        conditions,
-        variants=resolve_ids(conditions.variants, catalogue.variants, "--variant", catalogue.path),
-        engines=resolve_ids(conditions.engines, catalogue.engines, "--engine", catalogue.path))
-    if not selected_pairs(catalogue, conditions):
-        raise OptionError(f"--variant/--engine: no variant in {catalogue.path} offers the selected engine(s) "
-                          f"{', '.join(conditions.engines)}")
-    return conditions
-
-
 def solve(catalogue, conditions: Conditions):
     """Build the cases the conditions describe and solve them: (CaseSet, CaseIndex, Ceilings, pairs)."""
     pairs = selected_pairs(catalogue, conditions)
@@ -86,7 +31,7 @@ def solve(catalogue, conditions: Conditions):
     return cases, index, s.solve_ceilings(cases)
 
 
-def _ft(values_m) -> np.ndarray:
+def feet(values_m) -> np.ndarray:
     """m -> ft; NaN and infinities (unavailable or above the model top) become NaN (null)."""
     out = np.asarray(values_m, dtype=float) / FT
     return np.where(np.isfinite(out), out, np.nan)
@@ -153,7 +98,7 @@ def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
     variants = [catalogue.variants[v] for v in index.variant_ids]
     mtow_kg = np.array([v.mtow_kg for v in variants])[cases.variant_index]
     floor_kg = np.array([empty_weight_floor_kg(v) for v in variants])[cases.variant_index]
-    max_ft = _ft(res.max_altitude_m)
+    max_ft = feet(res.max_altitude_m)
     limit_names = np.array(list(s.LIMITS) + ["none"], dtype=object)
     has_alt = np.isfinite(max_ft)
     limit = np.where(has_alt, limit_names[np.where(res.limit >= 0, res.limit, len(s.LIMITS))],
@@ -165,11 +110,11 @@ def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
         "isa_dev_c": cases.isa_dev_c,
         "mach": np.where(has_alt | ~np.isnan(cases.mach), res.mach, np.nan),
         "climb_fpm": climb_fpm,
-        "thrust_ceiling_ft": _ft(res.thrust_m),
-        "buffet_ceiling_ft": _ft(res.buffet_m),
-        "stall_ceiling_ft": _ft(res.stall_m),
-        "certified_ceiling_ft": _ft(res.certified_m),
-        "cabin_ceiling_ft": _ft(res.cabin_m),
+        "thrust_ceiling_ft": feet(res.thrust_m),
+        "buffet_ceiling_ft": feet(res.buffet_m),
+        "stall_ceiling_ft": feet(res.stall_m),
+        "certified_ceiling_ft": feet(res.certified_m),
+        "cabin_ceiling_ft": feet(res.cabin_m),
         "max_altitude_ft": max_ft,
         "flight_level": np.where(has_alt, np.floor(np.where(has_alt, max_ft, 0.0) / 100.0), np.nan),
         "limit": pl.Series(limit.tolist(), dtype=pl.String),
@@ -183,36 +128,3 @@ def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
             margin_ft=pl.col("max_altitude_ft") - pl.col("target_ft"),
         ).with_columns(reaches_target=pl.col("margin_ft") >= 0)
     return frame
-
-
-def fleet_figures(catalogue, variant_ids=None) -> dict[str, dict]:
-    """Derived figures per variant: polar, wing loading, thrust-to-weight, absolute ceiling.
-
-    The absolute ceiling is the thrust ceiling at zero residual climb, best speed, MTOW, ISA; one
-    solve for every variant x engine option at once. Dict-valued figures are keyed by engine id.
-    """
-    ids = tuple(catalogue.variants) if variant_ids is None else tuple(variant_ids)
-    cases, index, res = solve(catalogue, Conditions(mach="best", climb_fpm=(0.0,), variants=ids))
-    thrust_ft = _ft(res.thrust_m)
-    absolute: dict[str, dict] = {vid: {} for vid in ids}
-    for vi, ei, ft in zip(cases.variant_index.tolist(), cases.engine_index.tolist(), thrust_ft.tolist()):
-        absolute[index.variant_ids[vi]][index.engine_ids[ei]] = None if np.isnan(ft) else ft
-    figures = {}
-    for vid in ids:
-        v = catalogue.variants[vid]
-        ld_max, cl_star = best_lift_to_drag(v.cd0, v.k)
-        figures[vid] = {
-            "K": float(v.k),
-            "L/D max": float(ld_max),
-            "CL at L/D max": float(cl_star),
-            "Wing loading kg/m²": v.mtow_kg / v.wing_area_m2,
-            "T/W static at MTOW": {eid: v.engine_count * catalogue.engines[eid].static_thrust_kn * 1000.0
-                                   / (v.mtow_kg * G0) for eid in v.engine_options},
-            "Absolute ceiling ft (MTOW, ISA)": absolute[vid],
-        }
-    return figures
-
-
-def variant_figures(catalogue, variant_id: str) -> dict:
-    """:func:`fleet_figures` of one variant."""
-    return fleet_figures(catalogue, (variant_id,))[variant_id]
