@@ -59,7 +59,8 @@ class EnvelopeScreen(DrawingScreen):
         return Request(key, job, what)
 
     def drawer(self, envelope):
-        return lambda width, height: draw_envelope(envelope, width, height, self.speed, self.app.sketch_ascii)
+        return lambda width, height: draw_envelope(envelope, width, height, self.speed, self.app.sketch_ascii,
+                                                   mono=self.app.no_color)
 
     def describe(self, envelope) -> str:
         app = self.app

@@ -13,6 +13,7 @@ from textual.screen import ModalScreen
 from textual.signal import Signal
 
 from variantcmp.catalogue import Catalogue, CatalogueError, Problem, demo_catalogue_path, load_catalogue
+from variantcmp.sketch import terminal_wants_ascii
 
 from .compare import CompareScreen
 from .dialogs import ExportDialog, OpenDialog, ProblemsScreen
@@ -62,7 +63,7 @@ class VariantCmpApp(App[int]):
         self.focus_key: str | None = None  # the row under the compare cursor
         self.shown_keys: list[str] = []  # rows the compare screen shows, in its order
         self.marked_keys: list[str] = []  # rows marked for the envelope overlay, in mark order
-        self.sketch_ascii = False  # plain-ASCII drawings for dumb terminals
+        self.sketch_ascii = terminal_wants_ascii()  # plain-ASCII drawings for dumb terminals (a toggles)
 
     def on_mount(self) -> None:
         self.open_catalogue(self.catalogue_path)

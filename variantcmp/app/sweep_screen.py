@@ -77,7 +77,7 @@ class SweepScreen(DrawingScreen):
         return Request(key, job, f"the sweep over {OVER_NAMES[self.over]}")
 
     def drawer(self, shown: ShownSweep):
-        return lambda width, height: draw_sweep(shown.sweep, width, height, self.app.sketch_ascii)
+        return lambda width, height: draw_sweep(shown.sweep, width, height, self.app.sketch_ascii, mono=self.app.no_color)
 
     def describe(self, shown: ShownSweep) -> str:
         curves = shown.sweep.frame["series"].n_unique()
