@@ -22,7 +22,9 @@ ROOT = Path(__file__).resolve().parent.parent
 async def settle(app, pilot) -> None:
     """Wait for computations in worker threads and the redraw after them."""
     await pilot.pause()
-    await app.workers.wait_for_complete()
+    while any(not worker.is_finished for worker in app.workers):  # a finished job may start the one waiting
+        await app.workers.wait_for_complete()
+        await pilot.pause()
     await pilot.pause()
 
 

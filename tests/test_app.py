@@ -19,6 +19,7 @@ import polars as pl
 import pytest
 from polars.testing import assert_frame_equal
 from rich.console import Console
+from textual import events
 
 from variantcmp.app import VariantCmpApp
 from variantcmp.app.compare import CompareScreen
@@ -70,7 +71,9 @@ def run(test):
 async def settle(app, pilot) -> None:
     """Let worker threads finish and the screens redraw with their results."""
     await pilot.pause()
-    await app.workers.wait_for_complete()
+    while any(not worker.is_finished for worker in app.workers):  # a finished job may start the one waiting
+        await app.workers.wait_for_complete()
+        await pilot.pause()
     await pilot.pause()
 
 
@@ -139,7 +142,7 @@ def test_first_table_is_ceilings_table():
             shown_matches_reference(app.screen, Conditions())
             # The caution is on screen without any key press.
             caution = app.screen.query_one("#caution")
-            assert caution.region.height >= 1 and shown_text(caution) == CAUTION
+            assert caution.region.height >= 1 and caution.plain == CAUTION
     run(body)
 
 
@@ -334,7 +337,7 @@ def test_inspect_variant():
             await pilot.press("i")
             await pilot.pause()
             assert isinstance(app.screen, VariantScreen)
-            assert shown_text(app.screen.query_one("#caution")) == CAUTION  # caution on this screen too
+            assert app.screen.query_one("#caution").plain == CAUTION  # caution on this screen too
             assert app.screen.variant_id == first.id
             figures = app.screen.query_one("#variant-figures").content
             engines = app.screen.query_one("#variant-engines").content
@@ -559,7 +562,7 @@ def test_envelope_of_the_selected_row_in_a_worker_with_speed_axes(monkeypatch: p
             assert screen.busy and "computing" in shown_text(screen.query_one("#sketch-status"))
             assert screen.query_one("#sketch-busy").display
             assert "Computing the envelope of v70/brannick-74" in screen.sketch.plain
-            assert shown_text(screen.query_one("#caution")) == CAUTION
+            assert screen.query_one("#caution").plain == CAUTION
             await pilot.press("x")  # speed axis while the worker runs
             assert screen.speed == "tas"
             gate.open.set()
@@ -622,7 +625,8 @@ def test_envelope_redraws_on_resize_without_recomputing():
                     assert "Mach" in lines[-1] or "Mach" in "".join(lines)
                 else:
                     assert "Enlarge the terminal" in screen.sketch.plain
-                assert shown_text(screen.query_one("#caution")) == CAUTION
+                caution = screen.query_one("#caution")
+                assert caution.plain == CAUTION if height >= 20 else caution.region.height == 1
                 assert screen.computations == 1  # never recomputed for a new size
     run(body)
 
@@ -696,7 +700,7 @@ def test_sweep_views_follow_the_compare_rows_and_conditions():
             assert sketch_lines(screen)[0].startswith("Max altitude vs weight")
             assert "weight t" in text and "limit along the curves: T thrust" in text and "FL" in text
             assert "6 curves" in status and "2 more not drawn" in status  # six line styles
-            assert shown_text(screen.query_one("#caution")) == CAUTION
+            assert screen.query_one("#caution").plain == CAUTION
             # The curves at MTOW end where the compare table says.
             frame = screen.result.sweep.frame
             for row in reference(Conditions()).iter_rows(named=True):
@@ -729,3 +733,195 @@ def test_sweep_views_follow_the_compare_rows_and_conditions():
             await press_settle(app, pilot, "v")
             assert isinstance(app.screen, EnvelopeScreen)
     run(body)
+
+
+# --- keys at full speed -------------------------------------------------------------------------
+# `pilot.press` waits for the app to go idle after every key; a user typing fast (or a paste, or a
+# key held down) does not. `burst` posts every key at once, as a terminal delivers fast typing.
+
+_KEY_NAMES = {"/": "slash", "%": "percent_sign", "?": "question_mark", ",": "comma", "-": "minus", "+": "plus",
+              ".": "full_stop", " ": "space"}
+
+
+def burst(app, *keys: str) -> None:
+    """Post key events for ``keys`` (names such as "tab", or single characters) without waiting."""
+    for key in keys:
+        if len(key) == 1:
+            app.post_message(events.Key(_KEY_NAMES.get(key, key), key))
+        else:
+            app.post_message(events.Key(key, None))
+
+
+def test_typing_at_full_speed_after_tab_goes_to_the_field_shown():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            burst(app, "c", *"95%mtow", "tab", *"ISA+15", "tab", *"FL350", "enter", "s")
+            await settle(app, pilot)
+            assert app.texts["weight"] == "95%mtow" and app.texts["isa"] == "ISA+15" and app.texts["target"] == "FL350"
+            assert app.conditions == Conditions(weights=(WeightSpec(95.0, "%mtow"),), isa_devs_c=(15.0,),
+                                                target_fl_ft=35000.0)
+            assert app.focused is app.screen.query_one("#table")  # enter left the field ...
+            assert app.screen.sort_key == "fl"  # ... so "s" sorted the table
+            shown_matches_reference_sorted = table_rows(app.screen)
+            assert len(shown_matches_reference_sorted) == reference(app.conditions).height
+    run(body)
+
+
+def test_keys_typed_while_a_screen_opens_or_closes_are_not_lost():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            burst(app, "h", *"FL360")  # typed before the hot-day screen has mounted
+            await settle(app, pilot)
+            assert isinstance(app.screen, HotDayScreen)
+            assert app.screen.query_one("#lookup-target").value == "FL360"
+            # Leave the field and the screen, then mark two rows, all at once.
+            burst(app, "escape", "escape", "m", "down", "m")
+            await settle(app, pilot)
+            assert isinstance(app.screen, CompareScreen)
+            rows = reference(Conditions()).to_dicts()
+            assert app.marked_keys == [f"{r['variant']}|{r['engine']}|0" for r in rows[:2]]
+    run(body)
+
+
+# --- key mashing --------------------------------------------------------------------------------
+# Seeded random keys for each screen, posted at full speed in bursts, with resizes between bursts:
+# no key sequence may raise (run_test re-raises anything the app raised). Keys that leave the
+# screen are left out of its mix; the race tests above and the screens' own tests cover leaving.
+
+MASH_PRESSES = 2000  # per screen
+MASH_BURST = 40
+_MOVES = ("up", "down", "pageup", "pagedown", "home", "end", "left", "right", "tab", "shift+tab")
+_TYPED = tuple("0159%mkFLz/-,") + ("backspace",)  # not t: a theme change restyles everything (76 ms)
+MASH_SIZES = ((80, 24), (60, 15), (120, 40), (100, 18))
+
+
+def _keys_of(cls, leaving: set[str]) -> list[str]:
+    keys = [key.strip() for binding in cls.BINDINGS for key in binding.key.split(",")]
+    return [key for key in dict.fromkeys(keys) if key not in leaving]
+
+
+async def mash(app, pilot, keys: list[str], seed: int, stay_on) -> int:
+    """Press ``MASH_PRESSES`` seeded random ``keys``; return how many bursts ended off ``stay_on``."""
+    import random
+
+    rng = random.Random(seed)
+    strayed = 0
+    for n in range(0, MASH_PRESSES, MASH_BURST):
+        burst(app, *rng.choices(keys, k=MASH_BURST))
+        await pilot.pause()
+        if n % (MASH_BURST * 10) == 0:
+            await pilot.resize_terminal(*MASH_SIZES[(n // (MASH_BURST * 10)) % len(MASH_SIZES)])
+        if not isinstance(app.screen, stay_on):
+            strayed += 1
+            await settle(app, pilot)
+            while len(app.screen_stack) > 1 and not isinstance(app.screen, stay_on):
+                app.pop_screen()
+                await pilot.pause()
+    await settle(app, pilot)
+    return strayed
+
+
+@pytest.mark.parametrize("name", ["compare", "hotday", "envelope", "sweep", "variant", "help", "open", "export"])
+def test_mashing_each_screens_keys_raises_nothing(name, tmp_path, monkeypatch: pytest.MonkeyPatch):
+    monkeypatch.chdir(tmp_path)  # an export or a picture lands here, not in the project
+    always_out = {"q", "f1", "question_mark", "ctrl+p", "ctrl+q", "ctrl+c"}
+    screens = {  # how to get there, the screen class, keys of it that leave it
+        "compare": ([], CompareScreen, {"h", "i", "v", "w", "e", "o", "enter"}),
+        "hotday": (["h"], HotDayScreen, {"i", "e", "enter", "escape"}),
+        "envelope": (["v"], EnvelopeScreen, {"escape", "c", "w"}),
+        "sweep": (["w"], SweepScreen, {"escape", "c", "v"}),
+        "variant": (["i"], VariantScreen, {"escape"}),
+        "help": (["f1"], HelpScreen, {"escape", "f1", "question_mark"}),
+        "open": (["o"], OpenDialog, {"escape", "enter"}),
+        "export": (["e"], ExportDialog, {"escape", "enter"}),
+    }
+    path, cls, leaving = screens[name]
+    keys = _keys_of(cls, leaving | always_out) + list(_MOVES) + list(_TYPED)
+    if name == "compare":
+        keys = [k for k in keys if k not in leaving]
+
+    async def body():
+        app = VariantCmpApp(None)
+        app.animation_level = "none"  # smooth scrolling would only make the test wait
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, *path)
+            assert isinstance(app.screen, cls)
+            started = time.perf_counter()
+            strayed = await mash(app, pilot, keys, seed=sum(map(ord, name)), stay_on=cls)
+            print(f"\n{name}: {MASH_PRESSES} keys in {time.perf_counter() - started:.1f} s ({strayed} bursts strayed)")
+            assert app.is_running
+    run(body)
+
+
+# --- small terminals, hints -------------------------------------------------------------------
+
+def test_placeholders_read_as_hints_in_no_color_too(monkeypatch: pytest.MonkeyPatch):
+    from variantcmp.app.form import FIELDS
+
+    assert all(field.placeholder.startswith("e.g. ") for field in FIELDS)
+    monkeypatch.setenv("NO_COLOR", "1")
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            target = app.screen.query_one("#field-target")
+            assert target.value == "" and target.render_line(0).text.strip() == "e.g. FL350"
+            await press_settle(app, pilot, "h")
+            target = app.screen.query_one("#lookup-target")
+            assert target.render_line(0).text.startswith("e.g. FL350")
+    run(body)
+
+
+def test_short_terminal_keeps_a_one_line_caution_the_footer_and_the_start_of_each_field():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(60, 15)) as pilot:
+            await settle(app, pilot)
+            screen = app.screen
+            caution = screen.query_one("#caution")
+            assert caution.region.height == 1 and caution.plain.startswith("Caution:")
+            assert "not approved" in caution.plain and "flight manual governs" in caution.plain
+            assert len(caution.plain) <= caution.content_size.width
+            footer = screen.query_one("Footer")
+            assert footer.region.y == 14 and footer.region.height == 1
+            assert screen.query_one("#table").region.height >= 3  # room left for rows
+            weight = screen.query_one("#field-weight")
+            assert weight.render_line(0).text.startswith("100%")
+            # Typed into and left: the field shows its start again.
+            await pilot.press("c")
+            await replace_text(pilot, "90%mtow,100%mtow")
+            await press_settle(app, pilot, "tab")
+            assert weight.render_line(0).text.startswith("90%mtow")
+            # Room again: the caution in full.
+            await pilot.resize_terminal(100, 30)
+            await pilot.pause()
+            assert caution.plain == CAUTION and caution.region.height >= 2
+            await pilot.resize_terminal(60, 15)
+            await press_settle(app, pilot, "v")  # the drawing screens follow the size too
+            assert app.screen.query_one("#caution").region.height == 1
+    run(body)
+
+
+def test_dumb_terminal_draws_ascii_and_no_color_gives_each_line_its_character(monkeypatch: pytest.MonkeyPatch):
+    async def envelope_text(app) -> str:
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "v")
+            return app.screen.sketch.plain
+
+    monkeypatch.setenv("TERM", "dumb")
+    app = VariantCmpApp(None)
+    text = asyncio.run(envelope_text(app))
+    assert app.sketch_ascii and text.isascii() and "^ top" in text
+    monkeypatch.setenv("TERM", "xterm-256color")
+    monkeypatch.setenv("NO_COLOR", "1")
+    app = VariantCmpApp(None)
+    text = asyncio.run(envelope_text(app))
+    assert not app.sketch_ascii and not any(ord(ch) in BRAILLE for ch in text)
+    assert "│" in text and "▲ top" in text  # Unicode frame and marks, lines in their own characters

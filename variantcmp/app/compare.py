@@ -12,8 +12,8 @@ from textual.containers import Grid, Horizontal
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Input, Label, ProgressBar, Static
 
-from variantcmp.caution import CAUTION
-
+from .keys import HoldsKeys, focus_now
+from .widgets import CautionBanner, TextEntry
 from .form import FIELDS
 from .results import Results, export_frame
 from .view import (
@@ -27,7 +27,7 @@ _DRAW = Binding.Group("Draw")
 BUSY_DELAY_S = 0.15
 
 
-class CompareScreen(Screen):
+class CompareScreen(HoldsKeys, Screen):
     """Main screen. The drawing views read the app's conditions and the rows this screen hands over
     (`app.focus_key`, `app.shown_keys`, `app.marked_keys`)."""
 
@@ -65,12 +65,12 @@ class CompareScreen(Screen):
     # --- layout ------------------------------------------------------------------
 
     def compose(self) -> ComposeResult:
-        yield Static(CAUTION, id="caution")
+        yield CautionBanner(id="caution")
         with Grid(id="conditions"):
             for field in FIELDS:
                 with Horizontal(classes="field"):
                     yield Label(field.label, classes="field-label")
-                    yield Input(
+                    yield TextEntry(
                         self.app.texts[field.key],
                         placeholder=field.placeholder,
                         id=f"field-{field.key}",
@@ -81,7 +81,7 @@ class CompareScreen(Screen):
         yield Static("", id="field-errors")
         with Horizontal(id="status-row"):
             yield Label("/ Filter", classes="field-label")
-            yield Input(placeholder="variant, engine, limit", id="filter", compact=True)
+            yield TextEntry(placeholder="e.g. v88 or thrust", id="filter", compact=True)
             yield Static("", id="status")
             yield ProgressBar(total=None, show_eta=False, show_percentage=False, id="busy")
         yield DataTable(id="table", cursor_type="row", zebra_stripes=True, fixed_columns=2)
@@ -95,7 +95,7 @@ class CompareScreen(Screen):
         self.refresh_titles()
         if self.app.results is not None:
             self.show_results(self.app.results)
-        self.query_one(DataTable).focus()
+        focus_now(self.query_one(DataTable))
 
     # --- what the app tells this screen ------------------------------------------
 
@@ -221,10 +221,9 @@ class CompareScreen(Screen):
         key = event.input.id.removeprefix("field-")
         self.show_field_errors(self.app.set_condition_text(key, event.value))
 
-    @on(Input.Submitted, ".condition")
-    @on(Input.Submitted, "#filter")
-    def input_submitted(self) -> None:
-        self.query_one(DataTable).focus()
+    def field_entered(self, field: TextEntry) -> None:
+        """Enter in a condition field or the filter: back to the table (before the next key)."""
+        focus_now(self.query_one(DataTable))
 
     @on(Input.Changed, "#filter")
     def filter_changed(self) -> None:
@@ -246,7 +245,8 @@ class CompareScreen(Screen):
 
     @on(DataTable.RowHighlighted)
     def row_highlighted(self, event: DataTable.RowHighlighted) -> None:
-        self.app.focus_key = event.row_key.value
+        if event.row_key is not None:  # None: the table is empty (a filter matches nothing)
+            self.app.focus_key = event.row_key.value
 
     def on_screen_resume(self) -> None:
         # The envelope view steps through rows: come back on the row it showed last.
@@ -258,13 +258,13 @@ class CompareScreen(Screen):
     # --- actions ------------------------------------------------------------------
 
     def action_focus_conditions(self) -> None:
-        self.query_one(f"#field-{FIELDS[0].key}", Input).focus()
+        focus_now(self.query_one(f"#field-{FIELDS[0].key}", Input))
 
     def action_focus_filter(self) -> None:
-        self.query_one("#filter", Input).focus()
+        focus_now(self.query_one("#filter", Input))
 
     def action_focus_table(self) -> None:
-        self.query_one(DataTable).focus()
+        focus_now(self.query_one(DataTable))
 
     def _sort_step(self, step: int) -> None:
         results = self.app.results

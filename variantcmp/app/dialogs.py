@@ -13,9 +13,12 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.suggester import Suggester
-from textual.widgets import Button, Footer, Input, Label, Static
+from textual.widgets import Button, Footer, Label, Static
 
 from variantcmp.catalogue import Catalogue, Problem
+
+from .keys import HoldsKeys, focus_now
+from .widgets import TextEntry
 
 EXPORT_FORMATS = {".csv": "CSV", ".parquet": "Parquet", ".json": "JSON"}
 
@@ -56,7 +59,7 @@ def write_table(df: pl.DataFrame, path: Path) -> None:
         raise ValueError(f"unknown format {suffix!r}")
 
 
-class OpenDialog(ModalScreen[str | None]):
+class OpenDialog(HoldsKeys, ModalScreen[str | None]):
     """Ask for a catalogue file."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel")]
@@ -69,14 +72,13 @@ class OpenDialog(ModalScreen[str | None]):
         with Vertical(classes="dialog", id="open-dialog") as box:
             box.border_title = "Open a catalogue"
             yield Label("TOML catalogue file (tab completes a suggestion):")
-            yield Input(self.initial, id="path", suggester=PathSuggester((".toml",)))
+            yield TextEntry(self.initial, id="path", suggester=PathSuggester((".toml",)))
             yield Static("", classes="dialog-error", id="open-error")
             yield Static("enter open · esc cancel", classes="dialog-hint")
         yield Footer()
 
-    @on(Input.Submitted)
-    def submitted(self, event: Input.Submitted) -> None:
-        text = event.value.strip()
+    def field_entered(self, field: TextEntry) -> None:
+        text = field.value.strip()
         error = self.query_one("#open-error", Static)
         if not text:
             error.update("✗ Type the path of a catalogue file.")
@@ -91,7 +93,7 @@ class OpenDialog(ModalScreen[str | None]):
         self.dismiss(None)
 
 
-class ProblemsScreen(ModalScreen[None]):
+class ProblemsScreen(HoldsKeys, ModalScreen[None]):
     """The problems of a catalogue that did not load, and how to go on."""
 
     BINDINGS = [
@@ -131,7 +133,7 @@ class ProblemsScreen(ModalScreen[None]):
         return table
 
     def on_mount(self) -> None:
-        self.query_one("#problems").focus()
+        focus_now(self.query_one("#problems"))
 
     def action_reload(self) -> None:
         self.dismiss(None)
@@ -145,7 +147,7 @@ class ProblemsScreen(ModalScreen[None]):
         self.dismiss(None)
 
 
-class ConfirmDialog(ModalScreen[bool]):
+class ConfirmDialog(HoldsKeys, ModalScreen[bool]):
     """A yes/no question; the safe answer (no) has the focus."""
 
     BINDINGS = [
@@ -167,7 +169,7 @@ class ConfirmDialog(ModalScreen[bool]):
         yield Footer()
 
     def on_mount(self) -> None:
-        self.query_one("#no", Button).focus()
+        focus_now(self.query_one("#no", Button))
 
     @on(Button.Pressed)
     def pressed(self, event: Button.Pressed) -> None:
@@ -177,7 +179,7 @@ class ConfirmDialog(ModalScreen[bool]):
         self.dismiss(answer)
 
 
-class ExportDialog(ModalScreen[str | None]):
+class ExportDialog(HoldsKeys, ModalScreen[str | None]):
     """Export a table; the format follows the file name; never overwrites unasked."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel")]
@@ -191,7 +193,7 @@ class ExportDialog(ModalScreen[str | None]):
         with Vertical(classes="dialog", id="export-dialog") as box:
             box.border_title = f"Export {self.df.height} rows"
             yield Label("File name: .csv, .parquet or .json chooses the format.")
-            yield Input(self.initial, id="path", suggester=PathSuggester())
+            yield TextEntry(self.initial, id="path", suggester=PathSuggester())
             yield Static("", classes="dialog-error", id="export-error")
             yield Static("enter write · esc cancel", classes="dialog-hint")
         yield Footer()
@@ -199,9 +201,8 @@ class ExportDialog(ModalScreen[str | None]):
     def _error(self, message: str) -> None:
         self.query_one("#export-error", Static).update(message)
 
-    @on(Input.Submitted)
-    def submitted(self, event: Input.Submitted) -> None:
-        text = event.value.strip()
+    def field_entered(self, field: TextEntry) -> None:
+        text = field.value.strip()
         if not text:
             self._error("✗ Type a file name.")
             return

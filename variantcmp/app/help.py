@@ -13,6 +13,7 @@ from textual.widgets import Footer, Static
 
 from variantcmp.caution import CAUTION
 
+from .keys import HoldsKeys, focus_now
 from .form import FIELDS
 from variantcmp.sketch import (
     LIMIT_LETTERS, MARKED_MARK, MARKED_MARK_ASCII, NO_ALTITUDE_MARK, TOP_MARK, TOP_MARK_ASCII,
@@ -109,7 +110,7 @@ def help_renderable() -> Group:
     return Group(*parts)
 
 
-class HelpScreen(Screen):
+class HelpScreen(HoldsKeys, Screen):
     BINDINGS = [Binding("escape,f1,question_mark", "close", "Close help")]
 
     def compose(self) -> ComposeResult:
@@ -119,7 +120,7 @@ class HelpScreen(Screen):
         yield Footer()
 
     def on_mount(self) -> None:
-        self.query_one(VerticalScroll).focus()
+        focus_now(self.query_one(VerticalScroll))
 
     def action_close(self) -> None:
         self.dismiss()

@@ -2,14 +2,16 @@
 
 from __future__ import annotations
 
+from functools import partial
 from pathlib import Path
 from time import perf_counter
 
 import polars as pl
-from textual import work
+from textual import events
 from textual.app import App
 from textual.binding import Binding
 from textual.screen import ModalScreen
+from textual.reactive import var
 from textual.signal import Signal
 
 from variantcmp.catalogue import Catalogue, CatalogueError, Problem, demo_catalogue_path, load_catalogue
@@ -21,15 +23,18 @@ from .form import DEFAULT_TEXTS, conditions_from_texts
 from .help import HelpScreen
 from .envelope_screen import EnvelopeScreen
 from .hotday import HotDayScreen
+from .jobs import LatestJob
+from .keys import KeyHold
 from .results import Results, compute
 from .sweep_screen import SweepScreen
 from .variant_info import VariantScreen
+from .widgets import COMPACT_BELOW_ROWS
 
 DARK_THEME = "textual-dark"
 LIGHT_THEME = "textual-light"
 
 
-class VariantCmpApp(App[int]):
+class VariantCmpApp(KeyHold, App[int]):
     """Compare a fleet's ceilings. State lives here so every screen follows the same conditions."""
 
     CSS_PATH = "variantcmp.tcss"
@@ -38,6 +43,7 @@ class VariantCmpApp(App[int]):
     # Top-level views, each keeping its own state while the user switches between them.
     MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen}
     DEFAULT_MODE = "compare"
+    compact_rows = var(False)  # a short terminal: one-line caution (widgets.CautionBanner)
     BINDINGS = [
         Binding("f1,question_mark", "help", "Help"),
         Binding("t", "toggle_theme", "Theme", show=False),
@@ -57,6 +63,7 @@ class VariantCmpApp(App[int]):
         self.catalogue_signal: Signal[Catalogue | None] = Signal(self, "catalogue")
         self.busy_signal: Signal[bool] = Signal(self, "busy")
         self._generation = 0
+        self._table_job = LatestJob(self, "compare")
         self.requested_at = perf_counter()
         self.last_export: str | None = None
         # What the compare screen hands to the drawing views (row keys of the shared table).
@@ -66,7 +73,11 @@ class VariantCmpApp(App[int]):
         self.sketch_ascii = terminal_wants_ascii()  # plain-ASCII drawings for dumb terminals (a toggles)
 
     def on_mount(self) -> None:
+        self.compact_rows = self.size.height < COMPACT_BELOW_ROWS
         self.open_catalogue(self.catalogue_path)
+
+    def on_resize(self, event: events.Resize) -> None:
+        self.compact_rows = event.size.height < COMPACT_BELOW_ROWS
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         # Dialogs own the keyboard: app-wide keys other than quit wait until they close.
@@ -122,15 +133,8 @@ class VariantCmpApp(App[int]):
         self._generation += 1
         self.requested_at = perf_counter()
         self.busy_signal.publish(True)
-        self._compute(self._generation, self.catalogue, self.conditions)
-
-    @work(thread=True, exclusive=True, group="compare", exit_on_error=False)
-    def _compute(self, generation: int, catalogue, conditions) -> None:
-        results = compute(catalogue, conditions)
-        try:
-            self.call_from_thread(self._deliver, generation, results)
-        except RuntimeError:  # the app closed while this ran
-            pass
+        self._table_job.request(partial(compute, self.catalogue, self.conditions),
+                                partial(self._deliver, self._generation))
 
     def _deliver(self, generation: int, results: Results) -> None:
         if generation != self._generation:

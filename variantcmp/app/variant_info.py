@@ -14,9 +14,11 @@ from textual.screen import Screen
 from textual.widgets import Footer, Static
 
 from variantcmp.catalogue import Engine, Variant
-from variantcmp.caution import CAUTION
 from variantcmp.table import variant_figures
 from variantcmp.units import format_altitude_ft
+
+from .keys import HoldsKeys, focus_now
+from .widgets import CautionBanner
 
 NONE = "—"
 
@@ -138,7 +140,7 @@ def _grid_summary(engine: Engine) -> str:
             f" x {len(mach)} Mach {mach[0]:g} to {mach[-1]:g}")
 
 
-class VariantScreen(Screen):
+class VariantScreen(HoldsKeys, Screen):
     BINDINGS = [
         Binding("escape", "close", "Back"),
         Binding("n", "step(1)", "Next variant"),
@@ -150,7 +152,7 @@ class VariantScreen(Screen):
         self.variant_id = variant_id
 
     def compose(self) -> ComposeResult:
-        yield Static(CAUTION, id="caution")
+        yield CautionBanner(id="caution")
         with VerticalScroll(id="variant-body"):
             yield Static(id="variant-head")
             yield Static(id="variant-figures")
@@ -160,7 +162,7 @@ class VariantScreen(Screen):
 
     def on_mount(self) -> None:
         self.show()
-        self.query_one(VerticalScroll).focus()
+        focus_now(self.query_one(VerticalScroll))
 
     def show(self) -> None:
         catalogue = self.app.catalogue
