@@ -8,6 +8,7 @@ code path as `variantcmp ceilings`. Timings are printed (run with -s), never ass
 from __future__ import annotations
 
 import asyncio
+import math
 import io
 import shutil
 import threading
@@ -925,3 +926,88 @@ def test_dumb_terminal_draws_ascii_and_no_color_gives_each_line_its_character(mo
     text = asyncio.run(envelope_text(app))
     assert not app.sketch_ascii and not any(ord(ch) in BRAILLE for ch in text)
     assert "│" in text and "▲ top" in text  # Unicode frame and marks, lines in their own characters
+
+
+# --- baseline, weight columns -------------------------------------------------------------------
+
+def _shown_ft(text: str) -> int | None:
+    text = text.replace(",", "").replace("±", "")
+    return None if text == "—" else int(text)
+
+
+def test_baseline_compares_each_row_at_the_same_weight_and_day():
+    conditions = Conditions(weights=(WeightSpec(40_000.0, "kg"), WeightSpec(90.0, "%mtow")), isa_devs_c=(0.0, 15.0))
+    expected = reference(conditions).to_dicts()
+    base_pair = ("v88", "ossel-78")
+
+    def expected_delta(row, match: str) -> int | None:
+        """Row minus the baseline's row at the same weight (kg or %MTOW) and deviation, by hand."""
+        weight = "weight_kg" if match == "kg" else "weight_pct_mtow"
+        same = [b for b in expected if (b["variant"], b["engine"]) == base_pair
+                and abs(b[weight] - row[weight]) < 1e-6 and b["isa_dev_c"] == row["isa_dev_c"]]
+        if not same:
+            return None
+        return math.floor(row["max_altitude_ft"]) - math.floor(same[0]["max_altitude_ft"])
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(120, 40)) as pilot:
+            await settle(app, pilot)
+            await pilot.press("c")
+            await replace_text(pilot, "40t,90%mtow")
+            await pilot.press("tab")
+            await replace_text(pilot, "0,15")
+            await press_settle(app, pilot, "enter")
+            screen = app.screen
+            table = screen.query_one("#table")
+            first_base = next(i for i, r in enumerate(expected) if (r["variant"], r["engine"]) == base_pair)
+            table.move_cursor(row=first_base)
+            await press_settle(app, pilot, "b")
+            ft = column_index(screen, "max_ft")
+            for match in ("pct", "kg"):  # typed weights mix kg and %MTOW: %MTOW first, then B
+                note = shown_text(screen.query_one("#baseline-note"))
+                assert note.startswith(f"Δ = row − {BASELINE_MARK} v88/ossel-78 at the same "
+                                       f"{'%MTOW' if match == 'pct' else 'weight in kg'}, ISA deviation and climb")
+                rows = table_rows(screen)
+                assert len(rows) == len(expected)
+                for shown, row in zip(rows, expected):
+                    if (row["variant"], row["engine"]) == base_pair:
+                        assert shown[0] == f"{BASELINE_MARK} v88" and shown[ft] == format_altitude_ft(row["max_altitude_ft"])
+                    else:
+                        assert _shown_ft(shown[ft]) == expected_delta(row, match), (shown, row, match)
+                assert "(—: it has no such row)" in note
+                await pilot.press("B")
+            # b on a row of the baseline pair unpins it.
+            table.move_cursor(row=first_base + 1)
+            await pilot.press("b")
+            assert not screen.query_one("#baseline-note").display
+            assert not any(r[0].startswith(BASELINE_MARK) for r in table_rows(screen))
+    run(body)
+
+
+def test_percent_of_mtow_column_and_weights_outside_the_variant_flagged():
+    conditions = Conditions(weights=(WeightSpec(12_000.0, "kg"), WeightSpec(100.0, "%mtow"), WeightSpec(110.0, "%mtow")))
+    expected = reference(conditions).to_dicts()
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(160, 40)) as pilot:
+            await settle(app, pilot)
+            await pilot.press("c")
+            await replace_text(pilot, "12t,100%mtow,110%mtow")
+            await press_settle(app, pilot, "enter")
+            screen = app.screen
+            pct, tonnes = column_index(screen, "pct_mtow"), column_index(screen, "weight")
+            rows = table_rows(screen)
+            assert len(rows) == len(expected)
+            for shown, row in zip(rows, expected):
+                flags = ("*" if row["over_mtow"] else "") + ("!" if row["below_empty_weight"] else "")
+                assert shown[pct] == f"{row['weight_pct_mtow']:.1f}".removesuffix(".0") + flags
+                assert shown[tonnes] == f"{row['weight_kg'] / 1000:.1f}" + flags
+            assert {r["weight_pct_mtow"] > 100 for r in expected if r["over_mtow"]} == {True}
+            over = sum(r["over_mtow"] for r in expected)
+            light = sum(r["below_empty_weight"] for r in expected)
+            assert over and light
+            status = shown_text(screen.query_one("#status"))
+            assert f"{over} above MTOW *" in status and f"{light} below empty weight !" in status
+    run(body)

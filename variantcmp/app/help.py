@@ -19,7 +19,10 @@ from variantcmp.sketch import (
     LIMIT_LETTERS, MARKED_MARK, MARKED_MARK_ASCII, NO_ALTITUDE_MARK, TOP_MARK, TOP_MARK_ASCII,
 )
 
-from .view import BASELINE_MARK, LIMIT_GLYPHS, LIMIT_MEANINGS, MAKES_IT, MAX_MARKED, NONE, SHORT_OF_IT, mark_sign
+from .view import (
+    BASELINE_MARK, BELOW_EMPTY_MARK, LIMIT_GLYPHS, LIMIT_MEANINGS, MAKES_IT, MAX_MARKED, NONE, OVER_MTOW_MARK,
+    SHORT_OF_IT, mark_sign,
+)
 
 TABLE_KEYS = [
     ("↑ ↓ pgup pgdn home end", "move in a table"),
@@ -86,11 +89,14 @@ def help_renderable() -> Group:
     parts += [fields, Text("")]
     signs = [(f"{LIMIT_GLYPHS[name]} {name}", LIMIT_MEANINGS[name]) for name in LIMIT_GLYPHS]
     signs += [
-        (BASELINE_MARK, "the pinned baseline row; Δ columns show other rows minus it"),
+        (BASELINE_MARK, "rows of the baseline variant x engine option (b); Δ columns show each other row minus "
+                        "the baseline at the same weight (%MTOW or kg, B switches), ISA deviation and climb"),
         (" ".join(mark_sign(i + 1) for i in range(MAX_MARKED)),
          "rows marked for the envelope overlay (m); the number tags the row's curve"),
         (f"{MAKES_IT} / {SHORT_OF_IT}", "reaches / does not reach the target flight level"),
-        ("*", "weight above the variant's MTOW (computed, and flagged)"),
+        (OVER_MTOW_MARK, "weight above the variant's MTOW (computed, and flagged)"),
+        (BELOW_EMPTY_MARK, "weight below the variant's operating empty weight (or 30 % of MTOW where none is "
+                           "given): computed, and flagged; likely a unit slip"),
         (NONE, "no value: the model cannot give one (see the note)"),
         ("Max FL", "flight level of the maximum altitude, rounded down"),
     ]
