@@ -1011,3 +1011,59 @@ def test_percent_of_mtow_column_and_weights_outside_the_variant_flagged():
             status = shown_text(screen.query_one("#status"))
             assert f"{over} above MTOW *" in status and f"{light} below empty weight !" in status
     run(body)
+
+
+# --- every key findable; pictures ---------------------------------------------------------------
+
+def test_every_key_is_in_the_footer_or_in_help_and_the_command_palette():
+    from variantcmp.app.help import key_commands
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(60, 15)) as pilot:
+            await settle(app, pilot)
+            # The palette's key stays on screen however narrow the footer.
+            palette_key = app.screen.query_one("FooterKey.-command-palette")
+            assert palette_key.region.right <= 60 and palette_key.region.y == 14
+            for path, cls in (([], CompareScreen), (["h"], HotDayScreen), (["v"], EnvelopeScreen),
+                              (["w"], SweepScreen), (["i"], VariantScreen), (["f1"], HelpScreen)):
+                await press_settle(app, pilot, *path)
+                assert isinstance(app.screen, cls)
+                titles = " | ".join(command.title for command in key_commands(app, app.screen))
+                for binding in (*cls.BINDINGS, *VariantCmpApp.BINDINGS):
+                    assert binding.description in titles, (cls.__name__, binding.key)
+                await press_settle(app, pilot, "escape")
+                if not isinstance(app.screen, CompareScreen):
+                    await press_settle(app, pilot, "escape")
+            # A key found in the palette by name, run with real keys: reverse the sort.
+            await press_settle(app, pilot, "s")
+            assert app.screen.descending
+            await press_settle(app, pilot, "ctrl+p")
+            await pilot.press(*"reverse sort")
+            await settle(app, pilot)
+            await press_settle(app, pilot, "enter")
+            assert isinstance(app.screen, CompareScreen) and not app.screen.descending
+    run(body)
+
+
+def test_save_the_view_as_an_svg_picture(tmp_path: Path, monkeypatch: pytest.MonkeyPatch):
+    monkeypatch.chdir(tmp_path)
+
+    async def body():
+        app = VariantCmpApp(None)
+        told: list[str] = []
+        notify = app.notify
+        app.notify = lambda message, **kw: (told.append(message), notify(message, **kw))[1]
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "f2")
+            compare = app.last_picture
+            assert compare is not None and compare.parent == tmp_path and compare.name.startswith("variantcmp-compare-")
+            svg = compare.read_text(encoding="utf-8")
+            assert svg.startswith("<svg") and "Caution" in svg and "brannick" in svg
+            assert told[-1] == f"Saved this view as {compare}"  # says where
+            await press_settle(app, pilot, "v")
+            await press_settle(app, pilot, "ctrl+s")
+            assert app.last_picture.name.startswith("variantcmp-envelope-") and app.last_picture != compare
+            assert sorted(p.suffix for p in tmp_path.iterdir()) == [".svg", ".svg"]  # nothing half-written left
+    run(body)

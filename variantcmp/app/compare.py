@@ -33,6 +33,8 @@ class CompareScreen(HoldsKeys, Screen):
     """Main screen. The drawing views read the app's conditions and the rows this screen hands over
     (`app.focus_key`, `app.shown_keys`, `app.marked_keys`)."""
 
+    PICTURE_NAME = "compare"  # in the name of a saved SVG (f2)
+
     BINDINGS = [
         Binding("c", "focus_conditions", "Conditions"),
         Binding("slash", "focus_filter", "Filter", show=False),  # the field's label shows the key

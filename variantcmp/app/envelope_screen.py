@@ -22,6 +22,7 @@ def speed_label(speed: str) -> str:
 
 
 class EnvelopeScreen(DrawingScreen):
+    PICTURE_NAME = "envelope"  # in the name of a saved SVG (f2)
     BINDINGS = [
         *DrawingScreen.BINDINGS,
         Binding("x", "speed_axis", "Speed", tooltip="speed axis: Mach, TAS kt, CAS kt in turn"),

@@ -2,10 +2,14 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+from functools import partial
+
 from rich.console import Group
+from rich.markup import escape
 from rich.table import Table
 from rich.text import Text
-from textual.app import ComposeResult
+from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.containers import VerticalScroll
 from textual.screen import Screen
@@ -47,6 +51,21 @@ def _bindings(cls) -> list[tuple[str, str]]:
             does = f"{does} ({binding.tooltip})"
         rows.append((shown, does))
     return rows
+
+
+def key_commands(app, screen) -> Iterable[SystemCommand]:
+    """Every key of ``screen`` and of the app as a command-palette entry that does what the key does."""
+    for node in (screen, app):
+        for binding in type(node).BINDINGS:
+            if not isinstance(binding, Binding):
+                binding = Binding(*binding)
+            keys = " / ".join(_key_display(key.strip(), binding) for key in binding.key.split(","))
+            title = binding.description or binding.action
+            if binding.group is not None:
+                title = f"{binding.group.description}: {title}"
+            # The palette reads its text as markup: a key such as "[" must not open a tag.
+            yield SystemCommand(escape(f"{title}  ({keys})"), escape(binding.tooltip or f"key {keys}"),
+                                partial(app.run_action, binding.action, node))
 
 
 def _key_display(key: str, binding: Binding) -> str:
@@ -117,6 +136,7 @@ def help_renderable() -> Group:
 
 
 class HelpScreen(HoldsKeys, Screen):
+    PICTURE_NAME = "help"  # in the name of a saved SVG (f2)
     BINDINGS = [Binding("escape,f1,question_mark", "close", "Close help")]
 
     def compose(self) -> ComposeResult:

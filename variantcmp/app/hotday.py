@@ -25,6 +25,7 @@ LOOKUP_FIELDS = ("weight", "isa", "target")
 
 
 class HotDayScreen(HoldsKeys, Screen):
+    PICTURE_NAME = "hot-day"  # in the name of a saved SVG (f2)
     BINDINGS = [
         Binding("escape", "compare", "Compare"),
         Binding("c", "focus_fields", "Fields"),

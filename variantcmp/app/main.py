@@ -2,13 +2,14 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from functools import partial
 from pathlib import Path
 from time import perf_counter
 
 import polars as pl
 from textual import events
-from textual.app import App
+from textual.app import App, SystemCommand
 from textual.binding import Binding
 from textual.screen import ModalScreen
 from textual.reactive import var
@@ -20,11 +21,12 @@ from variantcmp.sketch import terminal_wants_ascii
 from .compare import CompareScreen
 from .dialogs import ExportDialog, OpenDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
-from .help import HelpScreen
+from .help import HelpScreen, key_commands
 from .envelope_screen import EnvelopeScreen
 from .hotday import HotDayScreen
 from .jobs import LatestJob
 from .keys import KeyHold
+from .picture import save_view
 from .results import Results, compute
 from .sweep_screen import SweepScreen
 from .variant_info import VariantScreen
@@ -39,7 +41,8 @@ class VariantCmpApp(KeyHold, App[int]):
 
     CSS_PATH = "variantcmp.tcss"
     TITLE = "variantcmp"
-    ENABLE_COMMAND_PALETTE = False
+    # ctrl+p: every key of the screen on show (and of the app), found by name and run (help.key_commands).
+    ENABLE_COMMAND_PALETTE = True
     # Top-level views, each keeping its own state while the user switches between them.
     MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen}
     DEFAULT_MODE = "compare"
@@ -47,7 +50,10 @@ class VariantCmpApp(KeyHold, App[int]):
     BINDINGS = [
         Binding("f1,question_mark", "help", "Help"),
         Binding("t", "toggle_theme", "Theme", show=False),
-        Binding("q", "quit", "Quit"),
+        Binding("f2,ctrl+s", "save_picture", "Save SVG", show=False,
+                tooltip="save the view on screen as an SVG picture in the working folder, for a report"),
+        # The footer keeps its room for the screen's keys; q is in help and the palette, and ctrl+c says it.
+        Binding("q", "quit", "Quit", show=False),
     ]
 
     def __init__(self, catalogue_path: str | Path | None = None) -> None:
@@ -66,6 +72,7 @@ class VariantCmpApp(KeyHold, App[int]):
         self._table_job = LatestJob(self, "compare")
         self.requested_at = perf_counter()
         self.last_export: str | None = None
+        self.last_picture: Path | None = None  # the last view saved as SVG
         # What the compare screen hands to the drawing views (row keys of the shared table).
         self.focus_key: str | None = None  # the row under the compare cursor
         self.shown_keys: list[str] = []  # rows the compare screen shows, in its order
@@ -165,6 +172,19 @@ class VariantCmpApp(KeyHold, App[int]):
     def action_help(self) -> None:
         if not isinstance(self.screen, HelpScreen):
             self.push_screen(HelpScreen())
+
+    def get_system_commands(self, screen) -> Iterable[SystemCommand]:
+        yield from key_commands(self, screen)
+
+    def action_save_picture(self) -> None:
+        folder = Path.cwd()
+        try:
+            path = save_view(self, folder)
+        except OSError as error:
+            self.notify(f"Could not save a picture in {folder}: {error}", title="Save SVG", severity="error")
+            return
+        self.last_picture = path
+        self.notify(f"Saved this view as {path}", title="Save SVG")
 
     def action_toggle_theme(self) -> None:
         self.theme = LIGHT_THEME if self.current_theme.dark else DARK_THEME

@@ -48,6 +48,7 @@ def narrowed_sweep(catalogue, conditions, over: str, pairs: tuple[tuple[str, str
 
 
 class SweepScreen(DrawingScreen):
+    PICTURE_NAME = "sweep"  # in the name of a saved SVG (f2)
     BINDINGS = [
         *DrawingScreen.BINDINGS,
         Binding("w", "over('weight')", "Weight", group=_SWEEP_OVER),

@@ -141,6 +141,7 @@ def _grid_summary(engine: Engine) -> str:
 
 
 class VariantScreen(HoldsKeys, Screen):
+    PICTURE_NAME = "variant"  # in the name of a saved SVG (f2)
     BINDINGS = [
         Binding("escape", "close", "Back"),
         Binding("n", "step(1)", "Next variant"),
