@@ -25,7 +25,8 @@ from textual import events
 from variantcmp.app import VariantCmpApp
 from variantcmp.app.compare import CompareScreen
 from variantcmp.app import envelope_screen
-from variantcmp.app.dialogs import ConfirmDialog, ExportDialog, OpenDialog, ProblemsScreen
+from variantcmp.app.dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
+from variantcmp.app.open_dialog import OpenDialog
 from variantcmp.app.envelope_screen import EnvelopeScreen
 from variantcmp.app.help import HelpScreen
 from variantcmp.app.hotday import HotDayScreen
@@ -1066,4 +1067,51 @@ def test_save_the_view_as_an_svg_picture(tmp_path: Path, monkeypatch: pytest.Mon
             await press_settle(app, pilot, "ctrl+s")
             assert app.last_picture.name.startswith("variantcmp-envelope-") and app.last_picture != compare
             assert sorted(p.suffix for p in tmp_path.iterdir()) == [".svg", ".svg"]  # nothing half-written left
+    run(body)
+
+
+def test_a_filter_matching_nothing_says_so_and_keys_on_the_empty_table_are_harmless():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "slash", "z", "escape", "up", "down", "enter", "b", "m", "v")
+            assert isinstance(app.screen, CompareScreen)
+            status = shown_text(app.screen.query_one("#status"))
+            assert "0/8 rows" in status and "no row matches “z”" in status
+    run(body)
+
+
+def test_open_dialog_starts_in_the_working_folder_and_lists_the_bundled_fleets(tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    shutil.copyfile(demo_catalogue_path(), tmp_path / "my-fleet.toml")
+    bundled = sorted(p.stem for p in demo_catalogue_path().parent.glob("*.toml"))
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "o")
+            dialog = app.screen
+            assert isinstance(dialog, OpenDialog)
+            assert dialog.query_one("#path").value == ""  # no long path to clear first
+            assert str(tmp_path) in str(dialog.query_one("#open-folder").render())
+            listed = [str(o.prompt) for o in dialog.query_one("#open-choices").options]
+            assert [name.split()[0] for name in listed] == [*bundled, "my-fleet.toml"]
+            await pilot.press(*"zzz")
+            await pilot.pause()
+            assert "No bundled fleet or .toml file here matches “zzz”" in shown_text(dialog.query_one("#open-matches"))
+            assert not dialog.query_one("#open-choices").display
+            dialog.query_one("#path").value = ""
+            await pilot.press(*"tallon")
+            await pilot.pause()
+            assert [str(o.prompt).split()[0] for o in dialog.query_one("#open-choices").options] == [
+                "tallon-fells-survey"]
+            await press_settle(app, pilot, "down", "enter")  # pick it from the list
+            assert isinstance(app.screen, CompareScreen) and "Tallon" in app.catalogue.title
+            # A bundled fleet by its name, and a file of the working folder by a relative path.
+            await press_settle(app, pilot, "o", *"fernholt-regional", "enter")
+            assert "Fernholt" in app.catalogue.title and app.catalogue.path == demo_catalogue_path()
+            await press_settle(app, pilot, "o", *"my-fleet.toml", "enter")
+            assert app.catalogue.path.resolve() == (tmp_path / "my-fleet.toml").resolve()
     run(body)

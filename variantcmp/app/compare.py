@@ -211,6 +211,9 @@ class CompareScreen(HoldsKeys, Screen):
 
     def update_status(self, results: Results, view: pl.DataFrame) -> None:
         parts = [f"{view.height}/{results.df.height} rows"]
+        typed = self.query_one("#filter", Input).value.strip()
+        if typed and view.height == 0:
+            parts.append(f"no row matches “{typed}” (/ to change the filter)")
         column = self._sort_column()
         if column is not None:
             parts.append(f"sorted by {column.header} {'▼' if self.descending else '▲'}")

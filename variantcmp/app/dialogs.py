@@ -1,4 +1,4 @@
-"""Dialogs: open a catalogue, a catalogue's problems, export a table, confirm an overwrite."""
+"""Dialogs: a catalogue's problems, export a table, confirm an overwrite (opening one: `open_dialog`)."""
 
 from __future__ import annotations
 
@@ -12,38 +12,14 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
-from textual.suggester import Suggester
 from textual.widgets import Button, Footer, Label, Static
 
 from variantcmp.catalogue import Catalogue, Problem
 
 from .keys import HoldsKeys, focus_now
-from .widgets import TextEntry
+from .widgets import PathSuggester, TextEntry
 
 EXPORT_FORMATS = {".csv": "CSV", ".parquet": "Parquet", ".json": "JSON"}
-
-
-class PathSuggester(Suggester):
-    """Completes a typed path with the first matching file or folder name."""
-
-    def __init__(self, suffixes: tuple[str, ...] = ()) -> None:
-        super().__init__(use_cache=False, case_sensitive=True)
-        self.suffixes = suffixes
-
-    async def get_suggestion(self, value: str) -> str | None:
-        if not value:
-            return None
-        typed = Path(value).expanduser()
-        folder, stem = (typed, "") if value.endswith("/") else (typed.parent, typed.name)
-        try:
-            names = sorted(p for p in folder.iterdir() if p.name.startswith(stem) and not p.name.startswith("."))
-        except OSError:
-            return None
-        for candidate in names:
-            if candidate.is_dir() or not self.suffixes or candidate.suffix in self.suffixes:
-                rest = candidate.name[len(stem):] + ("/" if candidate.is_dir() else "")
-                return value + rest if rest else None
-        return None
 
 
 def write_table(df: pl.DataFrame, path: Path) -> None:
@@ -57,40 +33,6 @@ def write_table(df: pl.DataFrame, path: Path) -> None:
         df.write_json(path)
     else:
         raise ValueError(f"unknown format {suffix!r}")
-
-
-class OpenDialog(HoldsKeys, ModalScreen[str | None]):
-    """Ask for a catalogue file."""
-
-    BINDINGS = [Binding("escape", "cancel", "Cancel")]
-
-    def __init__(self, initial: str) -> None:
-        super().__init__()
-        self.initial = initial
-
-    def compose(self) -> ComposeResult:
-        with Vertical(classes="dialog", id="open-dialog") as box:
-            box.border_title = "Open a catalogue"
-            yield Label("TOML catalogue file (tab completes a suggestion):")
-            yield TextEntry(self.initial, id="path", suggester=PathSuggester((".toml",)))
-            yield Static("", classes="dialog-error", id="open-error")
-            yield Static("enter open · esc cancel", classes="dialog-hint")
-        yield Footer()
-
-    def field_entered(self, field: TextEntry) -> None:
-        text = field.value.strip()
-        error = self.query_one("#open-error", Static)
-        if not text:
-            error.update("✗ Type the path of a catalogue file.")
-            return
-        path = Path(text).expanduser()
-        if not path.is_file():
-            error.update(f"✗ {path}: no such file." if not path.exists() else f"✗ {path} is not a file.")
-            return
-        self.dismiss(str(path))
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)
 
 
 class ProblemsScreen(HoldsKeys, ModalScreen[None]):

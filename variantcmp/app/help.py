@@ -86,10 +86,11 @@ def _keys_table(title: str, rows: list[tuple[str, str]]) -> Table:
 
 def help_renderable() -> Group:
     from .compare import CompareScreen
-    from .dialogs import ConfirmDialog, ExportDialog, OpenDialog, ProblemsScreen
+    from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
     from .envelope_screen import EnvelopeScreen
     from .hotday import HotDayScreen
     from .main import VariantCmpApp
+    from .open_dialog import OpenDialog
     from .sweep_screen import SweepScreen
     from .variant_info import VariantScreen
 

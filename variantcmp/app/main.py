@@ -19,13 +19,14 @@ from variantcmp.catalogue import Catalogue, CatalogueError, Problem, demo_catalo
 from variantcmp.sketch import terminal_wants_ascii
 
 from .compare import CompareScreen
-from .dialogs import ExportDialog, OpenDialog, ProblemsScreen
+from .dialogs import ExportDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
 from .help import HelpScreen, key_commands
 from .envelope_screen import EnvelopeScreen
 from .hotday import HotDayScreen
 from .jobs import LatestJob
 from .keys import KeyHold
+from .open_dialog import OpenDialog
 from .picture import save_view
 from .results import Results, compute
 from .sweep_screen import SweepScreen
@@ -121,7 +122,7 @@ class VariantCmpApp(KeyHold, App[int]):
             if path:
                 self.open_catalogue(path)
 
-        self.push_screen(OpenDialog(str(self.catalogue_path)), chosen)
+        self.push_screen(OpenDialog(), chosen)
 
     # --- conditions and results ----------------------------------------------------
 

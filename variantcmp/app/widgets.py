@@ -1,8 +1,11 @@
-"""The app's own small widgets: a text entry field and the caution banner."""
+"""The app's own small widgets: a text entry field, file-name completion, the caution banner."""
 
 from __future__ import annotations
 
+from pathlib import Path
+
 from rich.text import Text
+from textual.suggester import Suggester
 from textual.widget import Widget
 from textual.widgets import Input
 
@@ -37,6 +40,33 @@ class TextEntry(Input):
             await super().action_submit()
         else:
             entered(self)
+
+
+class PathSuggester(Suggester):
+    """Completes a typed path (from ``base``, else the working folder) with the first matching file
+    or folder name."""
+
+    def __init__(self, suffixes: tuple[str, ...] = (), base: Path | None = None) -> None:
+        super().__init__(use_cache=False, case_sensitive=True)
+        self.suffixes = suffixes
+        self.base = base
+
+    async def get_suggestion(self, value: str) -> str | None:
+        if not value:
+            return None
+        typed = Path(value).expanduser()
+        if self.base is not None and not typed.is_absolute():
+            typed = self.base / typed
+        folder, stem = (typed, "") if value.endswith("/") else (typed.parent, typed.name)
+        try:
+            names = sorted(p for p in folder.iterdir() if p.name.startswith(stem) and not p.name.startswith("."))
+        except OSError:
+            return None
+        for candidate in names:
+            if candidate.is_dir() or not self.suffixes or candidate.suffix in self.suffixes:
+                rest = candidate.name[len(stem):] + ("/" if candidate.is_dir() else "")
+                return value + rest if rest else None
+        return None
 
 
 class CautionBanner(Widget):
