@@ -1115,3 +1115,37 @@ def test_open_dialog_starts_in_the_working_folder_and_lists_the_bundled_fleets(t
             await press_settle(app, pilot, "o", *"my-fleet.toml", "enter")
             assert app.catalogue.path.resolve() == (tmp_path / "my-fleet.toml").resolve()
     run(body)
+
+
+def test_variant_view_gives_tas_and_cas_at_the_maximum_altitude_in_one_altitude_unit():
+    from test_airspeed_columns import pitot_reference_kt
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(120, 50)) as pilot:
+            await settle(app, pilot)
+            await pilot.press("c")
+            await replace_text(pilot, "95%mtow")
+            await pilot.press("tab")
+            await replace_text(pilot, "ISA+15")
+            await press_settle(app, pilot, "enter", "i")
+            screen = app.screen
+            assert isinstance(screen, VariantScreen)
+            text = shown_text(screen.query_one("#variant-conditions"), width=120)
+            expected = reference(app.conditions).filter(pl.col("variant") == screen.variant_id)
+            assert expected.height >= 2
+            for row in expected.iter_rows(named=True):
+                line = next(line for line in text.splitlines() if line.strip().startswith(row["engine"] + " "))
+                tas, cas = pitot_reference_kt(row["max_altitude_ft"], row["mach"], row["isa_dev_c"])
+                assert line.split()[-2:] == [f"{tas:.0f}", f"{cas:.0f}"], line
+                assert format_flight_level(row["max_altitude_ft"]) in line
+            whole = " ".join(shown_text(screen.query_one(f"#variant-{part}"), width=120)
+                             for part in ("conditions", "figures", "engines", "values"))
+            assert "kg/m²" in whole and "kg/m2" not in whole
+            assert " km" not in whole and " m " not in whole  # altitudes in ft only
+            # The conditions change on the compare screen: the view follows when back.
+            await press_settle(app, pilot, "escape", "c")
+            await replace_text(pilot, "90%mtow")
+            await press_settle(app, pilot, "enter", "i")
+            assert " 90 " in shown_text(app.screen.query_one("#variant-conditions"), width=120)
+    run(body)

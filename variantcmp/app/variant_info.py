@@ -1,10 +1,12 @@
-"""Inspect one variant: its catalogue values, derived figures and engine options."""
+"""Inspect one variant: its maximum altitudes at the shared conditions with the airspeeds there,
+its derived figures, engine options and catalogue values. Altitudes in ft throughout."""
 
 from __future__ import annotations
 
 import math
 from dataclasses import fields
 
+import polars as pl
 from rich.table import Table
 from rich.text import Text
 from textual.app import ComposeResult
@@ -13,14 +15,14 @@ from textual.containers import VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Footer, Static
 
+from variantcmp.airspeed_columns import AIRSPEED_COLUMNS, with_airspeeds
 from variantcmp.catalogue import Engine, Variant
 from variantcmp.table import variant_figures
 from variantcmp.units import format_altitude_ft
 
 from .keys import HoldsKeys, focus_now
+from .view import COLUMNS_BY_KEY, NONE, cell
 from .widgets import CautionBanner
-
-NONE = "—"
 
 # Unit suffixes of catalogue and figure names, written for people.
 _UNITS = (
@@ -33,7 +35,17 @@ _NAMES = {
     "max_altitude_ft": "certified maximum altitude", "oswald_e": "Oswald factor e",
     "ld_max": "best lift-to-drag ratio", "cl_star": "CL at best lift-to-drag",
     "static_thrust_kn": "static thrust per engine", "flat_rate_isa_dev_c": "flat rated up to ISA+",
-    "lapse_exponent_above_tropopause": "lapse exponent above 11 km",
+    "lapse_exponent_above_tropopause": "lapse exponent above the tropopause (36,089 ft)",
+    "cruise_mach": "cruise Mach", "buffet_mach": "buffet onset Mach", "buffet_cl": "buffet onset CL",
+    "induced_drag_k": "K as given", "sweep_deg": "wing sweep", "korn_factor": "Korn factor",
+    "max_cabin_dp_kpa": "maximum cabin pressure differential", "engine_count": "engines",
+}
+# Derived figures (variantcmp.table.variant_figures) by their key: a name and a unit for people.
+_FIGURES = {
+    "K": ("K (induced drag factor)", ""), "L/D max": ("best lift-to-drag ratio", ""),
+    "CL at L/D max": ("CL at best lift-to-drag", ""), "Wing loading kg/m2": ("wing loading at MTOW", "kg/m²"),
+    "T/W static at MTOW": ("static thrust-to-weight at MTOW", ""),
+    "Absolute ceiling ft (MTOW, ISA)": ("absolute ceiling (MTOW, ISA, best speed)", "ft"),
 }
 # Thrust-table grids are summarised in one line rather than listed value by value.
 _GRID_FIELDS = ("table_altitude_ft", "table_mach", "table_thrust_fraction")
@@ -45,13 +57,16 @@ _MODEL_FIELDS = {"lapse_exponent": "density-lapse", "lapse_exponent_above_tropop
 
 
 def _name_and_unit(key: str) -> tuple[str, str]:
+    if key in _FIGURES:
+        return _FIGURES[key]
     if key == "hot_day_loss_per_c":
         return "thrust loss above flat rating", "fraction per °C"
     for suffix, unit in sorted(_UNITS, key=lambda item: -len(item[0])):
         if key.endswith(suffix):
             base = key[: -len(suffix)]
             return _NAMES.get(key, base.replace("_", " ")), unit
-    return _NAMES.get(key, key.replace("_", " ")), ""
+    # A figure named with its unit in it (e.g. "... kg/m2"): write the unit for people.
+    return _NAMES.get(key, key.replace("_", " ")).replace("m2", "m²"), ""
 
 
 def _value(key: str, value) -> str:
@@ -140,6 +155,26 @@ def _grid_summary(engine: Engine) -> str:
             f" x {len(mach)} Mach {mach[0]:g} to {mach[-1]:g}")
 
 
+# The shared conditions' rows of a variant: these columns, then the airspeeds at the maximum altitude.
+_AT_CONDITIONS = ("engine", "weight", "pct_mtow", "isa", "climb", "fl", "max_ft", "limit", "mach")
+
+
+def conditions_table(rows: pl.DataFrame) -> Table:
+    """The variant's rows of the shared results, with TAS and CAS at each maximum altitude."""
+    table = Table(title="Maximum altitudes at the compare screen's conditions, and the airspeeds there",
+                  title_justify="left", box=None, padding=(0, 1))
+    columns = [COLUMNS_BY_KEY[key] for key in _AT_CONDITIONS]
+    for column in columns:
+        table.add_column(column.header, justify="left" if column.kind in ("text", "limit") else "right",
+                         no_wrap=True)
+    table.add_column("TAS kt", justify="right")
+    table.add_column("CAS kt", justify="right")
+    for row in with_airspeeds(rows).iter_rows(named=True):
+        speeds = [NONE if row[name] is None else f"{row[name]:.0f}" for name in AIRSPEED_COLUMNS]
+        table.add_row(*[cell(column, row).plain for column in columns], *speeds)
+    return table
+
+
 class VariantScreen(HoldsKeys, Screen):
     PICTURE_NAME = "variant"  # in the name of a saved SVG (f2)
     BINDINGS = [
@@ -156,6 +191,7 @@ class VariantScreen(HoldsKeys, Screen):
         yield CautionBanner(id="caution")
         with VerticalScroll(id="variant-body"):
             yield Static(id="variant-head")
+            yield Static(id="variant-conditions")
             yield Static(id="variant-figures")
             yield Static(id="variant-engines")
             yield Static(id="variant-values")
@@ -163,7 +199,18 @@ class VariantScreen(HoldsKeys, Screen):
 
     def on_mount(self) -> None:
         self.show()
+        self.app.results_signal.subscribe(self, lambda _: self.show_conditions())
         focus_now(self.query_one(VerticalScroll))
+
+    def show_conditions(self) -> None:
+        results = self.app.results
+        box = self.query_one("#variant-conditions", Static)
+        if results is None or results.df is None:
+            box.update(Text("No results yet: set the conditions on the compare screen."))
+            return
+        rows = results.df.filter(pl.col("variant") == self.variant_id)
+        box.update(conditions_table(rows) if rows.height else Text(
+            "The compare screen's conditions select no engine option of this variant."))
 
     def show(self) -> None:
         catalogue = self.app.catalogue
@@ -176,6 +223,7 @@ class VariantScreen(HoldsKeys, Screen):
         head.append(f"  ({variant.id}) · {variant.engine_count} engines · options: "
                     f"{', '.join(variant.engine_options)}")
         self.query_one("#variant-head", Static).update(head)
+        self.show_conditions()
         self.query_one("#variant-values", Static).update(
             _pairs_table("Catalogue values", catalogue_pairs(variant)))
         try:
