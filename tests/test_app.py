@@ -1026,6 +1026,10 @@ def test_every_key_is_in_the_footer_or_in_help_and_the_command_palette():
             # The palette's key stays on screen however narrow the footer.
             palette_key = app.screen.query_one("FooterKey.-command-palette")
             assert palette_key.region.right <= 60 and palette_key.region.y == 14
+            # The keys that fit are shown whole, left of it; the rest are left out, not cut or overdrawn.
+            shown = [key for key in app.screen.query("FooterKey") if key.display and key is not palette_key]
+            assert shown and all(key.region.right <= palette_key.region.x for key in shown)
+            assert len(shown) < len(app.screen.query("FooterKey")) - 1
             for path, cls in (([], CompareScreen), (["h"], HotDayScreen), (["v"], EnvelopeScreen),
                               (["w"], SweepScreen), (["i"], VariantScreen), (["f1"], HelpScreen)):
                 await press_settle(app, pilot, *path)
@@ -1143,9 +1147,42 @@ def test_variant_view_gives_tas_and_cas_at_the_maximum_altitude_in_one_altitude_
                              for part in ("conditions", "figures", "engines", "values"))
             assert "kg/m²" in whole and "kg/m2" not in whole
             assert " km" not in whole and " m " not in whole  # altitudes in ft only
+            # Narrow: the airspeeds stay, the conditions' columns go first, and it says so.
+            await pilot.resize_terminal(60, 15)
+            await pilot.pause()
+            narrow = " ".join(shown_text(screen.query_one("#variant-conditions"), width=60).split())
+            assert "TAS kt" in narrow and "CAS kt" in narrow and "too narrow for: W t" in narrow
+            await pilot.resize_terminal(120, 50)
+            await pilot.pause()
             # The conditions change on the compare screen: the view follows when back.
             await press_settle(app, pilot, "escape", "c")
             await replace_text(pilot, "90%mtow")
             await press_settle(app, pilot, "enter", "i")
             assert " 90 " in shown_text(app.screen.query_one("#variant-conditions"), width=120)
     run(body)
+
+
+def test_readme_key_tables_are_true():
+    """Every key README's terminal-app section names is bound, and every key of the compare screen
+    and of the app is named there."""
+    import re
+
+    from variantcmp.app.open_dialog import OpenDialog as Open
+
+    readme = (Path(__file__).resolve().parent.parent / "README.md").read_text(encoding="utf-8")
+    section = readme.split("### The terminal app", 1)[1].split("\n## ", 1)[0]
+    names = {"esc": "escape", "?": "question_mark", "/": "slash", "F1": "f1", "F2": "f2"}
+    named = set()
+    for line in section.splitlines():
+        if line.startswith("| `"):
+            first = line.split("|")[1]
+            named |= {names.get(key, key) for key in re.findall(r"`([^`]+)`", first)}
+    screens = (VariantCmpApp, CompareScreen, HotDayScreen, EnvelopeScreen, SweepScreen, VariantScreen, HelpScreen,
+               ProblemsScreen, Open, ExportDialog, ConfirmDialog)
+    bound = {key.strip() for cls in screens for binding in cls.BINDINGS for key in binding.key.split(",")}
+    textual_keys = {"ctrl+p", "enter", "tab", "shift+tab"}  # the command palette, tables and fields
+    assert named - bound - textual_keys == set()
+    for cls in (VariantCmpApp, CompareScreen):
+        for binding in cls.BINDINGS:
+            for key in binding.key.split(","):
+                assert key.strip() in named or key.strip() == "escape", (cls.__name__, key)

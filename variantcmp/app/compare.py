@@ -11,7 +11,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Grid, Horizontal
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, Input, Label, ProgressBar, Static
+from textual.widgets import DataTable, Input, Label, ProgressBar, Static
 
 from .form import FIELDS
 from .keys import HoldsKeys, focus_now
@@ -21,7 +21,7 @@ from .view import (
     Baseline, Column, default_match, filter_rows, header, justify, mark_sign, row_cells, sort_rows, visible_columns,
     with_baseline,
 )
-from .widgets import CautionBanner, TextEntry
+from .widgets import CautionBanner, FittingFooter, TextEntry
 
 # The drawing views share one footer entry, so the compare screen's keys fit in 80 columns.
 _DRAW = Binding.Group("Draw")
@@ -93,7 +93,7 @@ class CompareScreen(HoldsKeys, Screen):
             yield ProgressBar(total=None, show_eta=False, show_percentage=False, id="busy")
         yield Static("", id="baseline-note")
         yield DataTable(id="table", cursor_type="row", zebra_stripes=True, fixed_columns=2)
-        yield Footer(compact=True)  # many keys: keep the row short at 80 columns
+        yield FittingFooter(compact=True)  # many keys: keep the row short at 80 columns
 
     def on_mount(self) -> None:
         self.query_one("#conditions").border_title = "Conditions"
@@ -227,7 +227,7 @@ class CompareScreen(HoldsKeys, Screen):
         if self.app.marked_keys:
             parts.append(f"{len(self.app.marked_keys)} marked")
         parts.append(f"updated in {self.update_ms:.0f} ms")
-        self.query_one("#status", Static).update(" · ".join(parts))
+        self.query_one("#status", Static).update(Text(" · ".join(parts), no_wrap=True, overflow="ellipsis"))
 
     def update_baseline_note(self, view: pl.DataFrame) -> None:
         """The line above the table that says what the Δ columns compare."""

@@ -12,12 +12,12 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
-from textual.widgets import Button, Footer, Label, Static
+from textual.widgets import Button, Label, Static
 
 from variantcmp.catalogue import Catalogue, Problem
 
 from .keys import HoldsKeys, focus_now
-from .widgets import PathSuggester, TextEntry
+from .widgets import FittingFooter, PathSuggester, TextEntry, shown_path
 
 EXPORT_FORMATS = {".csv": "CSV", ".parquet": "Parquet", ".json": "JSON"}
 
@@ -54,14 +54,14 @@ class ProblemsScreen(HoldsKeys, ModalScreen[None]):
         count = len(self.problems)
         with Vertical(classes="dialog", id="problems-dialog") as box:
             box.border_title = f"{self.path.name}: {count} problem{'s' if count != 1 else ''}"
-            yield Static(f"✗ The catalogue {self.path} did not load.", id="problems-head")
+            yield Static(f"✗ The catalogue {shown_path(self.path)} did not load.", id="problems-head")
             with VerticalScroll(id="problems"):
                 yield Static(self._problems_table(), id="problems-list")
             kept = (f"the table keeps showing “{self.last_good.title}”"
                     if self.last_good else "no catalogue is loaded yet")
             yield Static(f"Fix the file and press l to reload, or o to open another; {kept}.",
                          classes="dialog-hint")
-        yield Footer()
+        yield FittingFooter()
 
     def _problems_table(self) -> Table:
         table = Table(box=None, padding=(0, 1), expand=True, show_edge=False)
@@ -108,7 +108,7 @@ class ConfirmDialog(HoldsKeys, ModalScreen[bool]):
             with Horizontal(classes="buttons"):
                 yield Button(f"{self.yes} (y)", id="yes", variant="warning")
                 yield Button(f"{self.no} (n)", id="no", variant="primary")
-        yield Footer()
+        yield FittingFooter()
 
     def on_mount(self) -> None:
         focus_now(self.query_one("#no", Button))
@@ -138,7 +138,7 @@ class ExportDialog(HoldsKeys, ModalScreen[str | None]):
             yield TextEntry(self.initial, id="path", suggester=PathSuggester())
             yield Static("", classes="dialog-error", id="export-error")
             yield Static("enter write · esc cancel", classes="dialog-hint")
-        yield Footer()
+        yield FittingFooter()
 
     def _error(self, message: str) -> None:
         self.query_one("#export-error", Static).update(message)

@@ -13,7 +13,7 @@ from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.containers import VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, Static
+from textual.widgets import Static
 
 from variantcmp.caution import CAUTION
 
@@ -27,6 +27,7 @@ from .view import (
     BASELINE_MARK, BELOW_EMPTY_MARK, LIMIT_GLYPHS, LIMIT_MEANINGS, MAKES_IT, MAX_MARKED, NONE, OVER_MTOW_MARK,
     SHORT_OF_IT, mark_sign,
 )
+from .widgets import FittingFooter
 
 TABLE_KEYS = [
     ("↑ ↓ pgup pgdn home end", "move in a table"),
@@ -34,6 +35,8 @@ TABLE_KEYS = [
     ("enter", "open the variant of the row (tables)"),
     ("tab / shift+tab", "next / previous field"),
     ("click a column header", "sort by it; click again to reverse"),
+    ("ctrl+p", "command palette: find any key of the screen on show by its name, and run it"),
+    ("ctrl+c", "copy the selected text in a field (q quits)"),
 ]
 
 
@@ -100,7 +103,7 @@ def help_renderable() -> Group:
         ("Hot-day check", HotDayScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),
-        ("Export dialog", ExportDialog), ("Overwrite question", ConfirmDialog),
+        ("Export dialog", ExportDialog), ("Overwrite?", ConfirmDialog),
     ):
         parts += [_keys_table(title, _bindings(cls)), Text("")]
     parts += [_keys_table("Tables and fields", TABLE_KEYS), Text("")]
@@ -129,8 +132,9 @@ def help_renderable() -> Group:
         (letters, "binding limit along a sweep curve: "
                   + ", ".join(f"{letter} {name}" for name, letter in LIMIT_LETTERS.items())),
         (NO_ALTITUDE_MARK, "no altitude at that point of a sweep"),
-        ("line styles", "each boundary or curve has its own dash pattern and letter; the legend under "
-                        "the drawing explains them, so colour is never needed"),
+        ("line styles", "each boundary or curve has its own dash pattern, character and letter (without "
+                        "colour, NO_COLOR, each line is drawn in its own character); the legend under the "
+                        "drawing explains them and says where two curves coincide, so colour is never needed"),
     ]
     parts += [_keys_table("Signs in the drawings", drawings)]
     return Group(*parts)
@@ -144,7 +148,7 @@ class HelpScreen(HoldsKeys, Screen):
         with VerticalScroll(id="help-body") as body:
             body.border_title = "variantcmp help"
             yield Static(help_renderable(), id="help-text")
-        yield Footer()
+        yield FittingFooter()
 
     def on_mount(self) -> None:
         focus_now(self.query_one(VerticalScroll))

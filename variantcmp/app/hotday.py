@@ -10,13 +10,13 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, Input, Label, Static
+from textual.widgets import DataTable, Input, Label, Static
 
 from variantcmp.units import OptionError, format_flight_level
 
 from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
-from .widgets import CautionBanner, TextEntry
+from .widgets import CautionBanner, FittingFooter, TextEntry
 from .form import FIELDS_BY_KEY, parse_field
 from .results import Results, compute, export_frame
 from .view import COLUMNS_BY_KEY, MAKES_IT, NONE, ROW_KEY, SHORT_OF_IT, Cell, cell, justify
@@ -58,7 +58,7 @@ class HotDayScreen(HoldsKeys, Screen):
         yield Static("", id="lookup-errors")
         yield Static("", id="lookup-summary")
         yield DataTable(id="lookup-table", cursor_type="row", zebra_stripes=True, fixed_columns=2)
-        yield Footer()
+        yield FittingFooter()
 
     def on_mount(self) -> None:
         self.app.results_signal.subscribe(self, lambda _: self.recompute())

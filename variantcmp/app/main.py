@@ -31,7 +31,7 @@ from .picture import save_view
 from .results import Results, compute
 from .sweep_screen import SweepScreen
 from .variant_info import VariantScreen
-from .widgets import COMPACT_BELOW_ROWS
+from .widgets import COMPACT_BELOW_ROWS, shown_path
 
 DARK_THEME = "textual-dark"
 LIGHT_THEME = "textual-light"
@@ -185,7 +185,7 @@ class VariantCmpApp(KeyHold, App[int]):
             self.notify(f"Could not save a picture in {folder}: {error}", title="Save SVG", severity="error")
             return
         self.last_picture = path
-        self.notify(f"Saved this view as {path}", title="Save SVG")
+        self.notify(f"Saved this view as {shown_path(path)}", title="Save SVG")
 
     def action_toggle_theme(self) -> None:
         self.theme = LIGHT_THEME if self.current_theme.dark else DARK_THEME

@@ -10,13 +10,13 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Footer, Input, Label, OptionList, Static
+from textual.widgets import Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
 from variantcmp.catalogue import demo_catalogue_paths
 
 from .keys import HoldsKeys, focus_now
-from .widgets import PathSuggester, TextEntry
+from .widgets import FittingFooter, PathSuggester, TextEntry, shown_path
 
 
 def catalogue_choices(folder: Path) -> list[tuple[str, Path, str]]:
@@ -53,14 +53,14 @@ class OpenDialog(HoldsKeys, ModalScreen[str | None]):
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog", id="open-dialog") as box:
             box.border_title = "Open a catalogue"
-            yield Label(Text(f"In {self.folder}", no_wrap=True, overflow="ellipsis"), id="open-folder")
+            yield Label(Text(f"In {shown_path(self.folder)}", no_wrap=True, overflow="ellipsis"), id="open-folder")
             yield TextEntry("", id="path", placeholder="e.g. my-fleet.toml, or a name from the list",
                             suggester=PathSuggester((".toml",), self.folder))
             yield Static("", classes="dialog-error", id="open-error")
             yield OptionList(id="open-choices")
             yield Static("", classes="dialog-hint", id="open-matches")
             yield Static("enter open · ↓ the list · tab completes a file name · esc cancel", classes="dialog-hint")
-        yield Footer()
+        yield FittingFooter()
 
     def on_mount(self) -> None:
         self.show_choices("")

@@ -19,14 +19,14 @@ from textual.binding import Binding
 from textual.containers import Horizontal
 from textual.screen import Screen
 from textual.widget import Widget
-from textual.widgets import Footer, ProgressBar, Static
+from textual.widgets import ProgressBar, Static
 
 from variantcmp.sketch import MIN_HEIGHT, MIN_WIDTH, Drawing
 from variantcmp.units import OptionError
 
 from .jobs import LatestJob
 from .keys import HoldsKeys
-from .widgets import CautionBanner
+from .widgets import CautionBanner, FittingFooter
 from .results import Results
 from .view import ROW_KEY
 
@@ -142,7 +142,7 @@ class DrawingScreen(HoldsKeys, Screen):
             yield Static("", id="sketch-status")
             yield ProgressBar(total=None, show_eta=False, show_percentage=False, id="sketch-busy")
         yield SketchView(id="sketch")
-        yield Footer()
+        yield FittingFooter()
 
     @property
     def sketch(self) -> SketchView:

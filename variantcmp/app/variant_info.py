@@ -13,16 +13,16 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, Static
+from textual.widgets import Static
 
-from variantcmp.airspeed_columns import AIRSPEED_COLUMNS, with_airspeeds
+from variantcmp.airspeed_columns import with_airspeeds
 from variantcmp.catalogue import Engine, Variant
 from variantcmp.table import variant_figures
 from variantcmp.units import format_altitude_ft
 
 from .keys import HoldsKeys, focus_now
 from .view import COLUMNS_BY_KEY, NONE, cell
-from .widgets import CautionBanner
+from .widgets import CautionBanner, FittingFooter
 
 # Unit suffixes of catalogue and figure names, written for people.
 _UNITS = (
@@ -155,23 +155,42 @@ def _grid_summary(engine: Engine) -> str:
             f" x {len(mach)} Mach {mach[0]:g} to {mach[-1]:g}")
 
 
-# The shared conditions' rows of a variant: these columns, then the airspeeds at the maximum altitude.
-_AT_CONDITIONS = ("engine", "weight", "pct_mtow", "isa", "climb", "fl", "max_ft", "limit", "mach")
+# The shared conditions' rows of a variant, in this order; where the width is short the columns
+# are kept by importance (the airspeeds at the maximum altitude before the conditions).
+_AT_CONDITIONS = ("engine", "weight", "pct_mtow", "isa", "climb", "fl", "max_ft", "limit", "mach", "tas", "cas")
+_IMPORTANCE = ("engine", "fl", "mach", "tas", "cas", "limit", "max_ft", "isa", "weight", "pct_mtow", "climb")
+_SPEED_HEADERS = {"tas": "TAS kt", "cas": "CAS kt"}
 
 
-def conditions_table(rows: pl.DataFrame) -> Table:
-    """The variant's rows of the shared results, with TAS and CAS at each maximum altitude."""
-    table = Table(title="Maximum altitudes at the compare screen's conditions, and the airspeeds there",
-                  title_justify="left", box=None, padding=(0, 1))
-    columns = [COLUMNS_BY_KEY[key] for key in _AT_CONDITIONS]
-    for column in columns:
-        table.add_column(column.header, justify="left" if column.kind in ("text", "limit") else "right",
-                         no_wrap=True)
-    table.add_column("TAS kt", justify="right")
-    table.add_column("CAS kt", justify="right")
+def conditions_table(rows: pl.DataFrame, width: int = 200) -> Table:
+    """The variant's rows of the shared results, with TAS and CAS at each maximum altitude, in
+    ``width`` characters (columns left out by `_IMPORTANCE` where they do not fit, and said so)."""
+    texts: dict[str, list[str]] = {key: [] for key in _AT_CONDITIONS}
     for row in with_airspeeds(rows).iter_rows(named=True):
-        speeds = [NONE if row[name] is None else f"{row[name]:.0f}" for name in AIRSPEED_COLUMNS]
-        table.add_row(*[cell(column, row).plain for column in columns], *speeds)
+        for key in _AT_CONDITIONS:
+            if key in _SPEED_HEADERS:
+                value = row[f"{key}_kt"]
+                texts[key].append(NONE if value is None else f"{value:.0f}")
+            else:
+                texts[key].append(cell(COLUMNS_BY_KEY[key], row).plain)
+    headers = {key: _SPEED_HEADERS.get(key) or COLUMNS_BY_KEY[key].header for key in _AT_CONDITIONS}
+    room, kept = width, set()
+    for key in _IMPORTANCE:
+        need = max(len(text) for text in [headers[key], *texts[key]]) + 2  # padding: one each side
+        if need <= room:
+            kept.add(key)
+            room -= need
+    left_out = [headers[key] for key in _AT_CONDITIONS if key not in kept]
+    title = "Maximum altitudes at the compare screen's conditions, and the airspeeds there"
+    if left_out:
+        title += f" (too narrow for: {', '.join(left_out)})"
+    table = Table(title=title, title_justify="left", box=None, padding=(0, 1))
+    shown = [key for key in _AT_CONDITIONS if key in kept]
+    for key in shown:
+        left = key == "engine" or key == "limit"
+        table.add_column(headers[key], justify="left" if left else "right", no_wrap=True)
+    for i in range(rows.height):
+        table.add_row(*[texts[key][i] for key in shown])
     return table
 
 
@@ -195,12 +214,15 @@ class VariantScreen(HoldsKeys, Screen):
             yield Static(id="variant-figures")
             yield Static(id="variant-engines")
             yield Static(id="variant-values")
-        yield Footer()
+        yield FittingFooter()
 
     def on_mount(self) -> None:
         self.show()
         self.app.results_signal.subscribe(self, lambda _: self.show_conditions())
         focus_now(self.query_one(VerticalScroll))
+
+    def on_resize(self) -> None:
+        self.show_conditions()
 
     def show_conditions(self) -> None:
         results = self.app.results
@@ -209,7 +231,8 @@ class VariantScreen(HoldsKeys, Screen):
             box.update(Text("No results yet: set the conditions on the compare screen."))
             return
         rows = results.df.filter(pl.col("variant") == self.variant_id)
-        box.update(conditions_table(rows) if rows.height else Text(
+        width = self.query_one("#variant-body").content_size.width or self.app.size.width - 6
+        box.update(conditions_table(rows, width - 2) if rows.height else Text(
             "The compare screen's conditions select no engine option of this variant."))
 
     def show(self) -> None:

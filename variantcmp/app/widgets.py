@@ -1,4 +1,5 @@
-"""The app's own small widgets: a text entry field, file-name completion, the caution banner."""
+"""The app's own small widgets: a text entry field, file-name completion, the caution banner, a
+footer that fits."""
 
 from __future__ import annotations
 
@@ -7,7 +8,7 @@ from pathlib import Path
 from rich.text import Text
 from textual.suggester import Suggester
 from textual.widget import Widget
-from textual.widgets import Input
+from textual.widgets import Footer, Input, Label
 
 from variantcmp.caution import CAUTION, CAUTION_SHORT
 
@@ -20,6 +21,15 @@ CAUTION_LINES = (
 )
 # Below this many terminal rows the banner takes one line (the app's `compact_rows`).
 COMPACT_BELOW_ROWS = 20
+
+
+def shown_path(path: Path | str) -> str:
+    """A path as shown to the user: under the home folder written from ``~``."""
+    path = Path(path)
+    try:
+        return str(Path("~") / path.resolve().relative_to(Path.home().resolve()))
+    except (ValueError, OSError, RuntimeError):
+        return str(path)
 
 
 class TextEntry(Input):
@@ -103,3 +113,28 @@ class CautionBanner(Widget):
             if len(line) <= width:
                 return Text(line, no_wrap=True)
         return Text(CAUTION_LINES[-1], no_wrap=True, overflow="ellipsis")
+
+
+class FittingFooter(Footer):
+    """A footer that leaves out the keys that do not fit, whole, rather than cutting or overdrawing
+    them: the command palette's key (docked right) always shows, and the palette and help list
+    every key."""
+
+    async def recompose(self) -> None:
+        await super().recompose()
+        self.call_after_refresh(self._fit)
+
+    def on_resize(self) -> None:
+        for child in self.children:
+            child.display = True
+        self.call_after_refresh(self._fit)
+
+    def _fit(self) -> None:
+        palette = [child for child in self.children if child.has_class("-command-palette")]
+        right = self.region.right - sum(child.outer_size.width for child in palette)
+        keys = [child for child in self.children if child not in palette]
+        first_out = next((i for i, child in enumerate(keys) if child.region.right > right), len(keys))
+        if 0 < first_out < len(keys) and isinstance(keys[first_out], Label):
+            first_out -= 1  # a group's keys go with the group's label (a Label), or not at all
+        for child in keys[first_out:]:
+            child.display = False
