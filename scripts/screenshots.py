@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import asyncio
+import os
 import tempfile
 from pathlib import Path
 
@@ -22,7 +23,9 @@ ROOT = Path(__file__).resolve().parent.parent
 async def settle(app, pilot) -> None:
     """Wait for computations in worker threads and the redraw after them."""
     await pilot.pause()
-    await app.workers.wait_for_complete()
+    while any(not worker.is_finished for worker in app.workers):  # a finished job may start the one waiting
+        await app.workers.wait_for_complete()
+        await pilot.pause()
     await pilot.pause()
 
 
@@ -34,9 +37,44 @@ async def type_into(pilot, selector: str, text: str) -> None:
     await pilot.press("enter")
 
 
+BROKEN = (
+    '[catalogue]\ntitle = "Broken example"\n\n[[engine]]\nid = "e1"\nmodel = "density-lapse"\n'
+    'static_thrust_kn = -5\n\n[[variant]]\nid = "a1"\nengine_options = ["e9"]\n'
+    'engine_count = 2\nwing_area_m2 = 80\naspect_ratio = 9\noswald_e = 0.8\ncd0 = nan\n'
+    'cl_max = 1.4\nmtow_kg = 40000\ncruise_mach = 0.74\nwing_span_m = 30\n'
+)
+
+
+def stage_folder() -> Path:
+    """A fixed working folder with two catalogues, standing in for the home folder too, so the
+    pictures show "~" and the same names from run to run, never a path of the machine."""
+    folder = Path(tempfile.gettempdir()) / "variantcmp-screenshots"
+    folder.mkdir(exist_ok=True)
+    (folder / "broken-fleet.toml").write_text(BROKEN, encoding="utf-8")
+    (folder / "my-fleet.toml").write_text(demo_catalogue_path().read_text(encoding="utf-8"), encoding="utf-8")
+    return folder
+
+
 async def shoot(size: tuple[int, int], out: Path) -> list[Path]:
     out.mkdir(parents=True, exist_ok=True)
+    out = out.resolve()
     written: list[Path] = []
+    folder = stage_folder()
+    home, cwd = os.environ.get("HOME"), Path.cwd()
+    os.environ["HOME"] = str(folder)
+    os.chdir(folder)
+    try:
+        await _shoot(size, out, written)
+    finally:
+        os.chdir(cwd)
+        if home is None:
+            os.environ.pop("HOME", None)
+        else:
+            os.environ["HOME"] = home
+    return written
+
+
+async def _shoot(size: tuple[int, int], out: Path, written: list[Path]) -> None:
 
     def save(app, name: str) -> None:
         path = out / f"{name}.svg"
@@ -48,20 +86,24 @@ async def shoot(size: tuple[int, int], out: Path) -> list[Path]:
         await settle(app, pilot)
         save(app, "compare")
 
-        # A target flight level, sorted by maximum altitude, with a pinned baseline.
+        # A target flight level and two days, with a pinned baseline: each row against the
+        # baseline's row of the same %MTOW and day.
         await type_into(pilot, "#field-target", "FL350")
+        await type_into(pilot, "#field-isa", "0,15")
         await settle(app, pilot)
-        await pilot.press("s")  # sort by Max FL, highest first
-        await pilot.press("down", "b")  # pin the second row
+        await pilot.press("down", "down", "b")  # pin the second row's variant x engine option
         await settle(app, pilot)
         save(app, "compare-baseline")
+        await pilot.press("b")  # unpin (cursor is still on the baseline's row)
+        await type_into(pilot, "#field-isa", "0")
+        await settle(app, pilot)
+        await pilot.press("s")  # sort by Max FL, highest first
 
         # A bad value is reported in place; the table keeps the last good conditions.
         await type_into(pilot, "#field-weight", "62x")
         await settle(app, pilot)
         save(app, "compare-bad-input")
         await type_into(pilot, "#field-weight", "100%mtow")
-        await pilot.press("b")  # unpin (cursor is still on the baseline row)
         await settle(app, pilot)
 
         # Envelope of the row under the cursor, then three marked rows overlaid.
@@ -105,29 +147,23 @@ async def shoot(size: tuple[int, int], out: Path) -> list[Path]:
         save(app, "export")
         await pilot.press("escape")
 
-        # A broken catalogue: its problems, in the app.
-        # A fixed folder keeps the path in the picture the same from run to run.
-        folder = Path(tempfile.gettempdir()) / "variantcmp-screenshots"
-        folder.mkdir(exist_ok=True)
-        broken = folder / "broken-fleet.toml"
-        broken.write_text(
-            '[catalogue]\ntitle = "Broken example"\n\n[[engine]]\nid = "e1"\nmodel = "density-lapse"\n'
-            'static_thrust_kn = -5\n\n[[variant]]\nid = "a1"\nengine_options = ["e9"]\n'
-            'engine_count = 2\nwing_area_m2 = 80\naspect_ratio = 9\noswald_e = 0.8\ncd0 = nan\n'
-            'cl_max = 1.4\nmtow_kg = 40000\ncruise_mach = 0.74\nwing_span_m = 30\n',
-            encoding="utf-8",
-        )
+        # The open dialog: the working folder's catalogues and the bundled fleets, by name.
         await pilot.press("o")
         await settle(app, pilot)
-        field = app.screen.query_one("#path")
-        field.value = str(broken)
-        await pilot.press("enter")
+        save(app, "open")
+        await pilot.press("escape")
+        await settle(app, pilot)
+
+        # A broken catalogue of the working folder: its problems, in the app; then the demo again,
+        # by its bundled name.
+        await pilot.press("o")
+        await settle(app, pilot)
+        await pilot.press(*"broken-fleet.toml", "enter")
         await settle(app, pilot)
         save(app, "catalogue-problems")
         await pilot.press("escape", "o")
         await settle(app, pilot)
-        app.screen.query_one("#path").value = str(demo_catalogue_path())
-        await pilot.press("enter")
+        await pilot.press(*"fernholt-regional", "enter")
         await settle(app, pilot)
 
         # A sweep: one row per weight and deviation.
@@ -139,7 +175,14 @@ async def shoot(size: tuple[int, int], out: Path) -> list[Path]:
         app.action_toggle_theme()
         await settle(app, pilot)
         save(app, "compare-light")
-    return written
+        app.action_toggle_theme()
+
+        # A small terminal: the caution on one line, the footer and the palette key still there.
+        await type_into(pilot, "#field-weight", "100%mtow")
+        await type_into(pilot, "#field-isa", "0")
+        await pilot.resize_terminal(60, 15)
+        await settle(app, pilot)
+        save(app, "compare-60x15")
 
 
 def main() -> None:

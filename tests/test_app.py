@@ -8,6 +8,7 @@ code path as `variantcmp ceilings`. Timings are printed (run with -s), never ass
 from __future__ import annotations
 
 import asyncio
+import math
 import io
 import shutil
 import threading
@@ -19,11 +20,13 @@ import polars as pl
 import pytest
 from polars.testing import assert_frame_equal
 from rich.console import Console
+from textual import events
 
 from variantcmp.app import VariantCmpApp
 from variantcmp.app.compare import CompareScreen
 from variantcmp.app import envelope_screen
-from variantcmp.app.dialogs import ConfirmDialog, ExportDialog, OpenDialog, ProblemsScreen
+from variantcmp.app.dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
+from variantcmp.app.open_dialog import OpenDialog
 from variantcmp.app.envelope_screen import EnvelopeScreen
 from variantcmp.app.help import HelpScreen
 from variantcmp.app.hotday import HotDayScreen
@@ -70,7 +73,9 @@ def run(test):
 async def settle(app, pilot) -> None:
     """Let worker threads finish and the screens redraw with their results."""
     await pilot.pause()
-    await app.workers.wait_for_complete()
+    while any(not worker.is_finished for worker in app.workers):  # a finished job may start the one waiting
+        await app.workers.wait_for_complete()
+        await pilot.pause()
     await pilot.pause()
 
 
@@ -139,7 +144,7 @@ def test_first_table_is_ceilings_table():
             shown_matches_reference(app.screen, Conditions())
             # The caution is on screen without any key press.
             caution = app.screen.query_one("#caution")
-            assert caution.region.height >= 1 and shown_text(caution) == CAUTION
+            assert caution.region.height >= 1 and caution.plain == CAUTION
     run(body)
 
 
@@ -334,7 +339,7 @@ def test_inspect_variant():
             await pilot.press("i")
             await pilot.pause()
             assert isinstance(app.screen, VariantScreen)
-            assert shown_text(app.screen.query_one("#caution")) == CAUTION  # caution on this screen too
+            assert app.screen.query_one("#caution").plain == CAUTION  # caution on this screen too
             assert app.screen.variant_id == first.id
             figures = app.screen.query_one("#variant-figures").content
             engines = app.screen.query_one("#variant-engines").content
@@ -559,7 +564,7 @@ def test_envelope_of_the_selected_row_in_a_worker_with_speed_axes(monkeypatch: p
             assert screen.busy and "computing" in shown_text(screen.query_one("#sketch-status"))
             assert screen.query_one("#sketch-busy").display
             assert "Computing the envelope of v70/brannick-74" in screen.sketch.plain
-            assert shown_text(screen.query_one("#caution")) == CAUTION
+            assert screen.query_one("#caution").plain == CAUTION
             await pilot.press("x")  # speed axis while the worker runs
             assert screen.speed == "tas"
             gate.open.set()
@@ -622,7 +627,8 @@ def test_envelope_redraws_on_resize_without_recomputing():
                     assert "Mach" in lines[-1] or "Mach" in "".join(lines)
                 else:
                     assert "Enlarge the terminal" in screen.sketch.plain
-                assert shown_text(screen.query_one("#caution")) == CAUTION
+                caution = screen.query_one("#caution")
+                assert caution.plain == CAUTION if height >= 20 else caution.region.height == 1
                 assert screen.computations == 1  # never recomputed for a new size
     run(body)
 
@@ -696,7 +702,7 @@ def test_sweep_views_follow_the_compare_rows_and_conditions():
             assert sketch_lines(screen)[0].startswith("Max altitude vs weight")
             assert "weight t" in text and "limit along the curves: T thrust" in text and "FL" in text
             assert "6 curves" in status and "2 more not drawn" in status  # six line styles
-            assert shown_text(screen.query_one("#caution")) == CAUTION
+            assert screen.query_one("#caution").plain == CAUTION
             # The curves at MTOW end where the compare table says.
             frame = screen.result.sweep.frame
             for row in reference(Conditions()).iter_rows(named=True):
@@ -729,3 +735,454 @@ def test_sweep_views_follow_the_compare_rows_and_conditions():
             await press_settle(app, pilot, "v")
             assert isinstance(app.screen, EnvelopeScreen)
     run(body)
+
+
+# --- keys at full speed -------------------------------------------------------------------------
+# `pilot.press` waits for the app to go idle after every key; a user typing fast (or a paste, or a
+# key held down) does not. `burst` posts every key at once, as a terminal delivers fast typing.
+
+_KEY_NAMES = {"/": "slash", "%": "percent_sign", "?": "question_mark", ",": "comma", "-": "minus", "+": "plus",
+              ".": "full_stop", " ": "space"}
+
+
+def burst(app, *keys: str) -> None:
+    """Post key events for ``keys`` (names such as "tab", or single characters) without waiting."""
+    for key in keys:
+        if len(key) == 1:
+            app.post_message(events.Key(_KEY_NAMES.get(key, key), key))
+        else:
+            app.post_message(events.Key(key, None))
+
+
+def test_typing_at_full_speed_after_tab_goes_to_the_field_shown():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            burst(app, "c", *"95%mtow", "tab", *"ISA+15", "tab", *"FL350", "enter", "s")
+            await settle(app, pilot)
+            assert app.texts["weight"] == "95%mtow" and app.texts["isa"] == "ISA+15" and app.texts["target"] == "FL350"
+            assert app.conditions == Conditions(weights=(WeightSpec(95.0, "%mtow"),), isa_devs_c=(15.0,),
+                                                target_fl_ft=35000.0)
+            assert app.focused is app.screen.query_one("#table")  # enter left the field ...
+            assert app.screen.sort_key == "fl"  # ... so "s" sorted the table
+            shown_matches_reference_sorted = table_rows(app.screen)
+            assert len(shown_matches_reference_sorted) == reference(app.conditions).height
+    run(body)
+
+
+def test_keys_typed_while_a_screen_opens_or_closes_are_not_lost():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            burst(app, "h", *"FL360")  # typed before the hot-day screen has mounted
+            await settle(app, pilot)
+            assert isinstance(app.screen, HotDayScreen)
+            assert app.screen.query_one("#lookup-target").value == "FL360"
+            # Leave the field and the screen, then mark two rows, all at once.
+            burst(app, "escape", "escape", "m", "down", "m")
+            await settle(app, pilot)
+            assert isinstance(app.screen, CompareScreen)
+            rows = reference(Conditions()).to_dicts()
+            assert app.marked_keys == [f"{r['variant']}|{r['engine']}|0" for r in rows[:2]]
+    run(body)
+
+
+# --- key mashing --------------------------------------------------------------------------------
+# Seeded random keys for each screen, posted at full speed in bursts, with resizes between bursts:
+# no key sequence may raise (run_test re-raises anything the app raised). Keys that leave the
+# screen are left out of its mix; the race tests above and the screens' own tests cover leaving.
+
+MASH_PRESSES = 2000  # per screen
+MASH_BURST = 40
+_MOVES = ("up", "down", "pageup", "pagedown", "home", "end", "left", "right", "tab", "shift+tab")
+_TYPED = tuple("0159%mkFLz/-,") + ("backspace",)  # not t: a theme change restyles everything (76 ms)
+MASH_SIZES = ((80, 24), (60, 15), (120, 40), (100, 18))
+
+
+def _keys_of(cls, leaving: set[str]) -> list[str]:
+    keys = [key.strip() for binding in cls.BINDINGS for key in binding.key.split(",")]
+    return [key for key in dict.fromkeys(keys) if key not in leaving]
+
+
+async def mash(app, pilot, keys: list[str], seed: int, stay_on) -> int:
+    """Press ``MASH_PRESSES`` seeded random ``keys``; return how many bursts ended off ``stay_on``."""
+    import random
+
+    rng = random.Random(seed)
+    strayed = 0
+    for n in range(0, MASH_PRESSES, MASH_BURST):
+        burst(app, *rng.choices(keys, k=MASH_BURST))
+        await pilot.pause()
+        if n % (MASH_BURST * 10) == 0:
+            await pilot.resize_terminal(*MASH_SIZES[(n // (MASH_BURST * 10)) % len(MASH_SIZES)])
+        if not isinstance(app.screen, stay_on):
+            strayed += 1
+            await settle(app, pilot)
+            while len(app.screen_stack) > 1 and not isinstance(app.screen, stay_on):
+                app.pop_screen()
+                await pilot.pause()
+    await settle(app, pilot)
+    return strayed
+
+
+@pytest.mark.parametrize("name", ["compare", "hotday", "envelope", "sweep", "variant", "help", "open", "export"])
+def test_mashing_each_screens_keys_raises_nothing(name, tmp_path, monkeypatch: pytest.MonkeyPatch):
+    monkeypatch.chdir(tmp_path)  # an export or a picture lands here, not in the project
+    always_out = {"q", "f1", "question_mark", "ctrl+p", "ctrl+q", "ctrl+c"}
+    screens = {  # how to get there, the screen class, keys of it that leave it
+        "compare": ([], CompareScreen, {"h", "i", "v", "w", "e", "o", "enter"}),
+        "hotday": (["h"], HotDayScreen, {"i", "e", "enter", "escape"}),
+        "envelope": (["v"], EnvelopeScreen, {"escape", "c", "w"}),
+        "sweep": (["w"], SweepScreen, {"escape", "c", "v"}),
+        "variant": (["i"], VariantScreen, {"escape"}),
+        "help": (["f1"], HelpScreen, {"escape", "f1", "question_mark"}),
+        "open": (["o"], OpenDialog, {"escape", "enter"}),
+        "export": (["e"], ExportDialog, {"escape", "enter"}),
+    }
+    path, cls, leaving = screens[name]
+    keys = _keys_of(cls, leaving | always_out) + list(_MOVES) + list(_TYPED)
+    if name == "compare":
+        keys = [k for k in keys if k not in leaving]
+
+    async def body():
+        app = VariantCmpApp(None)
+        app.animation_level = "none"  # smooth scrolling would only make the test wait
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, *path)
+            assert isinstance(app.screen, cls)
+            started = time.perf_counter()
+            strayed = await mash(app, pilot, keys, seed=sum(map(ord, name)), stay_on=cls)
+            print(f"\n{name}: {MASH_PRESSES} keys in {time.perf_counter() - started:.1f} s ({strayed} bursts strayed)")
+            assert app.is_running
+    run(body)
+
+
+# --- small terminals, hints -------------------------------------------------------------------
+
+def test_placeholders_read_as_hints_in_no_color_too(monkeypatch: pytest.MonkeyPatch):
+    from variantcmp.app.form import FIELDS
+
+    assert all(field.placeholder.startswith("e.g. ") for field in FIELDS)
+    monkeypatch.setenv("NO_COLOR", "1")
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            target = app.screen.query_one("#field-target")
+            assert target.value == "" and target.render_line(0).text.strip() == "e.g. FL350"
+            await press_settle(app, pilot, "h")
+            target = app.screen.query_one("#lookup-target")
+            assert target.render_line(0).text.startswith("e.g. FL350")
+    run(body)
+
+
+def test_short_terminal_keeps_a_one_line_caution_the_footer_and_the_start_of_each_field():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(60, 15)) as pilot:
+            await settle(app, pilot)
+            screen = app.screen
+            caution = screen.query_one("#caution")
+            assert caution.region.height == 1 and caution.plain.startswith("Caution:")
+            assert "not approved" in caution.plain and "flight manual governs" in caution.plain
+            assert len(caution.plain) <= caution.content_size.width
+            footer = screen.query_one("Footer")
+            assert footer.region.y == 14 and footer.region.height == 1
+            assert screen.query_one("#table").region.height >= 3  # room left for rows
+            weight = screen.query_one("#field-weight")
+            assert weight.render_line(0).text.startswith("100%")
+            # Typed into and left: the field shows its start again.
+            await pilot.press("c")
+            await replace_text(pilot, "90%mtow,100%mtow")
+            await press_settle(app, pilot, "tab")
+            assert weight.render_line(0).text.startswith("90%mtow")
+            # Room again: the caution in full.
+            await pilot.resize_terminal(100, 30)
+            await pilot.pause()
+            assert caution.plain == CAUTION and caution.region.height >= 2
+            await pilot.resize_terminal(60, 15)
+            await press_settle(app, pilot, "v")  # the drawing screens follow the size too
+            assert app.screen.query_one("#caution").region.height == 1
+    run(body)
+
+
+def test_dumb_terminal_draws_ascii_and_no_color_gives_each_line_its_character(monkeypatch: pytest.MonkeyPatch):
+    async def envelope_text(app) -> str:
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "v")
+            return app.screen.sketch.plain
+
+    monkeypatch.setenv("TERM", "dumb")
+    app = VariantCmpApp(None)
+    text = asyncio.run(envelope_text(app))
+    assert app.sketch_ascii and text.isascii() and "^ top" in text
+    monkeypatch.setenv("TERM", "xterm-256color")
+    monkeypatch.setenv("NO_COLOR", "1")
+    app = VariantCmpApp(None)
+    text = asyncio.run(envelope_text(app))
+    assert not app.sketch_ascii and not any(ord(ch) in BRAILLE for ch in text)
+    assert "│" in text and "▲ top" in text  # Unicode frame and marks, lines in their own characters
+
+
+# --- baseline, weight columns -------------------------------------------------------------------
+
+def _shown_ft(text: str) -> int | None:
+    text = text.replace(",", "").replace("±", "")
+    return None if text == "—" else int(text)
+
+
+def test_baseline_compares_each_row_at_the_same_weight_and_day():
+    conditions = Conditions(weights=(WeightSpec(40_000.0, "kg"), WeightSpec(90.0, "%mtow")), isa_devs_c=(0.0, 15.0))
+    expected = reference(conditions).to_dicts()
+    base_pair = ("v88", "ossel-78")
+
+    def expected_delta(row, match: str) -> int | None:
+        """Row minus the baseline's row at the same weight (kg or %MTOW) and deviation, by hand."""
+        weight = "weight_kg" if match == "kg" else "weight_pct_mtow"
+        same = [b for b in expected if (b["variant"], b["engine"]) == base_pair
+                and abs(b[weight] - row[weight]) < 1e-6 and b["isa_dev_c"] == row["isa_dev_c"]]
+        if not same:
+            return None
+        return math.floor(row["max_altitude_ft"]) - math.floor(same[0]["max_altitude_ft"])
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(120, 40)) as pilot:
+            await settle(app, pilot)
+            await pilot.press("c")
+            await replace_text(pilot, "40t,90%mtow")
+            await pilot.press("tab")
+            await replace_text(pilot, "0,15")
+            await press_settle(app, pilot, "enter")
+            screen = app.screen
+            table = screen.query_one("#table")
+            first_base = next(i for i, r in enumerate(expected) if (r["variant"], r["engine"]) == base_pair)
+            table.move_cursor(row=first_base)
+            await press_settle(app, pilot, "b")
+            ft = column_index(screen, "max_ft")
+            for match in ("pct", "kg"):  # typed weights mix kg and %MTOW: %MTOW first, then B
+                note = shown_text(screen.query_one("#baseline-note"))
+                assert note.startswith(f"Δ = row − {BASELINE_MARK} v88/ossel-78 at the same "
+                                       f"{'%MTOW' if match == 'pct' else 'weight in kg'}, ISA deviation and climb")
+                rows = table_rows(screen)
+                assert len(rows) == len(expected)
+                for shown, row in zip(rows, expected):
+                    if (row["variant"], row["engine"]) == base_pair:
+                        assert shown[0] == f"{BASELINE_MARK} v88" and shown[ft] == format_altitude_ft(row["max_altitude_ft"])
+                    else:
+                        assert _shown_ft(shown[ft]) == expected_delta(row, match), (shown, row, match)
+                assert "(—: it has no such row)" in note
+                await pilot.press("B")
+            # b on a row of the baseline pair unpins it.
+            table.move_cursor(row=first_base + 1)
+            await pilot.press("b")
+            assert not screen.query_one("#baseline-note").display
+            assert not any(r[0].startswith(BASELINE_MARK) for r in table_rows(screen))
+    run(body)
+
+
+def test_percent_of_mtow_column_and_weights_outside_the_variant_flagged():
+    conditions = Conditions(weights=(WeightSpec(12_000.0, "kg"), WeightSpec(100.0, "%mtow"), WeightSpec(110.0, "%mtow")))
+    expected = reference(conditions).to_dicts()
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(160, 40)) as pilot:
+            await settle(app, pilot)
+            await pilot.press("c")
+            await replace_text(pilot, "12t,100%mtow,110%mtow")
+            await press_settle(app, pilot, "enter")
+            screen = app.screen
+            pct, tonnes = column_index(screen, "pct_mtow"), column_index(screen, "weight")
+            rows = table_rows(screen)
+            assert len(rows) == len(expected)
+            for shown, row in zip(rows, expected):
+                flags = ("*" if row["over_mtow"] else "") + ("!" if row["below_empty_weight"] else "")
+                assert shown[pct] == f"{row['weight_pct_mtow']:.1f}".removesuffix(".0") + flags
+                assert shown[tonnes] == f"{row['weight_kg'] / 1000:.1f}" + flags
+            assert {r["weight_pct_mtow"] > 100 for r in expected if r["over_mtow"]} == {True}
+            over = sum(r["over_mtow"] for r in expected)
+            light = sum(r["below_empty_weight"] for r in expected)
+            assert over and light
+            status = shown_text(screen.query_one("#status"))
+            assert f"{over} above MTOW *" in status and f"{light} below empty weight !" in status
+    run(body)
+
+
+# --- every key findable; pictures ---------------------------------------------------------------
+
+def test_every_key_is_in_the_footer_or_in_help_and_the_command_palette():
+    from variantcmp.app.help import key_commands
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(60, 15)) as pilot:
+            await settle(app, pilot)
+            # The palette's key stays on screen however narrow the footer.
+            palette_key = app.screen.query_one("FooterKey.-command-palette")
+            assert palette_key.region.right <= 60 and palette_key.region.y == 14
+            # The keys that fit are shown whole, left of it; the rest are left out, not cut or overdrawn.
+            shown = [key for key in app.screen.query("FooterKey") if key.display and key is not palette_key]
+            assert shown and all(key.region.right <= palette_key.region.x for key in shown)
+            assert len(shown) < len(app.screen.query("FooterKey")) - 1
+            for path, cls in (([], CompareScreen), (["h"], HotDayScreen), (["v"], EnvelopeScreen),
+                              (["w"], SweepScreen), (["i"], VariantScreen), (["f1"], HelpScreen)):
+                await press_settle(app, pilot, *path)
+                assert isinstance(app.screen, cls)
+                titles = " | ".join(command.title for command in key_commands(app, app.screen))
+                for binding in (*cls.BINDINGS, *VariantCmpApp.BINDINGS):
+                    assert binding.description in titles, (cls.__name__, binding.key)
+                await press_settle(app, pilot, "escape")
+                if not isinstance(app.screen, CompareScreen):
+                    await press_settle(app, pilot, "escape")
+            # A key found in the palette by name, run with real keys: reverse the sort.
+            await press_settle(app, pilot, "s")
+            assert app.screen.descending
+            await press_settle(app, pilot, "ctrl+p")
+            await pilot.press(*"reverse sort")
+            await settle(app, pilot)
+            await press_settle(app, pilot, "enter")
+            assert isinstance(app.screen, CompareScreen) and not app.screen.descending
+    run(body)
+
+
+def test_save_the_view_as_an_svg_picture(tmp_path: Path, monkeypatch: pytest.MonkeyPatch):
+    monkeypatch.chdir(tmp_path)
+
+    async def body():
+        app = VariantCmpApp(None)
+        told: list[str] = []
+        notify = app.notify
+        app.notify = lambda message, **kw: (told.append(message), notify(message, **kw))[1]
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "f2")
+            compare = app.last_picture
+            assert compare is not None and compare.parent == tmp_path and compare.name.startswith("variantcmp-compare-")
+            svg = compare.read_text(encoding="utf-8")
+            assert svg.startswith("<svg") and "Caution" in svg and "brannick" in svg
+            assert told[-1] == f"Saved this view as {compare}"  # says where
+            await press_settle(app, pilot, "v")
+            await press_settle(app, pilot, "ctrl+s")
+            assert app.last_picture.name.startswith("variantcmp-envelope-") and app.last_picture != compare
+            assert sorted(p.suffix for p in tmp_path.iterdir()) == [".svg", ".svg"]  # nothing half-written left
+    run(body)
+
+
+def test_a_filter_matching_nothing_says_so_and_keys_on_the_empty_table_are_harmless():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "slash", "z", "escape", "up", "down", "enter", "b", "m", "v")
+            assert isinstance(app.screen, CompareScreen)
+            status = shown_text(app.screen.query_one("#status"))
+            assert "0/8 rows" in status and "no row matches “z”" in status
+    run(body)
+
+
+def test_open_dialog_starts_in_the_working_folder_and_lists_the_bundled_fleets(tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    shutil.copyfile(demo_catalogue_path(), tmp_path / "my-fleet.toml")
+    bundled = sorted(p.stem for p in demo_catalogue_path().parent.glob("*.toml"))
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "o")
+            dialog = app.screen
+            assert isinstance(dialog, OpenDialog)
+            assert dialog.query_one("#path").value == ""  # no long path to clear first
+            assert str(tmp_path) in str(dialog.query_one("#open-folder").render())
+            listed = [str(o.prompt) for o in dialog.query_one("#open-choices").options]
+            assert [name.split()[0] for name in listed] == [*bundled, "my-fleet.toml"]
+            await pilot.press(*"zzz")
+            await pilot.pause()
+            assert "No bundled fleet or .toml file here matches “zzz”" in shown_text(dialog.query_one("#open-matches"))
+            assert not dialog.query_one("#open-choices").display
+            dialog.query_one("#path").value = ""
+            await pilot.press(*"tallon")
+            await pilot.pause()
+            assert [str(o.prompt).split()[0] for o in dialog.query_one("#open-choices").options] == [
+                "tallon-fells-survey"]
+            await press_settle(app, pilot, "down", "enter")  # pick it from the list
+            assert isinstance(app.screen, CompareScreen) and "Tallon" in app.catalogue.title
+            # A bundled fleet by its name, and a file of the working folder by a relative path.
+            await press_settle(app, pilot, "o", *"fernholt-regional", "enter")
+            assert "Fernholt" in app.catalogue.title and app.catalogue.path == demo_catalogue_path()
+            await press_settle(app, pilot, "o", *"my-fleet.toml", "enter")
+            assert app.catalogue.path.resolve() == (tmp_path / "my-fleet.toml").resolve()
+    run(body)
+
+
+def test_variant_view_gives_tas_and_cas_at_the_maximum_altitude_in_one_altitude_unit():
+    from test_airspeed_columns import pitot_reference_kt
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(120, 50)) as pilot:
+            await settle(app, pilot)
+            await pilot.press("c")
+            await replace_text(pilot, "95%mtow")
+            await pilot.press("tab")
+            await replace_text(pilot, "ISA+15")
+            await press_settle(app, pilot, "enter", "i")
+            screen = app.screen
+            assert isinstance(screen, VariantScreen)
+            text = shown_text(screen.query_one("#variant-conditions"), width=120)
+            expected = reference(app.conditions).filter(pl.col("variant") == screen.variant_id)
+            assert expected.height >= 2
+            for row in expected.iter_rows(named=True):
+                line = next(line for line in text.splitlines() if line.strip().startswith(row["engine"] + " "))
+                tas, cas = pitot_reference_kt(row["max_altitude_ft"], row["mach"], row["isa_dev_c"])
+                assert line.split()[-2:] == [f"{tas:.0f}", f"{cas:.0f}"], line
+                assert format_flight_level(row["max_altitude_ft"]) in line
+            whole = " ".join(shown_text(screen.query_one(f"#variant-{part}"), width=120)
+                             for part in ("conditions", "figures", "engines", "values"))
+            assert "kg/m²" in whole and "kg/m2" not in whole
+            assert " km" not in whole and " m " not in whole  # altitudes in ft only
+            # Narrow: the airspeeds stay, the conditions' columns go first, and it says so.
+            await pilot.resize_terminal(60, 15)
+            await pilot.pause()
+            narrow = " ".join(shown_text(screen.query_one("#variant-conditions"), width=60).split())
+            assert "TAS kt" in narrow and "CAS kt" in narrow and "too narrow for: W t" in narrow
+            await pilot.resize_terminal(120, 50)
+            await pilot.pause()
+            # The conditions change on the compare screen: the view follows when back.
+            await press_settle(app, pilot, "escape", "c")
+            await replace_text(pilot, "90%mtow")
+            await press_settle(app, pilot, "enter", "i")
+            assert " 90 " in shown_text(app.screen.query_one("#variant-conditions"), width=120)
+    run(body)
+
+
+def test_readme_key_tables_are_true():
+    """Every key README's terminal-app section names is bound, and every key of the compare screen
+    and of the app is named there."""
+    import re
+
+    from variantcmp.app.open_dialog import OpenDialog as Open
+
+    readme = (Path(__file__).resolve().parent.parent / "README.md").read_text(encoding="utf-8")
+    section = readme.split("### The terminal app", 1)[1].split("\n## ", 1)[0]
+    names = {"esc": "escape", "?": "question_mark", "/": "slash", "F1": "f1", "F2": "f2"}
+    named = set()
+    for line in section.splitlines():
+        if line.startswith("| `"):
+            first = line.split("|")[1]
+            named |= {names.get(key, key) for key in re.findall(r"`([^`]+)`", first)}
+    screens = (VariantCmpApp, CompareScreen, HotDayScreen, EnvelopeScreen, SweepScreen, VariantScreen, HelpScreen,
+               ProblemsScreen, Open, ExportDialog, ConfirmDialog)
+    bound = {key.strip() for cls in screens for binding in cls.BINDINGS for key in binding.key.split(",")}
+    textual_keys = {"ctrl+p", "enter", "tab", "shift+tab"}  # the command palette, tables and fields
+    assert named - bound - textual_keys == set()
+    for cls in (VariantCmpApp, CompareScreen):
+        for binding in cls.BINDINGS:
+            for key in binding.key.split(","):
+                assert key.strip() in named or key.strip() == "escape", (cls.__name__, key)

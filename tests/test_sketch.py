@@ -8,8 +8,10 @@ import pytest
 from variantcmp.caution import CAUTION
 from variantcmp.catalogue import demo_catalogue_path, load_catalogue
 from variantcmp.cli import main
-from variantcmp.envelope import EnvelopeCase, compute_envelopes, sweep
-from variantcmp.sketch import MARKED_MARK, TOP_MARK, draw_envelope, draw_sweep
+from variantcmp.envelope import EnvelopeCase, Sweep, compute_envelopes, sweep
+from variantcmp.sketch import (
+    MARKED_MARK, SERIES_STYLES, TOP_MARK, draw_envelope, draw_sweep, terminal_wants_ascii, terminal_wants_monochrome,
+)
 from variantcmp.table import Conditions
 
 SIZES = [(80, 24), (120, 40), (200, 60)]
@@ -101,6 +103,80 @@ def test_sweep_drawing_shows_limits_along_curves(fleet):
     for limit in set(sw.frame["limit"].drop_nulls()):
         letter = {"thrust": "T", "buffet": "B", "stall": "S", "certified": "C", "cabin": "P", "none": "N"}[limit]
         assert letter in plot
+
+
+BRAILLE_CELLS = range(0x2801, 0x2900)
+
+
+def plot_area(lines):
+    """The drawing between the title and the x axis, without the y-axis gutter."""
+    axis = next(i for i, line in enumerate(lines) if line.lstrip().startswith(("└", "+-")))
+    return [line[6:] for line in lines[1:axis]]
+
+
+def test_terminal_wants_ascii_for_dumb_terminals_and_narrow_encodings():
+    # terminfo's "dumb" entry promises printing characters only (ncurses terminfo database).
+    assert terminal_wants_ascii({"TERM": "dumb"})
+    assert not terminal_wants_ascii({"TERM": "xterm-256color"})
+    assert not terminal_wants_ascii({})  # no TERM at all (e.g. Windows consoles): no reason to fall back
+    assert terminal_wants_ascii({"TERM": "xterm"}, encoding="ascii")
+    assert terminal_wants_ascii({"TERM": "xterm"}, encoding="latin-1")
+    assert not terminal_wants_ascii({"TERM": "xterm"}, encoding="utf-8")
+    # NO_COLOR: set and not empty means no colour (no-color.org); a dumb terminal has none either.
+    assert terminal_wants_monochrome({"NO_COLOR": "1", "TERM": "xterm"})
+    assert not terminal_wants_monochrome({"NO_COLOR": "", "TERM": "xterm"})
+    assert terminal_wants_monochrome({"TERM": "dumb"})
+
+
+def test_sweep_legend_writes_isa_deviations_as_users_type_them(fleet):
+    conditions = Conditions(variants=("v104",), engines=("ossel-86",), isa_devs_c=(-10.0, 0.0, 15.0))
+    text = str(draw_sweep(sweep(fleet, conditions, "weight", points=7), 100, 30))
+    legend = text.split("weight t", 1)[1]
+    for label in ("v104/ossel-86 ISA-10", "v104/ossel-86 ISA ", "v104/ossel-86 ISA+15"):
+        assert label in legend
+    assert ".0" not in legend and "ISA+0" not in legend
+
+
+def synthetic_sweep(*curves):
+    """A sweep over ISA deviation with the given maximum altitudes (ft) per series, for the drawing only."""
+    import polars as pl
+
+    isa = [-10.0, 0.0, 10.0, 20.0]
+    rows = [dict(series=f"s{i}", variant=f"a{i}", engine="e", weight_kg=40_000.0, isa_dev_c=d, climb_fpm=300.0,
+                 mach=0.78, max_altitude_ft=ft, flight_level=int(ft // 100), limit="thrust", note="")
+            for i, curve in enumerate(curves) for d, ft in zip(isa, curve)]
+    return Sweep("isa", "isa_dev_c", pl.DataFrame(rows), Conditions())
+
+
+def test_identical_curves_are_said_so_in_the_legend():
+    base = [39_000.0, 38_000.0, 36_500.0, 34_000.0]
+    drawing = str(draw_sweep(synthetic_sweep(base, [39_500.0, 37_000.0, 35_000.0, 32_000.0], base), 80, 24))
+    assert "3 a2/e (same curve as 1)" in drawing
+    assert "2 a1/e (same" not in drawing and "1 a0/e (same" not in drawing
+
+
+def test_identical_overlaid_envelopes_are_said_so(fleet):
+    case = EnvelopeCase("v88", "ossel-78", 45_200.0)
+    text = str(draw_envelope(compute_envelopes(fleet, [case, EnvelopeCase("v88", "ossel-86", 40_000.0), case]), 100, 30))
+    assert "3 v88/ossel-78 45.2t ISA 300fpm (same band as 1):" in text
+    assert text.count("(same band") == 1
+
+
+def test_monochrome_draws_each_series_in_its_own_character(fleet, three):
+    drawing = draw_sweep(sweep(fleet, Conditions(variants=("v104",)), "isa", points=13), 100, 30, mono=True)
+    lines = drawing.lines
+    plot = "".join(plot_area(lines))
+    assert not any(ord(c) in BRAILLE_CELLS for c in plot)  # no dash patterns to tell apart
+    assert "│" in "".join(lines) and "└" in "".join(lines)  # the frame stays Unicode: not the ASCII fallback
+    glyphs = [style.glyph for style in SERIES_STYLES[:3]]
+    assert len(set(glyphs)) == 3
+    for number, glyph in enumerate(glyphs, start=1):
+        assert glyph in plot
+        legend = next(line for line in lines if f" {number} v104/" in line)
+        sample_cells = legend.split(f" {number} v104/")[0].split("   ")[-1]
+        assert set(sample_cells.strip()) - {" "} == {glyph}, legend
+    text = str(draw_envelope(three, 100, 30, mono=True))
+    assert not any(ord(c) in BRAILLE_CELLS for c in text) and TOP_MARK in text
 
 
 def test_too_small_is_refused(one):

@@ -5,21 +5,23 @@ from __future__ import annotations
 from time import perf_counter
 
 import polars as pl
+from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Grid, Horizontal
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, Input, Label, ProgressBar, Static
-
-from variantcmp.caution import CAUTION
+from textual.widgets import DataTable, Input, Label, ProgressBar, Static
 
 from .form import FIELDS
+from .keys import HoldsKeys, focus_now
 from .results import Results, export_frame
 from .view import (
-    COLUMNS_BY_KEY, MAX_MARKED, ROW_KEY, Column, filter_rows, header, justify, mark_sign, row_cells, sort_rows,
-    visible_columns,
+    BASE_ROW, BASELINE_MARK, BELOW_EMPTY_MARK, COLUMNS_BY_KEY, IS_BASE, MAX_MARKED, NONE, OVER_MTOW_MARK, ROW_KEY,
+    Baseline, Column, default_match, filter_rows, header, justify, mark_sign, row_cells, sort_rows, visible_columns,
+    with_baseline,
 )
+from .widgets import CautionBanner, FittingFooter, TextEntry
 
 # The drawing views share one footer entry, so the compare screen's keys fit in 80 columns.
 _DRAW = Binding.Group("Draw")
@@ -27,9 +29,11 @@ _DRAW = Binding.Group("Draw")
 BUSY_DELAY_S = 0.15
 
 
-class CompareScreen(Screen):
+class CompareScreen(HoldsKeys, Screen):
     """Main screen. The drawing views read the app's conditions and the rows this screen hands over
     (`app.focus_key`, `app.shown_keys`, `app.marked_keys`)."""
+
+    PICTURE_NAME = "compare"  # in the name of a saved SVG (f2)
 
     BINDINGS = [
         Binding("c", "focus_conditions", "Conditions"),
@@ -37,7 +41,10 @@ class CompareScreen(Screen):
         Binding("s", "sort_next", "Sort"),
         Binding("S", "sort_previous", "Sort back", show=False),
         Binding("r", "reverse_sort", "Reverse sort", show=False),
-        Binding("b", "baseline", "Baseline"),
+        Binding("b", "baseline", "Baseline", tooltip="compare every row with the selected variant x engine "
+                "option, at the same weight and ISA deviation; b on one of its rows unpins it"),
+        Binding("B", "baseline_match", "Baseline weight", show=False,
+                tooltip="compare with the baseline at the same %MTOW or at the same kg, in turn"),
         Binding("i", "inspect", "Inspect", show=False),  # enter on a row does it too
         Binding("h", "hot_day", "Hot day"),
         Binding("m", "mark", "Mark", tooltip=f"mark or unmark the row for the envelope overlay, up to {MAX_MARKED}"),
@@ -56,7 +63,7 @@ class CompareScreen(Screen):
         super().__init__()
         self.sort_key: str | None = None
         self.descending = False
-        self.baseline_key: str | None = None
+        self.baseline: Baseline | None = None
         self.view_df: pl.DataFrame | None = None  # rows as shown: filtered and sorted
         self._busy_timer = None
         self.render_ms = 0.0  # last redraw of the table (sort, filter, baseline), ms
@@ -65,12 +72,12 @@ class CompareScreen(Screen):
     # --- layout ------------------------------------------------------------------
 
     def compose(self) -> ComposeResult:
-        yield Static(CAUTION, id="caution")
+        yield CautionBanner(id="caution")
         with Grid(id="conditions"):
             for field in FIELDS:
                 with Horizontal(classes="field"):
                     yield Label(field.label, classes="field-label")
-                    yield Input(
+                    yield TextEntry(
                         self.app.texts[field.key],
                         placeholder=field.placeholder,
                         id=f"field-{field.key}",
@@ -81,11 +88,12 @@ class CompareScreen(Screen):
         yield Static("", id="field-errors")
         with Horizontal(id="status-row"):
             yield Label("/ Filter", classes="field-label")
-            yield Input(placeholder="variant, engine, limit", id="filter", compact=True)
+            yield TextEntry(placeholder="e.g. v88 or thrust", id="filter", compact=True)
             yield Static("", id="status")
             yield ProgressBar(total=None, show_eta=False, show_percentage=False, id="busy")
+        yield Static("", id="baseline-note")
         yield DataTable(id="table", cursor_type="row", zebra_stripes=True, fixed_columns=2)
-        yield Footer(compact=True)  # many keys: keep the row short at 80 columns
+        yield FittingFooter(compact=True)  # many keys: keep the row short at 80 columns
 
     def on_mount(self) -> None:
         self.query_one("#conditions").border_title = "Conditions"
@@ -95,7 +103,7 @@ class CompareScreen(Screen):
         self.refresh_titles()
         if self.app.results is not None:
             self.show_results(self.app.results)
-        self.query_one(DataTable).focus()
+        focus_now(self.query_one(DataTable))
 
     # --- what the app tells this screen ------------------------------------------
 
@@ -167,14 +175,13 @@ class CompareScreen(Screen):
             return
         df = results.df
         filter_text = self.query_one("#filter", Input).value
-        view = sort_rows(filter_rows(df, filter_text), self._sort_column(), self.descending)
+        baseline = self.baseline
+        if baseline is not None and df.filter((pl.col("variant") == baseline.variant)
+                                              & (pl.col("engine") == baseline.engine)).height == 0:
+            baseline = self.baseline = None  # the catalogue no longer has it
+        compared = with_baseline(df, baseline)  # before the filter: a hidden baseline still counts
+        view = sort_rows(filter_rows(compared, filter_text), self._sort_column(), self.descending)
         self.view_df = view
-        baseline = None
-        if self.baseline_key is not None:
-            found = df.filter(pl.col(ROW_KEY) == self.baseline_key).to_dicts()
-            baseline = found[0] if found else None
-            if baseline is None:
-                self.baseline_key = None
         keys = set(df[ROW_KEY].to_list())
         self.app.marked_keys = [k for k in self.app.marked_keys if k in keys]  # rows gone with the conditions
         marks = {k: i + 1 for i, k in enumerate(self.app.marked_keys)}
@@ -182,7 +189,7 @@ class CompareScreen(Screen):
         columns = visible_columns(df)
         headers = [header(c, self.sort_key, self.descending, baseline is not None) for c in columns]
         rows = list(view.iter_rows(named=True))
-        cells = [row_cells(columns, row, baseline, marks.get(row[ROW_KEY])) for row in rows]
+        cells = [row_cells(columns, row, marks.get(row[ROW_KEY])) for row in rows]
         labels, widths = justify(headers, cells)
         keep = self.cursor_key()
         scroll_x = table.scroll_x
@@ -200,19 +207,42 @@ class CompareScreen(Screen):
         if fresh:  # from the change (a key in a field, a reload) to this table
             self.update_ms = (perf_counter() - self.app.requested_at) * 1000.0
         self.update_status(results, view)
+        self.update_baseline_note(view)
 
     def update_status(self, results: Results, view: pl.DataFrame) -> None:
         parts = [f"{view.height}/{results.df.height} rows"]
+        typed = self.query_one("#filter", Input).value.strip()
+        if typed and view.height == 0:
+            parts.append(f"no row matches “{typed}” (/ to change the filter)")
         column = self._sort_column()
         if column is not None:
             parts.append(f"sorted by {column.header} {'▼' if self.descending else '▲'}")
-        if self.baseline_key is not None:
-            variant, engine, _ = self.baseline_key.split("|")
-            parts.append(f"baseline {variant}/{engine}")
+        if self.baseline is not None:
+            parts.append(f"baseline {self.baseline.name}")
+        over, light = view["over_mtow"].sum(), view["below_empty_weight"].sum()
+        if over:
+            parts.append(f"{over} above MTOW {OVER_MTOW_MARK}")
+        if light:
+            parts.append(f"{light} below empty weight {BELOW_EMPTY_MARK}")
         if self.app.marked_keys:
             parts.append(f"{len(self.app.marked_keys)} marked")
         parts.append(f"updated in {self.update_ms:.0f} ms")
-        self.query_one("#status", Static).update(" · ".join(parts))
+        self.query_one("#status", Static).update(Text(" · ".join(parts), no_wrap=True, overflow="ellipsis"))
+
+    def update_baseline_note(self, view: pl.DataFrame) -> None:
+        """The line above the table that says what the Δ columns compare."""
+        note = self.query_one("#baseline-note", Static)
+        baseline = self.baseline
+        note.set_class(baseline is not None, "-shown")
+        if baseline is None:
+            return
+        text = (f"Δ = row − {BASELINE_MARK} {baseline.name} at the same {baseline.match_words}, "
+                f"ISA deviation and climb")
+        if view.filter(~pl.col(IS_BASE) & pl.col(BASE_ROW).is_null()).height:
+            text += f" ({NONE}: it has no such row)"
+        other = "kg" if baseline.match == "pct" else "%MTOW"
+        text += f" · B: at the same {other}"
+        note.update(Text(text, no_wrap=True, overflow="ellipsis"))
 
     # --- events -------------------------------------------------------------------
 
@@ -221,10 +251,9 @@ class CompareScreen(Screen):
         key = event.input.id.removeprefix("field-")
         self.show_field_errors(self.app.set_condition_text(key, event.value))
 
-    @on(Input.Submitted, ".condition")
-    @on(Input.Submitted, "#filter")
-    def input_submitted(self) -> None:
-        self.query_one(DataTable).focus()
+    def field_entered(self, field: TextEntry) -> None:
+        """Enter in a condition field or the filter: back to the table (before the next key)."""
+        focus_now(self.query_one(DataTable))
 
     @on(Input.Changed, "#filter")
     def filter_changed(self) -> None:
@@ -246,7 +275,8 @@ class CompareScreen(Screen):
 
     @on(DataTable.RowHighlighted)
     def row_highlighted(self, event: DataTable.RowHighlighted) -> None:
-        self.app.focus_key = event.row_key.value
+        if event.row_key is not None:  # None: the table is empty (a filter matches nothing)
+            self.app.focus_key = event.row_key.value
 
     def on_screen_resume(self) -> None:
         # The envelope view steps through rows: come back on the row it showed last.
@@ -258,13 +288,13 @@ class CompareScreen(Screen):
     # --- actions ------------------------------------------------------------------
 
     def action_focus_conditions(self) -> None:
-        self.query_one(f"#field-{FIELDS[0].key}", Input).focus()
+        focus_now(self.query_one(f"#field-{FIELDS[0].key}", Input))
 
     def action_focus_filter(self) -> None:
-        self.query_one("#filter", Input).focus()
+        focus_now(self.query_one("#filter", Input))
 
     def action_focus_table(self) -> None:
-        self.query_one(DataTable).focus()
+        focus_now(self.query_one(DataTable))
 
     def _sort_step(self, step: int) -> None:
         results = self.app.results
@@ -290,10 +320,22 @@ class CompareScreen(Screen):
             self.render_table()
 
     def action_baseline(self) -> None:
-        key = self.cursor_key()
-        if key is None:
+        row = self.selected_row()
+        if row is None:
             return
-        self.baseline_key = None if key == self.baseline_key else key
+        if self.baseline is not None and (row["variant"], row["engine"]) == (self.baseline.variant,
+                                                                          self.baseline.engine):
+            self.baseline = None
+        else:
+            self.baseline = Baseline(row["variant"], row["engine"], default_match(self.app.conditions.weights
+                                                                                  if self.app.conditions else ()))
+        self.render_table()
+
+    def action_baseline_match(self) -> None:
+        if self.baseline is None:
+            self.notify("Pin a baseline first: b on a row.", title="Baseline")
+            return
+        self.baseline = self.baseline.switched()
         self.render_table()
 
     def action_mark(self) -> None:

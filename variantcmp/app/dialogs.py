@@ -1,4 +1,4 @@
-"""Dialogs: open a catalogue, a catalogue's problems, export a table, confirm an overwrite."""
+"""Dialogs: a catalogue's problems, export a table, confirm an overwrite (opening one: `open_dialog`)."""
 
 from __future__ import annotations
 
@@ -12,35 +12,14 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
-from textual.suggester import Suggester
-from textual.widgets import Button, Footer, Input, Label, Static
+from textual.widgets import Button, Label, Static
 
 from variantcmp.catalogue import Catalogue, Problem
 
+from .keys import HoldsKeys, focus_now
+from .widgets import FittingFooter, PathSuggester, TextEntry, shown_path
+
 EXPORT_FORMATS = {".csv": "CSV", ".parquet": "Parquet", ".json": "JSON"}
-
-
-class PathSuggester(Suggester):
-    """Completes a typed path with the first matching file or folder name."""
-
-    def __init__(self, suffixes: tuple[str, ...] = ()) -> None:
-        super().__init__(use_cache=False, case_sensitive=True)
-        self.suffixes = suffixes
-
-    async def get_suggestion(self, value: str) -> str | None:
-        if not value:
-            return None
-        typed = Path(value).expanduser()
-        folder, stem = (typed, "") if value.endswith("/") else (typed.parent, typed.name)
-        try:
-            names = sorted(p for p in folder.iterdir() if p.name.startswith(stem) and not p.name.startswith("."))
-        except OSError:
-            return None
-        for candidate in names:
-            if candidate.is_dir() or not self.suffixes or candidate.suffix in self.suffixes:
-                rest = candidate.name[len(stem):] + ("/" if candidate.is_dir() else "")
-                return value + rest if rest else None
-        return None
 
 
 def write_table(df: pl.DataFrame, path: Path) -> None:
@@ -56,42 +35,7 @@ def write_table(df: pl.DataFrame, path: Path) -> None:
         raise ValueError(f"unknown format {suffix!r}")
 
 
-class OpenDialog(ModalScreen[str | None]):
-    """Ask for a catalogue file."""
-
-    BINDINGS = [Binding("escape", "cancel", "Cancel")]
-
-    def __init__(self, initial: str) -> None:
-        super().__init__()
-        self.initial = initial
-
-    def compose(self) -> ComposeResult:
-        with Vertical(classes="dialog", id="open-dialog") as box:
-            box.border_title = "Open a catalogue"
-            yield Label("TOML catalogue file (tab completes a suggestion):")
-            yield Input(self.initial, id="path", suggester=PathSuggester((".toml",)))
-            yield Static("", classes="dialog-error", id="open-error")
-            yield Static("enter open · esc cancel", classes="dialog-hint")
-        yield Footer()
-
-    @on(Input.Submitted)
-    def submitted(self, event: Input.Submitted) -> None:
-        text = event.value.strip()
-        error = self.query_one("#open-error", Static)
-        if not text:
-            error.update("✗ Type the path of a catalogue file.")
-            return
-        path = Path(text).expanduser()
-        if not path.is_file():
-            error.update(f"✗ {path}: no such file." if not path.exists() else f"✗ {path} is not a file.")
-            return
-        self.dismiss(str(path))
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)
-
-
-class ProblemsScreen(ModalScreen[None]):
+class ProblemsScreen(HoldsKeys, ModalScreen[None]):
     """The problems of a catalogue that did not load, and how to go on."""
 
     BINDINGS = [
@@ -110,14 +54,14 @@ class ProblemsScreen(ModalScreen[None]):
         count = len(self.problems)
         with Vertical(classes="dialog", id="problems-dialog") as box:
             box.border_title = f"{self.path.name}: {count} problem{'s' if count != 1 else ''}"
-            yield Static(f"✗ The catalogue {self.path} did not load.", id="problems-head")
+            yield Static(f"✗ The catalogue {shown_path(self.path)} did not load.", id="problems-head")
             with VerticalScroll(id="problems"):
                 yield Static(self._problems_table(), id="problems-list")
             kept = (f"the table keeps showing “{self.last_good.title}”"
                     if self.last_good else "no catalogue is loaded yet")
             yield Static(f"Fix the file and press l to reload, or o to open another; {kept}.",
                          classes="dialog-hint")
-        yield Footer()
+        yield FittingFooter()
 
     def _problems_table(self) -> Table:
         table = Table(box=None, padding=(0, 1), expand=True, show_edge=False)
@@ -131,7 +75,7 @@ class ProblemsScreen(ModalScreen[None]):
         return table
 
     def on_mount(self) -> None:
-        self.query_one("#problems").focus()
+        focus_now(self.query_one("#problems"))
 
     def action_reload(self) -> None:
         self.dismiss(None)
@@ -145,7 +89,7 @@ class ProblemsScreen(ModalScreen[None]):
         self.dismiss(None)
 
 
-class ConfirmDialog(ModalScreen[bool]):
+class ConfirmDialog(HoldsKeys, ModalScreen[bool]):
     """A yes/no question; the safe answer (no) has the focus."""
 
     BINDINGS = [
@@ -164,10 +108,10 @@ class ConfirmDialog(ModalScreen[bool]):
             with Horizontal(classes="buttons"):
                 yield Button(f"{self.yes} (y)", id="yes", variant="warning")
                 yield Button(f"{self.no} (n)", id="no", variant="primary")
-        yield Footer()
+        yield FittingFooter()
 
     def on_mount(self) -> None:
-        self.query_one("#no", Button).focus()
+        focus_now(self.query_one("#no", Button))
 
     @on(Button.Pressed)
     def pressed(self, event: Button.Pressed) -> None:
@@ -177,7 +121,7 @@ class ConfirmDialog(ModalScreen[bool]):
         self.dismiss(answer)
 
 
-class ExportDialog(ModalScreen[str | None]):
+class ExportDialog(HoldsKeys, ModalScreen[str | None]):
     """Export a table; the format follows the file name; never overwrites unasked."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel")]
@@ -191,17 +135,16 @@ class ExportDialog(ModalScreen[str | None]):
         with Vertical(classes="dialog", id="export-dialog") as box:
             box.border_title = f"Export {self.df.height} rows"
             yield Label("File name: .csv, .parquet or .json chooses the format.")
-            yield Input(self.initial, id="path", suggester=PathSuggester())
+            yield TextEntry(self.initial, id="path", suggester=PathSuggester())
             yield Static("", classes="dialog-error", id="export-error")
             yield Static("enter write · esc cancel", classes="dialog-hint")
-        yield Footer()
+        yield FittingFooter()
 
     def _error(self, message: str) -> None:
         self.query_one("#export-error", Static).update(message)
 
-    @on(Input.Submitted)
-    def submitted(self, event: Input.Submitted) -> None:
-        text = event.value.strip()
+    def field_entered(self, field: TextEntry) -> None:
+        text = field.value.strip()
         if not text:
             self._error("✗ Type a file name.")
             return

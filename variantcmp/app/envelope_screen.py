@@ -22,6 +22,7 @@ def speed_label(speed: str) -> str:
 
 
 class EnvelopeScreen(DrawingScreen):
+    PICTURE_NAME = "envelope"  # in the name of a saved SVG (f2)
     BINDINGS = [
         *DrawingScreen.BINDINGS,
         Binding("x", "speed_axis", "Speed", tooltip="speed axis: Mach, TAS kt, CAS kt in turn"),
@@ -59,7 +60,8 @@ class EnvelopeScreen(DrawingScreen):
         return Request(key, job, what)
 
     def drawer(self, envelope):
-        return lambda width, height: draw_envelope(envelope, width, height, self.speed, self.app.sketch_ascii)
+        return lambda width, height: draw_envelope(envelope, width, height, self.speed, self.app.sketch_ascii,
+                                                   mono=self.app.no_color)
 
     def describe(self, envelope) -> str:
         app = self.app

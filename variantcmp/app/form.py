@@ -30,17 +30,17 @@ class Field:
 
 
 FIELDS: tuple[Field, ...] = (
-    Field("weight", "Weight", "100%mtow", "62t, 90%mtow",
+    Field("weight", "Weight", "100%mtow", "e.g. 62t, 90%mtow",
           "kg, t, lb or %mtow; a comma list gives one row per weight"),
-    Field("isa", "ISA dev", "0", "ISA+15",
+    Field("isa", "ISA dev", "0", "e.g. ISA+15",
           "deviation from ISA in °C (15, ISA+15, -10); a comma list gives one row per deviation"),
-    Field("target", "Target", "", "FL350",
+    Field("target", "Target", "", "e.g. FL350",
           "target flight level for the margin column (FL350, 350, 35000ft); empty for none"),
-    Field("speed", "Speed", "cruise", "cruise, best, M.78",
+    Field("speed", "Speed", "cruise", "e.g. cruise, best, M.78",
           "cruise (each variant's cruise Mach), best (the Mach giving the highest altitude) or a Mach"),
-    Field("climb", "Climb", "cruise", "cruise, service, 250",
+    Field("climb", "Climb", "cruise", "e.g. cruise, service, 250",
           "residual rate of climb: absolute (0), service (100), cruise (300) or ft/min"),
-    Field("g_margin", "Buffet g", "1.3", "1.3",
+    Field("g_margin", "Buffet g", "1.3", "e.g. 1.3",
           "load factor kept to buffet onset, 1.0 to 2.5 g"),
 )
 FIELDS_BY_KEY = {field.key: field for field in FIELDS}

@@ -2,23 +2,32 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+from functools import partial
+
 from rich.console import Group
+from rich.markup import escape
 from rich.table import Table
 from rich.text import Text
-from textual.app import ComposeResult
+from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.containers import VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, Static
+from textual.widgets import Static
 
 from variantcmp.caution import CAUTION
 
+from .keys import HoldsKeys, focus_now
 from .form import FIELDS
 from variantcmp.sketch import (
     LIMIT_LETTERS, MARKED_MARK, MARKED_MARK_ASCII, NO_ALTITUDE_MARK, TOP_MARK, TOP_MARK_ASCII,
 )
 
-from .view import BASELINE_MARK, LIMIT_GLYPHS, LIMIT_MEANINGS, MAKES_IT, MAX_MARKED, NONE, SHORT_OF_IT, mark_sign
+from .view import (
+    BASELINE_MARK, BELOW_EMPTY_MARK, LIMIT_GLYPHS, LIMIT_MEANINGS, MAKES_IT, MAX_MARKED, NONE, OVER_MTOW_MARK,
+    SHORT_OF_IT, mark_sign,
+)
+from .widgets import FittingFooter
 
 TABLE_KEYS = [
     ("↑ ↓ pgup pgdn home end", "move in a table"),
@@ -26,6 +35,8 @@ TABLE_KEYS = [
     ("enter", "open the variant of the row (tables)"),
     ("tab / shift+tab", "next / previous field"),
     ("click a column header", "sort by it; click again to reverse"),
+    ("ctrl+p", "command palette: find any key of the screen on show by its name, and run it"),
+    ("ctrl+c", "copy the selected text in a field (q quits)"),
 ]
 
 
@@ -43,6 +54,21 @@ def _bindings(cls) -> list[tuple[str, str]]:
             does = f"{does} ({binding.tooltip})"
         rows.append((shown, does))
     return rows
+
+
+def key_commands(app, screen) -> Iterable[SystemCommand]:
+    """Every key of ``screen`` and of the app as a command-palette entry that does what the key does."""
+    for node in (screen, app):
+        for binding in type(node).BINDINGS:
+            if not isinstance(binding, Binding):
+                binding = Binding(*binding)
+            keys = " / ".join(_key_display(key.strip(), binding) for key in binding.key.split(","))
+            title = binding.description or binding.action
+            if binding.group is not None:
+                title = f"{binding.group.description}: {title}"
+            # The palette reads its text as markup: a key such as "[" must not open a tag.
+            yield SystemCommand(escape(f"{title}  ({keys})"), escape(binding.tooltip or f"key {keys}"),
+                                partial(app.run_action, binding.action, node))
 
 
 def _key_display(key: str, binding: Binding) -> str:
@@ -63,10 +89,11 @@ def _keys_table(title: str, rows: list[tuple[str, str]]) -> Table:
 
 def help_renderable() -> Group:
     from .compare import CompareScreen
-    from .dialogs import ConfirmDialog, ExportDialog, OpenDialog, ProblemsScreen
+    from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
     from .envelope_screen import EnvelopeScreen
     from .hotday import HotDayScreen
     from .main import VariantCmpApp
+    from .open_dialog import OpenDialog
     from .sweep_screen import SweepScreen
     from .variant_info import VariantScreen
 
@@ -76,7 +103,7 @@ def help_renderable() -> Group:
         ("Hot-day check", HotDayScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),
-        ("Export dialog", ExportDialog), ("Overwrite question", ConfirmDialog),
+        ("Export dialog", ExportDialog), ("Overwrite?", ConfirmDialog),
     ):
         parts += [_keys_table(title, _bindings(cls)), Text("")]
     parts += [_keys_table("Tables and fields", TABLE_KEYS), Text("")]
@@ -85,11 +112,14 @@ def help_renderable() -> Group:
     parts += [fields, Text("")]
     signs = [(f"{LIMIT_GLYPHS[name]} {name}", LIMIT_MEANINGS[name]) for name in LIMIT_GLYPHS]
     signs += [
-        (BASELINE_MARK, "the pinned baseline row; Δ columns show other rows minus it"),
+        (BASELINE_MARK, "rows of the baseline variant x engine option (b); Δ columns show each other row minus "
+                        "the baseline at the same weight (%MTOW or kg, B switches), ISA deviation and climb"),
         (" ".join(mark_sign(i + 1) for i in range(MAX_MARKED)),
          "rows marked for the envelope overlay (m); the number tags the row's curve"),
         (f"{MAKES_IT} / {SHORT_OF_IT}", "reaches / does not reach the target flight level"),
-        ("*", "weight above the variant's MTOW (computed, and flagged)"),
+        (OVER_MTOW_MARK, "weight above the variant's MTOW (computed, and flagged)"),
+        (BELOW_EMPTY_MARK, "weight below the variant's operating empty weight (or 30 % of MTOW where none is "
+                           "given): computed, and flagged; likely a unit slip"),
         (NONE, "no value: the model cannot give one (see the note)"),
         ("Max FL", "flight level of the maximum altitude, rounded down"),
     ]
@@ -102,24 +132,26 @@ def help_renderable() -> Group:
         (letters, "binding limit along a sweep curve: "
                   + ", ".join(f"{letter} {name}" for name, letter in LIMIT_LETTERS.items())),
         (NO_ALTITUDE_MARK, "no altitude at that point of a sweep"),
-        ("line styles", "each boundary or curve has its own dash pattern and letter; the legend under "
-                        "the drawing explains them, so colour is never needed"),
+        ("line styles", "each boundary or curve has its own dash pattern, character and letter (without "
+                        "colour, NO_COLOR, each line is drawn in its own character); the legend under the "
+                        "drawing explains them and says where two curves coincide, so colour is never needed"),
     ]
     parts += [_keys_table("Signs in the drawings", drawings)]
     return Group(*parts)
 
 
-class HelpScreen(Screen):
+class HelpScreen(HoldsKeys, Screen):
+    PICTURE_NAME = "help"  # in the name of a saved SVG (f2)
     BINDINGS = [Binding("escape,f1,question_mark", "close", "Close help")]
 
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="help-body") as body:
             body.border_title = "variantcmp help"
             yield Static(help_renderable(), id="help-text")
-        yield Footer()
+        yield FittingFooter()
 
     def on_mount(self) -> None:
-        self.query_one(VerticalScroll).focus()
+        focus_now(self.query_one(VerticalScroll))
 
     def action_close(self) -> None:
         self.dismiss()

@@ -3,17 +3,20 @@
 from __future__ import annotations
 
 from dataclasses import replace
+from functools import partial
 
-from textual import on, work
+from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, Input, Label, Static
+from textual.widgets import DataTable, Input, Label, Static
 
-from variantcmp.caution import CAUTION
 from variantcmp.units import OptionError, format_flight_level
 
+from .jobs import LatestJob
+from .keys import HoldsKeys, focus_now
+from .widgets import CautionBanner, FittingFooter, TextEntry
 from .form import FIELDS_BY_KEY, parse_field
 from .results import Results, compute, export_frame
 from .view import COLUMNS_BY_KEY, MAKES_IT, NONE, ROW_KEY, SHORT_OF_IT, Cell, cell, justify
@@ -21,7 +24,8 @@ from .view import COLUMNS_BY_KEY, MAKES_IT, NONE, ROW_KEY, SHORT_OF_IT, Cell, ce
 LOOKUP_FIELDS = ("weight", "isa", "target")
 
 
-class HotDayScreen(Screen):
+class HotDayScreen(HoldsKeys, Screen):
+    PICTURE_NAME = "hot-day"  # in the name of a saved SVG (f2)
     BINDINGS = [
         Binding("escape", "compare", "Compare"),
         Binding("c", "focus_fields", "Fields"),
@@ -33,6 +37,7 @@ class HotDayScreen(Screen):
         super().__init__()
         self.results: Results | None = None
         self._generation = 0
+        self._job = LatestJob(self, "hotday")
 
     def compose(self) -> ComposeResult:
         texts = self.app.texts
@@ -41,27 +46,27 @@ class HotDayScreen(Screen):
             "isa": texts["isa"] if texts["isa"].strip() not in ("", "0") else "ISA+15",
             "target": texts["target"],
         }
-        yield Static(CAUTION, id="caution")
+        yield CautionBanner(id="caution")
         with Horizontal(id="lookup-fields") as box:
             box.border_title = "Hot-day check"
             for key in LOOKUP_FIELDS:
                 field = FIELDS_BY_KEY[key]
                 with Horizontal(classes="field"):
                     yield Label(field.label, classes="field-label")
-                    yield Input(initial[key], placeholder=field.placeholder, id=f"lookup-{key}",
+                    yield TextEntry(initial[key], placeholder=field.placeholder, id=f"lookup-{key}",
                                 classes="lookup", compact=True, tooltip=field.help)
         yield Static("", id="lookup-errors")
         yield Static("", id="lookup-summary")
         yield DataTable(id="lookup-table", cursor_type="row", zebra_stripes=True, fixed_columns=2)
-        yield Footer()
+        yield FittingFooter()
 
     def on_mount(self) -> None:
         self.app.results_signal.subscribe(self, lambda _: self.recompute())
         self.recompute()
         if not self.query_one("#lookup-target", Input).value:
-            self.query_one("#lookup-target", Input).focus()
+            focus_now(self.query_one("#lookup-target", Input))
         else:
-            self.query_one(DataTable).focus()
+            focus_now(self.query_one(DataTable))
 
     def on_screen_resume(self) -> None:
         self.recompute()
@@ -91,15 +96,7 @@ class HotDayScreen(Screen):
         conditions = replace(app.conditions, weights=values["weight"], isa_devs_c=values["isa"],
                              target_fl_ft=values["target"])
         self._generation += 1
-        self._compute(self._generation, app.catalogue, conditions)
-
-    @work(thread=True, exclusive=True, group="hotday", exit_on_error=False)
-    def _compute(self, generation: int, catalogue, conditions) -> None:
-        results = compute(catalogue, conditions)
-        try:
-            self.app.call_from_thread(self._deliver, generation, results)
-        except RuntimeError:
-            pass
+        self._job.request(partial(compute, app.catalogue, conditions), partial(self._deliver, self._generation))
 
     def _deliver(self, generation: int, results: Results) -> None:
         if generation != self._generation or not self.is_attached:
@@ -174,9 +171,8 @@ class HotDayScreen(Screen):
     def field_changed(self) -> None:
         self.recompute()
 
-    @on(Input.Submitted, ".lookup")
-    def field_submitted(self) -> None:
-        self.query_one(DataTable).focus()
+    def field_entered(self, field: TextEntry) -> None:
+        focus_now(self.query_one(DataTable))
 
     @on(DataTable.RowSelected)
     def row_selected(self) -> None:
@@ -184,12 +180,12 @@ class HotDayScreen(Screen):
 
     def action_compare(self) -> None:
         if isinstance(self.focused, Input):
-            self.query_one(DataTable).focus()
+            focus_now(self.query_one(DataTable))
         else:
             self.app.switch_mode("compare")
 
     def action_focus_fields(self) -> None:
-        self.query_one("#lookup-weight", Input).focus()
+        focus_now(self.query_one("#lookup-weight", Input))
 
     def action_inspect(self) -> None:
         table = self.query_one(DataTable)

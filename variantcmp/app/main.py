@@ -2,45 +2,59 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+from functools import partial
 from pathlib import Path
 from time import perf_counter
 
 import polars as pl
-from textual import work
-from textual.app import App
+from textual import events
+from textual.app import App, SystemCommand
 from textual.binding import Binding
 from textual.screen import ModalScreen
+from textual.reactive import var
 from textual.signal import Signal
 
 from variantcmp.catalogue import Catalogue, CatalogueError, Problem, demo_catalogue_path, load_catalogue
+from variantcmp.sketch import terminal_wants_ascii
 
 from .compare import CompareScreen
-from .dialogs import ExportDialog, OpenDialog, ProblemsScreen
+from .dialogs import ExportDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
-from .help import HelpScreen
+from .help import HelpScreen, key_commands
 from .envelope_screen import EnvelopeScreen
 from .hotday import HotDayScreen
+from .jobs import LatestJob
+from .keys import KeyHold
+from .open_dialog import OpenDialog
+from .picture import save_view
 from .results import Results, compute
 from .sweep_screen import SweepScreen
 from .variant_info import VariantScreen
+from .widgets import COMPACT_BELOW_ROWS, shown_path
 
 DARK_THEME = "textual-dark"
 LIGHT_THEME = "textual-light"
 
 
-class VariantCmpApp(App[int]):
+class VariantCmpApp(KeyHold, App[int]):
     """Compare a fleet's ceilings. State lives here so every screen follows the same conditions."""
 
     CSS_PATH = "variantcmp.tcss"
     TITLE = "variantcmp"
-    ENABLE_COMMAND_PALETTE = False
+    # ctrl+p: every key of the screen on show (and of the app), found by name and run (help.key_commands).
+    ENABLE_COMMAND_PALETTE = True
     # Top-level views, each keeping its own state while the user switches between them.
     MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen}
     DEFAULT_MODE = "compare"
+    compact_rows = var(False)  # a short terminal: one-line caution (widgets.CautionBanner)
     BINDINGS = [
         Binding("f1,question_mark", "help", "Help"),
         Binding("t", "toggle_theme", "Theme", show=False),
-        Binding("q", "quit", "Quit"),
+        Binding("f2,ctrl+s", "save_picture", "Save SVG", show=False,
+                tooltip="save the view on screen as an SVG picture in the working folder, for a report"),
+        # The footer keeps its room for the screen's keys; q is in help and the palette, and ctrl+c says it.
+        Binding("q", "quit", "Quit", show=False),
     ]
 
     def __init__(self, catalogue_path: str | Path | None = None) -> None:
@@ -56,16 +70,22 @@ class VariantCmpApp(App[int]):
         self.catalogue_signal: Signal[Catalogue | None] = Signal(self, "catalogue")
         self.busy_signal: Signal[bool] = Signal(self, "busy")
         self._generation = 0
+        self._table_job = LatestJob(self, "compare")
         self.requested_at = perf_counter()
         self.last_export: str | None = None
+        self.last_picture: Path | None = None  # the last view saved as SVG
         # What the compare screen hands to the drawing views (row keys of the shared table).
         self.focus_key: str | None = None  # the row under the compare cursor
         self.shown_keys: list[str] = []  # rows the compare screen shows, in its order
         self.marked_keys: list[str] = []  # rows marked for the envelope overlay, in mark order
-        self.sketch_ascii = False  # plain-ASCII drawings for dumb terminals
+        self.sketch_ascii = terminal_wants_ascii()  # plain-ASCII drawings for dumb terminals (a toggles)
 
     def on_mount(self) -> None:
+        self.compact_rows = self.size.height < COMPACT_BELOW_ROWS
         self.open_catalogue(self.catalogue_path)
+
+    def on_resize(self, event: events.Resize) -> None:
+        self.compact_rows = event.size.height < COMPACT_BELOW_ROWS
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         # Dialogs own the keyboard: app-wide keys other than quit wait until they close.
@@ -102,7 +122,7 @@ class VariantCmpApp(App[int]):
             if path:
                 self.open_catalogue(path)
 
-        self.push_screen(OpenDialog(str(self.catalogue_path)), chosen)
+        self.push_screen(OpenDialog(), chosen)
 
     # --- conditions and results ----------------------------------------------------
 
@@ -121,15 +141,8 @@ class VariantCmpApp(App[int]):
         self._generation += 1
         self.requested_at = perf_counter()
         self.busy_signal.publish(True)
-        self._compute(self._generation, self.catalogue, self.conditions)
-
-    @work(thread=True, exclusive=True, group="compare", exit_on_error=False)
-    def _compute(self, generation: int, catalogue, conditions) -> None:
-        results = compute(catalogue, conditions)
-        try:
-            self.call_from_thread(self._deliver, generation, results)
-        except RuntimeError:  # the app closed while this ran
-            pass
+        self._table_job.request(partial(compute, self.catalogue, self.conditions),
+                                partial(self._deliver, self._generation))
 
     def _deliver(self, generation: int, results: Results) -> None:
         if generation != self._generation:
@@ -160,6 +173,19 @@ class VariantCmpApp(App[int]):
     def action_help(self) -> None:
         if not isinstance(self.screen, HelpScreen):
             self.push_screen(HelpScreen())
+
+    def get_system_commands(self, screen) -> Iterable[SystemCommand]:
+        yield from key_commands(self, screen)
+
+    def action_save_picture(self) -> None:
+        folder = Path.cwd()
+        try:
+            path = save_view(self, folder)
+        except OSError as error:
+            self.notify(f"Could not save a picture in {folder}: {error}", title="Save SVG", severity="error")
+            return
+        self.last_picture = path
+        self.notify(f"Saved this view as {shown_path(path)}", title="Save SVG")
 
     def action_toggle_theme(self) -> None:
         self.theme = LIGHT_THEME if self.current_theme.dark else DARK_THEME

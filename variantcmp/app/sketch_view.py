@@ -9,22 +9,24 @@ from __future__ import annotations
 
 from collections.abc import Callable, Hashable
 from dataclasses import dataclass
+from functools import partial
 from time import perf_counter
 
 import polars as pl
 from rich.text import Text
-from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal
 from textual.screen import Screen
 from textual.widget import Widget
-from textual.widgets import Footer, ProgressBar, Static
+from textual.widgets import ProgressBar, Static
 
-from variantcmp.caution import CAUTION
 from variantcmp.sketch import MIN_HEIGHT, MIN_WIDTH, Drawing
 from variantcmp.units import OptionError
 
+from .jobs import LatestJob
+from .keys import HoldsKeys
+from .widgets import CautionBanner, FittingFooter
 from .results import Results
 from .view import ROW_KEY
 
@@ -106,7 +108,7 @@ class Request:
     what: str  # "the envelope of v70/ossel-78", for the status line
 
 
-class DrawingScreen(Screen):
+class DrawingScreen(HoldsKeys, Screen):
     """Caution, a status line with a busy bar, the drawing, the footer.
 
     Subclasses say what to compute (`request`), how to draw it (`drawer`) and what the status line
@@ -127,6 +129,7 @@ class DrawingScreen(Screen):
         self._shown: Hashable | None = None  # key of what is drawn
         self._stale = False  # the shared results changed while this screen was hidden
         self._cache: dict[Hashable, object] = {}
+        self._job = LatestJob(self, "drawing")
         self.result: object | None = None  # the computed Envelope or Sweep on show
         self.error: str | None = None
         self.computations = 0  # solver runs (tests: a resize must not add one)
@@ -134,12 +137,12 @@ class DrawingScreen(Screen):
         self.busy = False
 
     def compose(self) -> ComposeResult:
-        yield Static(CAUTION, id="caution")
+        yield CautionBanner(id="caution")
         with Horizontal(id="sketch-status-row"):
             yield Static("", id="sketch-status")
             yield ProgressBar(total=None, show_eta=False, show_percentage=False, id="sketch-busy")
         yield SketchView(id="sketch")
-        yield Footer()
+        yield FittingFooter()
 
     @property
     def sketch(self) -> SketchView:
@@ -226,10 +229,11 @@ class DrawingScreen(Screen):
         self.set_status(f"computing {wanted.what} …")
         if self.result is None:
             self.sketch.show(None, f"Computing {wanted.what} …")
-        self._compute(self._generation, wanted)
+        self._job.request(partial(self._solve, wanted), partial(self._deliver, self._generation, wanted))
 
-    @work(thread=True, exclusive=True, group="drawing", exit_on_error=False)
-    def _compute(self, generation: int, wanted: Request) -> None:
+    @staticmethod
+    def _solve(wanted: Request) -> tuple[object, str | None, float]:
+        """Run the request's solver calls (in the worker thread): (result, error message, ms)."""
         started = perf_counter()
         result, error = None, None
         try:
@@ -238,13 +242,10 @@ class DrawingScreen(Screen):
             error = str(exc)
         except Exception as exc:  # the app must not die: say what went wrong in place
             error = f"could not compute {wanted.what} ({type(exc).__name__}: {exc})"
-        elapsed_ms = (perf_counter() - started) * 1000.0
-        try:
-            self.app.call_from_thread(self._deliver, generation, wanted, result, error, elapsed_ms)
-        except RuntimeError:  # the app closed while this ran
-            pass
+        return result, error, (perf_counter() - started) * 1000.0
 
-    def _deliver(self, generation: int, wanted: Request, result, error: str | None, elapsed_ms: float) -> None:
+    def _deliver(self, generation: int, wanted: Request, outcome: tuple[object, str | None, float]) -> None:
+        result, error, elapsed_ms = outcome
         if generation != self._generation or not self.is_attached:
             return  # a newer request is on its way
         self._pending = None

@@ -48,6 +48,7 @@ def narrowed_sweep(catalogue, conditions, over: str, pairs: tuple[tuple[str, str
 
 
 class SweepScreen(DrawingScreen):
+    PICTURE_NAME = "sweep"  # in the name of a saved SVG (f2)
     BINDINGS = [
         *DrawingScreen.BINDINGS,
         Binding("w", "over('weight')", "Weight", group=_SWEEP_OVER),
@@ -77,7 +78,7 @@ class SweepScreen(DrawingScreen):
         return Request(key, job, f"the sweep over {OVER_NAMES[self.over]}")
 
     def drawer(self, shown: ShownSweep):
-        return lambda width, height: draw_sweep(shown.sweep, width, height, self.app.sketch_ascii)
+        return lambda width, height: draw_sweep(shown.sweep, width, height, self.app.sketch_ascii, mono=self.app.no_color)
 
     def describe(self, shown: ShownSweep) -> str:
         curves = shown.sweep.frame["series"].n_unique()

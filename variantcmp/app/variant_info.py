@@ -1,24 +1,28 @@
-"""Inspect one variant: its catalogue values, derived figures and engine options."""
+"""Inspect one variant: its maximum altitudes at the shared conditions with the airspeeds there,
+its derived figures, engine options and catalogue values. Altitudes in ft throughout."""
 
 from __future__ import annotations
 
 import math
 from dataclasses import fields
 
+import polars as pl
 from rich.table import Table
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, Static
+from textual.widgets import Static
 
+from variantcmp.airspeed_columns import with_airspeeds
 from variantcmp.catalogue import Engine, Variant
-from variantcmp.caution import CAUTION
 from variantcmp.table import variant_figures
 from variantcmp.units import format_altitude_ft
 
-NONE = "—"
+from .keys import HoldsKeys, focus_now
+from .view import COLUMNS_BY_KEY, NONE, cell
+from .widgets import CautionBanner, FittingFooter
 
 # Unit suffixes of catalogue and figure names, written for people.
 _UNITS = (
@@ -31,7 +35,17 @@ _NAMES = {
     "max_altitude_ft": "certified maximum altitude", "oswald_e": "Oswald factor e",
     "ld_max": "best lift-to-drag ratio", "cl_star": "CL at best lift-to-drag",
     "static_thrust_kn": "static thrust per engine", "flat_rate_isa_dev_c": "flat rated up to ISA+",
-    "lapse_exponent_above_tropopause": "lapse exponent above 11 km",
+    "lapse_exponent_above_tropopause": "lapse exponent above the tropopause (36,089 ft)",
+    "cruise_mach": "cruise Mach", "buffet_mach": "buffet onset Mach", "buffet_cl": "buffet onset CL",
+    "induced_drag_k": "K as given", "sweep_deg": "wing sweep", "korn_factor": "Korn factor",
+    "max_cabin_dp_kpa": "maximum cabin pressure differential", "engine_count": "engines",
+}
+# Derived figures (variantcmp.table.variant_figures) by their key: a name and a unit for people.
+_FIGURES = {
+    "K": ("K (induced drag factor)", ""), "L/D max": ("best lift-to-drag ratio", ""),
+    "CL at L/D max": ("CL at best lift-to-drag", ""), "Wing loading kg/m2": ("wing loading at MTOW", "kg/m²"),
+    "T/W static at MTOW": ("static thrust-to-weight at MTOW", ""),
+    "Absolute ceiling ft (MTOW, ISA)": ("absolute ceiling (MTOW, ISA, best speed)", "ft"),
 }
 # Thrust-table grids are summarised in one line rather than listed value by value.
 _GRID_FIELDS = ("table_altitude_ft", "table_mach", "table_thrust_fraction")
@@ -43,13 +57,16 @@ _MODEL_FIELDS = {"lapse_exponent": "density-lapse", "lapse_exponent_above_tropop
 
 
 def _name_and_unit(key: str) -> tuple[str, str]:
+    if key in _FIGURES:
+        return _FIGURES[key]
     if key == "hot_day_loss_per_c":
         return "thrust loss above flat rating", "fraction per °C"
     for suffix, unit in sorted(_UNITS, key=lambda item: -len(item[0])):
         if key.endswith(suffix):
             base = key[: -len(suffix)]
             return _NAMES.get(key, base.replace("_", " ")), unit
-    return _NAMES.get(key, key.replace("_", " ")), ""
+    # A figure named with its unit in it (e.g. "... kg/m2"): write the unit for people.
+    return _NAMES.get(key, key.replace("_", " ")).replace("m2", "m²"), ""
 
 
 def _value(key: str, value) -> str:
@@ -138,7 +155,47 @@ def _grid_summary(engine: Engine) -> str:
             f" x {len(mach)} Mach {mach[0]:g} to {mach[-1]:g}")
 
 
-class VariantScreen(Screen):
+# The shared conditions' rows of a variant, in this order; where the width is short the columns
+# are kept by importance (the airspeeds at the maximum altitude before the conditions).
+_AT_CONDITIONS = ("engine", "weight", "pct_mtow", "isa", "climb", "fl", "max_ft", "limit", "mach", "tas", "cas")
+_IMPORTANCE = ("engine", "fl", "mach", "tas", "cas", "limit", "max_ft", "isa", "weight", "pct_mtow", "climb")
+_SPEED_HEADERS = {"tas": "TAS kt", "cas": "CAS kt"}
+
+
+def conditions_table(rows: pl.DataFrame, width: int = 200) -> Table:
+    """The variant's rows of the shared results, with TAS and CAS at each maximum altitude, in
+    ``width`` characters (columns left out by `_IMPORTANCE` where they do not fit, and said so)."""
+    texts: dict[str, list[str]] = {key: [] for key in _AT_CONDITIONS}
+    for row in with_airspeeds(rows).iter_rows(named=True):
+        for key in _AT_CONDITIONS:
+            if key in _SPEED_HEADERS:
+                value = row[f"{key}_kt"]
+                texts[key].append(NONE if value is None else f"{value:.0f}")
+            else:
+                texts[key].append(cell(COLUMNS_BY_KEY[key], row).plain)
+    headers = {key: _SPEED_HEADERS.get(key) or COLUMNS_BY_KEY[key].header for key in _AT_CONDITIONS}
+    room, kept = width, set()
+    for key in _IMPORTANCE:
+        need = max(len(text) for text in [headers[key], *texts[key]]) + 2  # padding: one each side
+        if need <= room:
+            kept.add(key)
+            room -= need
+    left_out = [headers[key] for key in _AT_CONDITIONS if key not in kept]
+    title = "Maximum altitudes at the compare screen's conditions, and the airspeeds there"
+    if left_out:
+        title += f" (too narrow for: {', '.join(left_out)})"
+    table = Table(title=title, title_justify="left", box=None, padding=(0, 1))
+    shown = [key for key in _AT_CONDITIONS if key in kept]
+    for key in shown:
+        left = key == "engine" or key == "limit"
+        table.add_column(headers[key], justify="left" if left else "right", no_wrap=True)
+    for i in range(rows.height):
+        table.add_row(*[texts[key][i] for key in shown])
+    return table
+
+
+class VariantScreen(HoldsKeys, Screen):
+    PICTURE_NAME = "variant"  # in the name of a saved SVG (f2)
     BINDINGS = [
         Binding("escape", "close", "Back"),
         Binding("n", "step(1)", "Next variant"),
@@ -150,17 +207,33 @@ class VariantScreen(Screen):
         self.variant_id = variant_id
 
     def compose(self) -> ComposeResult:
-        yield Static(CAUTION, id="caution")
+        yield CautionBanner(id="caution")
         with VerticalScroll(id="variant-body"):
             yield Static(id="variant-head")
+            yield Static(id="variant-conditions")
             yield Static(id="variant-figures")
             yield Static(id="variant-engines")
             yield Static(id="variant-values")
-        yield Footer()
+        yield FittingFooter()
 
     def on_mount(self) -> None:
         self.show()
-        self.query_one(VerticalScroll).focus()
+        self.app.results_signal.subscribe(self, lambda _: self.show_conditions())
+        focus_now(self.query_one(VerticalScroll))
+
+    def on_resize(self) -> None:
+        self.show_conditions()
+
+    def show_conditions(self) -> None:
+        results = self.app.results
+        box = self.query_one("#variant-conditions", Static)
+        if results is None or results.df is None:
+            box.update(Text("No results yet: set the conditions on the compare screen."))
+            return
+        rows = results.df.filter(pl.col("variant") == self.variant_id)
+        width = self.query_one("#variant-body").content_size.width or self.app.size.width - 6
+        box.update(conditions_table(rows, width - 2) if rows.height else Text(
+            "The compare screen's conditions select no engine option of this variant."))
 
     def show(self) -> None:
         catalogue = self.app.catalogue
@@ -173,6 +246,7 @@ class VariantScreen(Screen):
         head.append(f"  ({variant.id}) · {variant.engine_count} engines · options: "
                     f"{', '.join(variant.engine_options)}")
         self.query_one("#variant-head", Static).update(head)
+        self.show_conditions()
         self.query_one("#variant-values", Static).update(
             _pairs_table("Catalogue values", catalogue_pairs(variant)))
         try:

@@ -1,8 +1,13 @@
 """How a result table is shown: columns, cell text, sorting, filtering, baseline differences.
 
-Everything here reshapes the DataFrames that `variantcmp.table` returns; nothing
-computes physics. Cell text uses the same formatters as the headless commands
-(`variantcmp.units`), so a number reads the same in the app and on the CLI.
+Everything here reshapes the DataFrames that `variantcmp.table` returns (polars joins, no
+physics). Cell text uses the same formatters as the headless commands (`variantcmp.units`), so a
+number reads the same in the app and on the CLI.
+
+A baseline is a variant x engine option. Each row is compared with the baseline's row at the same
+weight (the same %MTOW or the same kg: `Baseline.match`), ISA deviation and climb criterion:
+`with_baseline` puts those values beside the row (`_base_*` columns), and the difference columns
+show row minus baseline, or no value where the baseline has no such row.
 """
 
 from __future__ import annotations
@@ -37,6 +42,11 @@ LIMIT_MEANINGS: dict[str, str] = {
     "none": "no limit found below the model top",
 }
 BASELINE_MARK = "◆"
+OVER_MTOW_MARK = "*"  # weight above MTOW: computed, and flagged
+BELOW_EMPTY_MARK = "!"  # weight below the operating empty weight: computed, and flagged
+BASE_PREFIX = "_base_"  # the baseline's value of a column, beside each row
+IS_BASE = "_is_base"  # the row belongs to the baseline variant x engine option
+BASE_ROW = "_base_row"  # true where the baseline has a row at the same weight, day and climb
 # Rows marked for the envelope overlay carry their overlay number (the drawing's curve tag).
 MAX_MARKED = 3
 MARK_PREFIX = "#"
@@ -71,7 +81,7 @@ class Column:
     key: str  # DataTable column key
     header: str
     source: str  # DataFrame column holding the value (also the sort key)
-    kind: str  # how to write the value: text, ft, fl, limit, margin, mach, tonnes, isa, fpm
+    kind: str  # how to write the value: text, ft, fl, limit, margin, mach, tonnes, pct, isa, fpm
     diff: bool = False  # written as a difference from the baseline row when one is pinned
     high_first: bool = False  # first sort puts the highest value on top
 
@@ -85,6 +95,7 @@ COLUMNS: tuple[Column, ...] = (
     Column("margin", "Margin ft", "margin_ft", "margin", high_first=True),
     Column("mach", "Mach", "mach", "mach", diff=True, high_first=True),
     Column("weight", "W t", "weight_kg", "tonnes"),
+    Column("pct_mtow", "%MTOW", "weight_pct_mtow", "pct"),
     Column("isa", "ISA", "isa_dev_c", "isa"),
     Column("climb", "Climb", "climb_fpm", "fpm"),
     Column("thrust", "Thrust", "thrust_ceiling_ft", "ft", diff=True, high_first=True),
@@ -95,7 +106,8 @@ COLUMNS: tuple[Column, ...] = (
     Column("note", "Note", "note", "text"),
 )
 COLUMNS_BY_KEY = {column.key: column for column in COLUMNS}
-_RIGHT = {"ft", "fl", "margin", "mach", "tonnes", "isa", "fpm"}
+_RIGHT = {"ft", "fl", "margin", "mach", "tonnes", "pct", "isa", "fpm"}
+DIFF_SOURCES = tuple(dict.fromkeys(column.source for column in COLUMNS if column.diff))
 
 
 def visible_columns(df: pl.DataFrame) -> list[Column]:
@@ -137,6 +149,56 @@ def sort_rows(df: pl.DataFrame, column: Column | None, descending: bool) -> pl.D
     return df.sort(column.source, descending=descending, nulls_last=True, maintain_order=True)
 
 
+@dataclass(frozen=True)
+class Baseline:
+    """The variant x engine option the other rows are compared with."""
+
+    variant: str
+    engine: str
+    match: str = "pct"  # rows are compared at the same "pct" (%MTOW) or the same "kg"
+
+    @property
+    def name(self) -> str:
+        return f"{self.variant}/{self.engine}"
+
+    @property
+    def match_words(self) -> str:
+        return "%MTOW" if self.match == "pct" else "weight in kg"
+
+    def switched(self) -> "Baseline":
+        """The same baseline, compared at the other kind of weight."""
+        return Baseline(self.variant, self.engine, "kg" if self.match == "pct" else "pct")
+
+
+def default_match(weights) -> str:
+    """Compare at the same kg when every weight was typed as a mass, else at the same %MTOW."""
+    return "kg" if weights and all(w.unit == "kg" for w in weights) else "pct"
+
+
+# Rounding of the matching keys: weights and days that print the same are the same.
+_MATCH_KEYS = {"pct": ("weight_pct_mtow", 6), "kg": ("weight_kg", 3)}
+
+
+def with_baseline(df: pl.DataFrame, baseline: Baseline | None) -> pl.DataFrame:
+    """``df`` with, per row, the baseline's values of the difference columns at the same weight
+    (``baseline.match``), ISA deviation and climb criterion (``_base_<column>``, null where the
+    baseline has no such row: then ``_base_row`` is null too) and ``_is_base``; the order of ``df``
+    is kept."""
+    if baseline is None:
+        return df
+    weight_column, decimals = _MATCH_KEYS[baseline.match]
+    keys = {"_k_weight": pl.col(weight_column).round(decimals), "_k_isa": pl.col("isa_dev_c").round(6),
+            "_k_climb": pl.col("climb_fpm").round(6)}
+    is_base = (pl.col("variant") == baseline.variant) & (pl.col("engine") == baseline.engine)
+    keyed = df.with_columns(**keys)
+    base = (keyed.filter(is_base)
+            .select(*keys, pl.lit(True).alias(BASE_ROW),
+                    *[pl.col(c).alias(BASE_PREFIX + c) for c in DIFF_SOURCES if c in df.columns])
+            .unique(subset=list(keys), keep="first", maintain_order=True))
+    return (keyed.with_row_index("_order").join(base, on=list(keys), how="left")
+            .sort("_order").drop("_order", *keys).with_columns(is_base.alias(IS_BASE)))
+
+
 def header(column: Column, sort_key: str | None, descending: bool, baseline: bool) -> str:
     """Column header with the sort direction and a delta sign for baseline differences."""
     label = column.header
@@ -162,14 +224,20 @@ def mark_sign(number: int) -> str:
     return f"{MARK_PREFIX}{number}"
 
 
-def cell(column: Column, row: dict, baseline: dict | None = None, marked: int | None = None) -> Cell:
-    """The text of one cell; ``baseline`` (a row) turns difference columns into deltas;
-    ``marked`` (1-based) is the row's place among the rows marked for the envelope overlay."""
+def _weight_marks(row: dict) -> str:
+    return (OVER_MTOW_MARK if row.get("over_mtow") else "") + (BELOW_EMPTY_MARK if row.get("below_empty_weight") else "")
+
+
+def cell(column: Column, row: dict, marked: int | None = None) -> Cell:
+    """The text of one cell. Where the row carries the baseline's values (`with_baseline`) the
+    difference columns show row minus baseline; ``marked`` (1-based) is the row's place among the
+    rows marked for the envelope overlay."""
     value = row.get(column.source)
     kind = column.kind
     right = kind in _RIGHT
-    if baseline is not None and column.diff and baseline.get(ROW_KEY) != row.get(ROW_KEY):
-        base = baseline.get(column.source)
+    base_key = BASE_PREFIX + column.source
+    if column.diff and base_key in row and not row.get(IS_BASE):
+        base = row[base_key]
         if not (_finite(value) and _finite(base)):
             return Cell(NONE, right)
         if kind == "mach":
@@ -179,7 +247,7 @@ def cell(column: Column, row: dict, baseline: dict | None = None, marked: int | 
         return Cell(_signed_ft(math.floor(value) - math.floor(base)), right)
     if kind == "text":
         text = "" if value is None else str(value)
-        if column.key == "variant" and baseline is not None and baseline.get(ROW_KEY) == row.get(ROW_KEY):
+        if column.key == "variant" and row.get(IS_BASE):
             text = f"{BASELINE_MARK} {text}"
         if column.key == "variant" and marked is not None:
             text = f"{mark_sign(marked)} {text}"
@@ -198,8 +266,9 @@ def cell(column: Column, row: dict, baseline: dict | None = None, marked: int | 
     if kind == "mach":
         return Cell(f"{value:.3f}", right)
     if kind == "tonnes":
-        mark = "*" if row.get("over_mtow") else ""
-        return Cell(f"{value / 1000.0:.1f}{mark}", right)
+        return Cell(f"{value / 1000.0:.1f}{_weight_marks(row)}", right)
+    if kind == "pct":
+        return Cell(f"{value:.1f}".removesuffix(".0") + _weight_marks(row), right)
     if kind == "isa":
         return Cell(format_isa_dev(value).removeprefix("ISA") or "0", right)
     if kind == "fpm":
@@ -207,9 +276,8 @@ def cell(column: Column, row: dict, baseline: dict | None = None, marked: int | 
     return Cell(str(value))
 
 
-def row_cells(columns: list[Column], row: dict, baseline: dict | None = None,
-              marked: int | None = None) -> list[Cell]:
-    return [cell(column, row, baseline, marked) for column in columns]
+def row_cells(columns: list[Column], row: dict, marked: int | None = None) -> list[Cell]:
+    return [cell(column, row, marked) for column in columns]
 
 
 def justify(headers: list[str], rows: list[list[Cell]]) -> tuple[list[Text], list[int]]:
