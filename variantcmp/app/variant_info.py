@@ -17,7 +17,7 @@ from textual.widgets import Static
 
 from variantcmp.airspeed_columns import with_airspeeds
 from variantcmp.catalogue import Engine, Variant
-from variantcmp.table import variant_figures
+from variantcmp.table import FIGURE_LABELS, variant_figures
 from variantcmp.units import format_altitude_ft
 
 from .keys import HoldsKeys, focus_now
@@ -40,13 +40,6 @@ _NAMES = {
     "induced_drag_k": "K as given", "sweep_deg": "wing sweep", "korn_factor": "Korn factor",
     "max_cabin_dp_kpa": "maximum cabin pressure differential", "engine_count": "engines",
 }
-# Derived figures (variantcmp.table.variant_figures) by their key: a name and a unit for people.
-_FIGURES = {
-    "K": ("K (induced drag factor)", ""), "L/D max": ("best lift-to-drag ratio", ""),
-    "CL at L/D max": ("CL at best lift-to-drag", ""), "Wing loading kg/m2": ("wing loading at MTOW", "kg/m²"),
-    "T/W static at MTOW": ("static thrust-to-weight at MTOW", ""),
-    "Absolute ceiling ft (MTOW, ISA)": ("absolute ceiling (MTOW, ISA, best speed)", "ft"),
-}
 # Thrust-table grids are summarised in one line rather than listed value by value.
 _GRID_FIELDS = ("table_altitude_ft", "table_mach", "table_thrust_fraction")
 
@@ -57,8 +50,8 @@ _MODEL_FIELDS = {"lapse_exponent": "density-lapse", "lapse_exponent_above_tropop
 
 
 def _name_and_unit(key: str) -> tuple[str, str]:
-    if key in _FIGURES:
-        return _FIGURES[key]
+    if key in FIGURE_LABELS:
+        return FIGURE_LABELS[key][:2]
     if key == "hot_day_loss_per_c":
         return "thrust loss above flat rating", "fraction per °C"
     for suffix, unit in sorted(_UNITS, key=lambda item: -len(item[0])):

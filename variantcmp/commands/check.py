@@ -3,10 +3,11 @@
 from __future__ import annotations
 
 import math
-import re
 import textwrap
 
 from variantcmp.units import format_altitude_ft, format_flight_level
+
+from variantcmp.table import FIGURE_LABELS, fleet_figures
 
 from . import options, output
 from .output import Column, TextTable
@@ -24,7 +25,6 @@ def add(subparsers) -> None:
 
 def run(args) -> int:
     from variantcmp.catalogue import summarise
-    from variantcmp.table import fleet_figures
 
     catalogue = options.load(args.catalogue)
     out = output.console()
@@ -65,9 +65,9 @@ def _figures_table(catalogue, figures: dict[str, dict]) -> TextTable:
     scalar_keys = list(dict.fromkeys(k for f in figures.values() for k, v in f.items() if not isinstance(v, dict)))
     engine_keys = list(dict.fromkeys(k for f in figures.values() for k, v in f.items() if isinstance(v, dict)))
     columns = [Column("variant", "Variant", "left")]
-    columns += [Column(k, _two_lines(k)) for k in scalar_keys]
+    columns += [Column(k, _header(k)) for k in scalar_keys]
     columns.append(Column("engine", "Engine", "left"))
-    columns += [Column(k, _two_lines(k)) for k in engine_keys]
+    columns += [Column(k, _header(k)) for k in engine_keys]
     cells: dict[str, list[str]] = {c.key: [] for c in columns}
     ends = []
     for vid, fig in figures.items():
@@ -83,13 +83,8 @@ def _figures_table(catalogue, figures: dict[str, dict]) -> TextTable:
     return TextTable(columns, cells, [None] * len(ends), ends)
 
 
-def _two_lines(header: str) -> str:
-    """A long header on two lines, split at the space nearest its middle (narrower columns)."""
-    spaces = [i for i, ch in enumerate(header) if ch == " "]
-    if len(header) <= 8 or not spaces:
-        return header
-    cut = min(spaces, key=lambda i: abs(i - len(header) / 2))
-    return header[:cut] + "\n" + header[cut + 1:]
+def _header(key: str) -> str:
+    return FIGURE_LABELS[key][2] if key in FIGURE_LABELS else key
 
 
 def _figure_text(key: str, value) -> str:
@@ -98,7 +93,7 @@ def _figure_text(key: str, value) -> str:
     if isinstance(value, (int, float)):
         if not math.isfinite(value):
             return "—"
-        if re.search(r"\bft\b", key):
+        if key.endswith("_ft"):
             return f"{format_altitude_ft(value)} ({format_flight_level(value)})"
         return f"{value:,.0f}" if abs(value) >= 1000 else f"{value:.4g}"
     return str(value)

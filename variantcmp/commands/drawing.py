@@ -3,7 +3,6 @@ ASCII fallback, printing a sketch."""
 
 from __future__ import annotations
 
-import os
 import re
 import shutil
 import sys
@@ -30,8 +29,18 @@ def add_drawing_options(p, mach_help: str) -> None:
 
 
 def wants_ascii(args) -> bool:
-    """--ascii, or a terminal that says it cannot draw more (TERM=dumb)."""
-    return bool(args.ascii) or os.environ.get("TERM", "") == "dumb"
+    """--ascii, or a terminal (or an output encoding) that cannot draw more (TERM=dumb)."""
+    from variantcmp.sketch import terminal_wants_ascii
+
+    return bool(args.ascii) or terminal_wants_ascii(encoding=getattr(sys.stdout, "encoding", None))
+
+
+def wants_mono() -> bool:
+    """Each line in its own character where colour cannot tell them apart: NO_COLOR, a dumb
+    terminal, or plain text going to a file or a pipe."""
+    from variantcmp.sketch import terminal_wants_monochrome
+
+    return terminal_wants_monochrome() or not sys.stdout.isatty()
 
 
 def parse_size(text: str | None) -> tuple[int, int]:
@@ -56,4 +65,4 @@ def emit(drawing) -> None:
     if sys.stdout.isatty():
         output.console().print(drawing.text(), crop=True, soft_wrap=False)
     else:
-        sys.stdout.write(str(drawing) + "\n")
+        sys.stdout.write("\n".join(line.rstrip() for line in str(drawing).splitlines()) + "\n")

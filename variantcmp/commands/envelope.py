@@ -58,6 +58,7 @@ def run(args) -> int:
         sys.stdout.write(json.dumps(doc) + "\n")
         output.print_caution(stderr=True)
     else:
-        drawing.emit(draw_envelope(env, *size, speed=args.speed, ascii=drawing.wants_ascii(args)))
+        drawing.emit(draw_envelope(env, *size, speed=args.speed, ascii=drawing.wants_ascii(args),
+                                   mono=drawing.wants_mono()))
         output.print_caution(stderr=False)
     return options.EXIT_OK

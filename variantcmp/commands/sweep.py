@@ -81,6 +81,7 @@ def run(args) -> int:
     if args.format in ("csv", "json"):
         output.write_data(result.frame, args.format)
     else:
-        drawing.emit(draw_sweep(result, *size, ascii=drawing.wants_ascii(args)))
+        drawing.emit(draw_sweep(result, *size, ascii=drawing.wants_ascii(args),
+                                   mono=drawing.wants_mono()))
         output.print_caution(stderr=False)
     return options.EXIT_OK

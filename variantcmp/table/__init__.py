@@ -18,10 +18,10 @@ from .ceilings import (
     solve,
 )
 from .conditions import Conditions, check_selection, resolve_ids, selected_pairs
-from .figures import fleet_figures, variant_figures
+from .figures import FIGURE_LABELS, fleet_figures, variant_figures
 
 __all__ = [
-    "COLUMNS", "LIGHT_FRACTION", "LIMIT_COLUMNS", "TARGET_COLUMNS", "Conditions", "case_notes", "ceilings_table",
+    "COLUMNS", "FIGURE_LABELS", "LIGHT_FRACTION", "LIMIT_COLUMNS", "TARGET_COLUMNS", "Conditions", "case_notes", "ceilings_table",
     "check_selection", "empty_weight_floor_kg", "feet", "fleet_figures", "resolve_ids", "selected_pairs", "solve",
     "variant_figures",
 ]
