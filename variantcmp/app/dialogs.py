@@ -15,24 +15,12 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Label, Static
 
 from variantcmp.catalogue import Catalogue, Problem
+from variantcmp.export import FORMATS, write_table
 
 from .keys import HoldsKeys, focus_now
 from .widgets import FittingFooter, PathSuggester, TextEntry, shown_path
 
-EXPORT_FORMATS = {".csv": "CSV", ".parquet": "Parquet", ".json": "JSON"}
-
-
-def write_table(df: pl.DataFrame, path: Path) -> None:
-    """Write with polars in the format the file name asks for."""
-    suffix = path.suffix.lower()
-    if suffix == ".csv":
-        df.write_csv(path)
-    elif suffix == ".parquet":
-        df.write_parquet(path)
-    elif suffix == ".json":
-        df.write_json(path)
-    else:
-        raise ValueError(f"unknown format {suffix!r}")
+EXPORT_FORMATS = FORMATS
 
 
 class ProblemsScreen(HoldsKeys, ModalScreen[None]):
@@ -172,7 +160,7 @@ class ExportDialog(HoldsKeys, ModalScreen[str | None]):
 
     def write(self, path: Path) -> None:
         try:
-            write_table(self.df, path)
+            write_table(self.df, path)  # whole or not at all
         except Exception as error:  # permissions, full disk: say so here, keep the dialog
             self._error(f"✗ Could not write {path}: {error}")
             return

@@ -11,12 +11,12 @@ from __future__ import annotations
 
 import math
 import os
-import re
 import sys
 import textwrap
 from dataclasses import dataclass
 
 from variantcmp.caution import CAUTION
+from variantcmp.export import for_export
 
 PIPE_WIDTH = 160  # piped or redirected tables without COLUMNS: wide enough for every ceilings column
 NOTE_MIN, NOTE_MAX = 16, 48  # the note column wraps between these widths
@@ -57,34 +57,6 @@ def print_caution(stderr: bool) -> None:
 
 
 # --- exports ----------------------------------------------------------------------------
-
-#: Decimals kept in CSV/JSON exports, by column name (first match wins): 0.01 ft, 0.1 kg,
-#: 0.01 deg C, 0.0001 Mach, never coarser. Anything else keeps 6 decimals.
-EXPORT_DECIMALS = (
-    (re.compile(r"(^|_)mach($|_)"), 4),
-    (re.compile(r"_ft$"), 2),
-    (re.compile(r"_kg$"), 1),
-    (re.compile(r"(^|_)c$|_c_|_per_c$"), 2),
-    (re.compile(r"_fpm$"), 2),
-    (re.compile(r"pct"), 2),
-    (re.compile(r"_kt$"), 2),
-    (re.compile(r"_kg_h$"), 1),
-    (re.compile(r"_nm$|_min$"), 2),
-)
-DEFAULT_DECIMALS = 6
-
-
-def export_decimals(name: str) -> int:
-    return next((d for pattern, d in EXPORT_DECIMALS if pattern.search(name)), DEFAULT_DECIMALS)
-
-
-def for_export(frame):
-    """Floats rounded to :data:`EXPORT_DECIMALS`; NaN never reaches an export as a number (null)."""
-    import polars as pl
-
-    floats = [c for c, t in frame.schema.items() if t in (pl.Float32, pl.Float64)]
-    return frame.with_columns(pl.col(c).fill_nan(None).round(export_decimals(c)) for c in floats)
-
 
 def write_data(frame, fmt: str) -> None:
     """CSV or JSON of a result table on stdout, the caution on stderr."""
