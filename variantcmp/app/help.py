@@ -40,9 +40,21 @@ TABLE_KEYS = [
 ]
 
 
+#: The keys of the whole app (VariantCmpApp.BINDINGS), kept here so that the help screen lists
+#: them without importing the app.
+APP_BINDINGS = [
+    Binding("f1,question_mark", "help", "Help"),
+    Binding("t", "toggle_theme", "Theme", show=False),
+    Binding("f2,ctrl+s", "save_picture", "Save SVG", show=False,
+            tooltip="save the view on screen as an SVG picture in the working folder, for a report"),
+    # The footer keeps its room for the screen's keys; q is in help and the palette, and ctrl+c says it.
+    Binding("q", "quit", "Quit", show=False),
+]
+
+
 def _bindings(cls) -> list[tuple[str, str]]:
     rows = []
-    for binding in cls.BINDINGS:
+    for binding in (cls if isinstance(cls, list) else cls.BINDINGS):
         if not isinstance(binding, Binding):
             binding = Binding(*binding)
         keys = [key.strip() for key in binding.key.split(",")]
@@ -92,14 +104,13 @@ def help_renderable() -> Group:
     from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
     from .envelope_screen import EnvelopeScreen
     from .hotday import HotDayScreen
-    from .main import VariantCmpApp
     from .open_dialog import OpenDialog
     from .sweep_screen import SweepScreen
     from .variant_info import VariantScreen
 
     parts = [Text(CAUTION, style="bold"), Text("")]
     for title, cls in (
-        ("Everywhere", VariantCmpApp), ("Compare screen", CompareScreen),
+        ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
         ("Hot-day check", HotDayScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),

@@ -10,7 +10,6 @@ from time import perf_counter
 import polars as pl
 from textual import events
 from textual.app import App, SystemCommand
-from textual.binding import Binding
 from textual.screen import ModalScreen
 from textual.reactive import var
 from textual.signal import Signal
@@ -21,7 +20,7 @@ from variantcmp.sketch import terminal_wants_ascii
 from .compare import CompareScreen
 from .dialogs import ExportDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
-from .help import HelpScreen, key_commands
+from .help import APP_BINDINGS, HelpScreen, key_commands
 from .envelope_screen import EnvelopeScreen
 from .hotday import HotDayScreen
 from .jobs import LatestJob
@@ -48,14 +47,7 @@ class VariantCmpApp(KeyHold, App[int]):
     MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen}
     DEFAULT_MODE = "compare"
     compact_rows = var(False)  # a short terminal: one-line caution (widgets.CautionBanner)
-    BINDINGS = [
-        Binding("f1,question_mark", "help", "Help"),
-        Binding("t", "toggle_theme", "Theme", show=False),
-        Binding("f2,ctrl+s", "save_picture", "Save SVG", show=False,
-                tooltip="save the view on screen as an SVG picture in the working folder, for a report"),
-        # The footer keeps its room for the screen's keys; q is in help and the palette, and ctrl+c says it.
-        Binding("q", "quit", "Quit", show=False),
-    ]
+    BINDINGS = APP_BINDINGS
 
     def __init__(self, catalogue_path: str | Path | None = None) -> None:
         super().__init__()
