@@ -75,16 +75,7 @@ TOP_LEVELS = 16  # extra levels in the last 8 % below the top, where the band cl
 # --- the boundaries at given points --------------------------------------------------------------
 
 def _bisect(func, lo, hi, rising, iterations=ROOT_ITERATIONS):
-    """Vectorised bisection for func(x) = 0 on [lo, hi]; ``rising``: func < 0 at lo, >= 0 at hi."""
-    lo, hi = np.array(lo, dtype=float), np.array(hi, dtype=float)
-    for _ in range(iterations):
-        mid = 0.5 * (lo + hi)
-        with np.errstate(invalid="ignore"):
-            up = func(mid) >= 0.0
-        to_hi = up == rising  # root below mid
-        hi = np.where(to_hi, mid, hi)
-        lo = np.where(to_hi, lo, mid)
-    return 0.5 * (lo + hi)
+    return s.bisect_root(func, lo, hi, rising, iterations)
 
 
 def _finite(values):
@@ -146,7 +137,7 @@ def _thrust_peak(phys, h):
     j = np.argmax(e_obj, axis=1)
     rows = np.arange(len(cs))
 
-    def excess(_i, m):
+    def excess(m):
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             return _finite(phys.excess(h, m))
 
