@@ -317,3 +317,110 @@ def test_a_narrow_band_of_flyable_speeds_between_grid_speeds_is_found(tmp_path):
     assert np.isnan(at_grid.max_altitude_m).all()  # no grid speed flies
     assert best.max_altitude_m[0] >= np.nanmax(scan.max_altitude_m) - 0.3 * FT
 
+
+def _best_speed_sets(demo):
+    # The demo and survey fleets (every pair x 5 weights x 4 days x 3 climbs) and 600 benchmark cases.
+    from variantcmp import bench
+    from variantcmp.cases import build_cases
+    from variantcmp.catalogue import bundled_fleet_dir, load_catalogue
+    from variantcmp.table import selected_pairs
+
+    survey = load_catalogue(bundled_fleet_dir() / "tallon-fells-survey.toml")
+    for cat in (demo, survey):
+        yield build_cases(cat, selected_pairs(cat, Conditions()), lambda v: np.linspace(0.55, 1.05, 5) * v.mtow_kg,
+                          [-15.0, 0.0, 20.0, 40.0], [0.0, 300.0, 800.0], "best", 1.3)[0]
+    yield bench.synthetic_cases(bench.synthetic_fleet(), 600, mach="best")
+
+
+def test_the_reported_mach_gives_the_reported_altitude_at_fixed_mach(demo):
+    # The check stage's invariant (self-consistency, no external source): the best speed's Mach,
+    # solved as a fixed Mach, gives its maximum altitude within 0.05 ft and the same limit.
+    import dataclasses
+
+    from variantcmp import solver
+
+    for cases in _best_speed_sets(demo):
+        best = solver.solve_ceilings(cases, processes=1)
+        speed = np.where(np.isnan(best.mach), cases.mach_low, best.mach)
+        fixed = solver.solve_ceilings(dataclasses.replace(cases, mach=speed), processes=1)
+        assert np.array_equal(np.isnan(best.max_altitude_m), np.isnan(fixed.max_altitude_m))
+        ok = np.isfinite(best.max_altitude_m)
+        assert ok.sum() > 100
+        np.testing.assert_allclose(fixed.max_altitude_m[ok], best.max_altitude_m[ok], rtol=0, atol=0.05 * FT)
+        np.testing.assert_array_equal(fixed.limit[ok], best.limit[ok])
+
+
+def test_no_speed_the_search_evaluated_beats_its_answer(demo, monkeypatch):
+    # The check stage's invariant (self-consistency, no external source): every fixed-Mach
+    # result the stages offered, and every coarse-grid speed (solved to GRID_TOL_M), is no higher
+    # than the answer.
+    from variantcmp import solver
+    from variantcmp.solver import coarse, results
+    from variantcmp.solver.physics import ClimbPhysics
+
+    offers = []
+    real = results.Incumbent.offer
+
+    def spy(self, rows, res, ties=False):
+        offers.append((rows.copy(), res.max_altitude_m.copy()))
+        return real(self, rows, res, ties)
+
+    monkeypatch.setattr(results.Incumbent, "offer", spy)
+    for cases in _best_speed_sets(demo):
+        offers.clear()
+        best = solver.best_speed_ceilings(ClimbPhysics(cases))
+        answer = np.where(np.isnan(best.max_altitude_m), -np.inf, best.max_altitude_m)
+        assert len(offers) >= 3
+        for rows, offered in offers:
+            assert np.all(answer[rows] >= np.where(np.isnan(offered), -np.inf, offered))
+        grid = coarse.coarse_stage(ClimbPhysics(cases))
+        at_grid = np.where(np.isnan(grid.at["max_altitude_m"]), -np.inf, grid.at["max_altitude_m"]).max(axis=1)
+        assert np.all(answer >= at_grid - coarse.GRID_TOL_M)
+
+
+def test_the_check_stage_mends_an_answer_below_a_grid_speed(demo, monkeypatch):
+    # The check stage enforces the invariant, not only states it: with the combined stage made to
+    # offer only the slowest speed's answer, every case ends no lower than its best grid speed.
+    from variantcmp.solver import best_speed, coarse, fixed_mach_ceilings
+    from variantcmp.solver.physics import ClimbPhysics
+
+    def slowest_only(phys, grid, thrust, m_buffet, grid_flags, inc):
+        inc.offer(np.arange(len(phys.cases)), fixed_mach_ceilings(phys, phys.cases.mach_low.copy()))
+        return np.zeros(0, dtype=np.intp)
+
+    cases = next(_best_speed_sets(demo))
+    honest = best_speed.best_speed_ceilings(ClimbPhysics(cases))
+    monkeypatch.setattr(best_speed, "combined_stage", slowest_only)
+    mended = best_speed.best_speed_ceilings(ClimbPhysics(cases))
+    grid = coarse.coarse_stage(ClimbPhysics(cases))
+    at_grid = np.where(np.isnan(grid.at["max_altitude_m"]), -np.inf, grid.at["max_altitude_m"]).max(axis=1)
+    got = np.where(np.isnan(mended.max_altitude_m), -np.inf, mended.max_altitude_m)
+    assert np.all(got >= at_grid - coarse.GRID_TOL_M)
+    slow = fixed_mach_ceilings(ClimbPhysics(cases), cases.mach_low.copy()).max_altitude_m
+    assert np.sum(got > np.where(np.isnan(slow), -np.inf, slow) + 100.0) > 50  # it did mend
+    assert np.all(got <= np.where(np.isnan(honest.max_altitude_m), -np.inf, honest.max_altitude_m) + 0.05 * FT)
+
+
+def test_each_limit_column_is_that_limits_own_best_over_speed(demo):
+    # The columns' contract (the CSV docs), by brute force (no external source): at the best speed
+    # the thrust, buffet and stall columns are each that limit's highest over a dense scan of
+    # fixed-Mach solves (161 speeds), each possibly at its own speed, and no lower than the scan.
+    import dataclasses
+
+    from variantcmp import solver
+
+    cases = next(_best_speed_sets(demo))
+    best = solver.solve_ceilings(cases, processes=1)
+    k = 161
+    speeds = cases.mach_low[:, None] + (cases.mach_high - cases.mach_low)[:, None] * np.linspace(0.0, 1.0, k)[None, :]
+    rep = cases.take(np.repeat(np.arange(len(cases)), k))
+    scan = solver.solve_ceilings(dataclasses.replace(rep, mach=speeds.ravel().copy()), processes=1)
+    for column, slack_ft in (("thrust_m", 0.3), ("buffet_m", 1e-6), ("stall_m", 1e-6)):
+        brute = np.where(np.isnan(getattr(scan, column)), -np.inf, getattr(scan, column)).reshape(len(cases), k).max(axis=1)
+        got = getattr(best, column)
+        ok = np.isfinite(brute) & np.isfinite(got)
+        assert ok.sum() > 50, column
+        assert np.all(got[ok] >= brute[ok] - slack_ft * FT), column
+        assert np.all(got[ok] <= brute[ok] + 5.0 * FT), column  # the scan's steps (a few ft) at most
+    differ = np.abs(best.buffet_m - best.max_altitude_m) > 100.0
+    assert differ.sum() > 10  # the columns are their own bests, not the values at the reported Mach

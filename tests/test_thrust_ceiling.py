@@ -52,3 +52,41 @@ def test_hump_probes_screened_out_cannot_climb(tmp_path, top_known):
     assert 0 < expect.sum() < n  # both outcomes occur
     np.testing.assert_array_equal(got, expect)
 
+
+def test_thrust_ceiling_is_the_top_root_against_brentq():
+    # Reference: scipy.optimize.brentq on the same excess climb rate, case by case, between the
+    # highest of a dense scan of altitudes (every 5 m from the floor up, one call per case) that
+    # climbs and the next above it. Every thrust model, random speeds in each case's range, cold
+    # and warm starts (a guess up to 400 m off). Where the root sits on a layer base (the climb
+    # rate jumps there) brentq closes in on the jump; ours is within 1e-6 m of it.
+    from scipy.optimize import brentq
+
+    from variantcmp import bench
+    from variantcmp.atmosphere import MODEL_TOP_M
+    from variantcmp.solver import CANNOT_CLIMB, THRUST_DATA_TOP, ClimbPhysics, thrust_ceiling_m
+
+    rng = np.random.default_rng(3)
+    cases = bench.synthetic_cases(bench.synthetic_fleet(), 3000).take(slice(0, 3000, 23))
+    cases = cases.with_mach(rng.uniform(cases.mach_low, cases.mach_high))
+    phys = ClimbPhysics(cases)
+    cold, flags = thrust_ceiling_m(phys, cases.mach)
+    warm = thrust_ceiling_m(phys, cases.mach, np.where(np.isfinite(cold), cold + rng.uniform(-400, 400, cold.size), cold))[0]
+    assert len({int(c) for c in cases.model_code}) == 3
+    found = 0
+    for i in range(len(cases)):
+        one, m = phys.subset(np.array([i])), cases.mach[i:i + 1]
+        top = min(cases.top_m[i], MODEL_TOP_M, 30_000.0)
+        levels = np.append(np.arange(cases.floor_m[i], top, 5.0), top)
+        climbs = one.excess(levels[None, :], m)[0] >= 0.0
+        if not climbs.any():
+            assert np.isnan(cold[i]) and flags[i] & CANNOT_CLIMB, i
+            continue
+        j = np.flatnonzero(climbs)[-1]
+        if j == levels.size - 1:
+            assert np.isnan(cold[i]) and flags[i] & THRUST_DATA_TOP, i
+            continue
+        ref = brentq(lambda h: float(one.excess(np.array([h]), m)[0]), levels[j], levels[j + 1], xtol=1e-9)
+        assert cold[i] == pytest.approx(ref, abs=0.005), i  # ROOT_TOL_M
+        assert warm[i] == pytest.approx(ref, abs=0.005), i
+        found += 1
+    assert found > 80
