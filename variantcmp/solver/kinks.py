@@ -6,10 +6,11 @@ around them instead of discovering them.
   thrust ceiling often sits exactly there, and over a range of speeds it *is* the base: a flat
   top of the thrust ceiling against Mach (:func:`on_layer_base`).
 - Thrust-table Mach columns: a table interpolates linearly in Mach, so thrust, and with it the
-  thrust ceiling, has a kink at each table Mach; between two it is smooth (:func:`thrust_cell`,
-  :func:`table_nodes_inside`, :func:`nearest_table_node`).
+  thrust ceiling, has a kink at each table Mach; between two it is smooth (:func:`table_nodes_inside`,
+  :func:`nearest_table_node`).
 - The turbofan lapse's branch change at theta0 = TR (:func:`variantcmp.thrust.turbofan_lapse_fraction`):
-  a kink in Mach whose place depends on the altitude (:func:`turbofan_branch_between`).
+  a kink in Mach whose place depends on the altitude, fixed in the isothermal layer
+  (:func:`turbofan_branch_mach`).
 - Buffet-boundary points: the buffet ceiling is smooth between them (:func:`buffet_nodes_around`);
   its highest point over a speed range is a closed form (:func:`variantcmp.solver.limits.buffet_peak_mach`).
 - The speed range's ends (MMO, the Mach ranges of the thrust table and the buffet data: see
@@ -20,9 +21,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..atmosphere import LAYER_BASE_M, T0_K, isa_state
+from ..atmosphere import GAMMA, LAYER_BASE_M, T0_K, isa_temperature_k
 from ..cases import MODEL_CODES
-from ..thrust import ram_temperature_ratio
 from .limits import buffet_boundary
 
 #: Altitudes (m) where the climb rate may jump: the layer bases above sea level (the root
@@ -45,20 +45,6 @@ def layer_base_near_m(altitude_m, within_m):
     base = LAYER_BASE_M[np.clip(np.searchsorted(LAYER_BASE_M, altitude_m + within_m) - 1, 0, LAYER_BASE_M.size - 1)]
     with np.errstate(invalid="ignore"):
         return np.where((np.abs(altitude_m - base) < within_m) & (base > 0.0), base, np.nan)
-
-
-def thrust_cell(phys, mach, low, high):
-    """[low, high] narrowed, for table engines, to the table Mach cell holding ``mach`` (where
-    their thrust is smooth in Mach); unchanged for the other models."""
-    cs = phys.cases
-    low, high = np.array(low, dtype=float), np.array(high, dtype=float)
-    for code, tid, group in phys.groups:
-        if code == MODEL_CODES["table"]:
-            nodes = cs.tables[tid].mach
-            j = np.clip(np.searchsorted(nodes, mach[group], side="right") - 1, 0, nodes.size - 2)
-            low[group] = np.maximum(low[group], nodes[j])
-            high[group] = np.minimum(high[group], nodes[j + 1])
-    return low, high
 
 
 def table_nodes_inside(phys, where):
@@ -95,15 +81,24 @@ def table_machs(phys):
     return [(phys.cases.tables[tid].mach, group) for code, tid, group in phys.groups if code == MODEL_CODES["table"]]
 
 
-def turbofan_branch_between(phys, altitude_m, low, high):
-    """Turbofan cases whose lapse changes branch (theta0 = TR) between two speeds at an altitude:
-    the excess climb rate has a kink in Mach there. A flat-rated engine's lapse sees ISA."""
+def turbofan_branch_mach(phys, altitude_m):
+    """The Mach at which each turbofan case's lapse changes branch at an altitude: theta0 = TR,
+    theta0 = (T/T0)(1 + (gamma-1)/2 M^2) (:func:`variantcmp.thrust.turbofan_lapse_fraction`; a
+    flat-rated engine's lapse sees ISA). Faster, the hot branch's steeper loss takes over, so
+    the thrust ceiling may peak in a corner there. NaN for the other models, and where the branch
+    lies outside the case's speed range."""
     cs = phys.cases
-    t = isa_state(altitude_m)[0] + np.where(np.isnan(cs.flat_rate_isa_dev_c), cs.isa_dev_c, 0.0)
-    limit_k = T0_K * cs.throttle_ratio  # theta0 = TR
-    with np.errstate(invalid="ignore"):
-        return (cs.model_code == MODEL_CODES["turbofan"]) & (
-            (t * ram_temperature_ratio(low) - limit_k) * (t * ram_temperature_ratio(high) - limit_k) <= 0.0)
+    out = np.full(len(cs), np.nan)
+    for code, _, g in phys.groups:
+        if code != MODEL_CODES["turbofan"]:
+            continue
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            seen = np.where(np.isnan(cs.flat_rate_isa_dev_c[g]), cs.isa_dev_c[g], 0.0)
+            h = altitude_m[g]
+            t = np.where(np.isfinite(h), isa_temperature_k(np.where(np.isfinite(h), h, 0.0)), np.nan) + seen
+            mach = np.sqrt((T0_K * cs.throttle_ratio[g] / t - 1.0) / (0.5 * (GAMMA - 1.0)))
+            out[g] = np.where((mach > cs.mach_low[g]) & (mach < cs.mach_high[g]), mach, np.nan)
+    return out
 
 
 def buffet_nodes_around(cases, mach):

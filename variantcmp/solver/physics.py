@@ -44,11 +44,20 @@ from .finders import golden_max, nan_as_lowest
 
 CLIMB_MACH_ITERATIONS = 24  # golden section in Mach at a fixed altitude: range x 0.618^24, about 1e-5
 GROUP_BASE = 1_000_000  # group key = model code x GROUP_BASE + table id + 1 (table engines)
+TURBOFAN, TABLE = MODEL_CODES["turbofan"], MODEL_CODES["table"]
 
 
 def group_key(cases) -> np.ndarray:
     """Thrust-model group of each case: model code, and the table for table engines."""
-    return cases.model_code * GROUP_BASE + np.where(cases.model_code == MODEL_CODES["table"], cases.table_id + 1, 0)
+    return cases.model_code * GROUP_BASE + np.where(cases.model_code == TABLE, cases.table_id + 1, 0)
+
+
+def _same(a):
+    return a
+
+
+def _column(a):
+    return a[:, None]
 
 
 class Point:
@@ -60,7 +69,7 @@ class Point:
 
     def __init__(self, phys: "ClimbPhysics", altitude_m, mach):
         self.h = np.asarray(altitude_m, dtype=float)
-        self.col = (lambda a: a[:, None]) if self.h.ndim == 2 else (lambda a: a)
+        self.col = _column if self.h.ndim == 2 else _same
         self.terms = phys.mach_terms(phys.cases.mach if mach is None else mach)
         self.m = self.col(self.terms["m"])
         self.t_isa, self.p, self.lapse = isa_state(self.h)
@@ -68,7 +77,7 @@ class Point:
         # One shape for every array the models gather from (an altitude per case may come with a
         # row of them, or one altitude for all).
         shape = self.t.shape
-        if np.shape(self.h) != shape:
+        if self.h.shape != shape:
             self.h = np.broadcast_to(self.h, shape)
         if self.p.shape != shape:
             self.p = np.broadcast_to(self.p, shape)
@@ -106,13 +115,13 @@ def _density_lapse(phys, idx, _tid, at, case):
 
 
 def _turbofan(phys, idx, _tid, at, case):
-    terms = tuple(case(x) for x in at.terms[MODEL_CODES["turbofan"]])
+    terms = tuple(case(x) for x in at.terms[TURBOFAN])
     return turbofan_lapse_from_terms(_seen_temperature(phys, idx, at, case), at.p[idx], case(phys.cases.throttle_ratio),
                                      terms)
 
 
 def _table(phys, idx, tid, at, case):
-    j, ty = at.terms[MODEL_CODES["table"]]
+    j, ty = at.terms[TABLE]
     return phys.cases.tables[tid].at(at.h[idx] / FT, (case(j), case(ty)))
 
 
@@ -120,7 +129,7 @@ def _table_mach_terms(phys, m):
     # Column index and weight per case, filled group by group.
     j, ty = np.zeros(m.shape, dtype=np.intp), np.zeros(m.shape)
     for code, tid, idx in phys.groups:
-        if code == MODEL_CODES["table"]:
+        if code == TABLE:
             j[idx], ty[idx] = phys.cases.tables[tid].mach_terms(m[idx])
     return j, ty
 
@@ -276,7 +285,8 @@ class ClimbPhysics:
         """
         at = Point(self, altitude_m, mach)
         w = at.col(self.w_n)
-        excess_n = self._thrust(at)
+        excess_n = self.thrust_fraction(at)
+        excess_n *= at.col(self.thrust_n)
         excess_n -= self._drag(at)
         ratio = at.t_isa / at.t
         rate = excess_n * (at.m * speed_of_sound_ms(at.t))

@@ -5,21 +5,20 @@ T(M) is the fixed-Mach thrust ceiling. It is smooth in Mach except where the dat
 and layer bases, where over a range of speeds T(M) *is* the base (a flat top: the climb rate
 drops across it). The stage starts from the coarse grid (:mod:`variantcmp.solver.coarse`):
 
-1. *Bracket*: the best grid speed's neighbours, narrowed for table engines to the table Mach cell
-   holding it (:func:`~variantcmp.solver.kinks.thrust_cell`).
+1. *Bracket*: the best grid speed's neighbours. Between kinks T is single-peaked, so the peak
+   next to the best grid speed lies between them; peaks on or past a kink are step 3's.
 2. *Refine* (:func:`refine`): :func:`joint_search`, Newton steps in altitude and Mach together,
    where the excess climb rate is smooth in both; Brent's search over Mach
    (:func:`~variantcmp.solver.finders.brent_max`) for what it leaves, each point a thrust ceiling
    (:class:`ThrustAtSpeed`: Newton steps from the parabola's guess with a learnt slope, else a
    warm window). The joint search settles every case of a 25,000-case benchmark chunk in 15
-   evaluation calls (measured).
-3. *Kinks* (:func:`table_node_stage`, :func:`layer_base_stage`): each table Mach in the range
-   that still climbs at the best ceiling found is solved (a sharp kink can put a narrow peak on a
-   table Mach between grid speeds: up to 162 ft low without this on a review catalogue whose
-   thrust drops 40 % between two columns 0.05 apart); where the table Mach nearest the best lies
-   inside the first bracket, the cell on its far side is refined too, if some speed there may
-   climb at the best ceiling found; where the best sits on a layer base (a flat top), the speed
-   that climbs best just above the base is solved.
+   evaluation calls (the far side of the table Mach columns, step 3: 151 cases in 12; measured).
+3. *Kinks* (:func:`kink_stage`, :func:`layer_base_stage`): each table Mach in the range, and the
+   turbofan lapse's branch Mach, that still climbs at the best ceiling found is solved (a peak on
+   a kink, between grid speeds); where the table Mach nearest the best lies inside the first
+   bracket, the cell on its far side is refined too, if some speed there may climb at the best
+   ceiling found; where the best sits on a layer base (a flat top), the speed that climbs best
+   just above the base is solved.
 4. *Polish*: the thrust ceiling at the best speed found, solved again to the full root tolerance
    in a window of a few centimetres (on a flat top, 1e-6 m just below the base, where the fixed-Mach
    root finder puts such roots).
@@ -43,7 +42,7 @@ from .coarse import GRID_TOL_M, Grid
 from .finders import brent_max, nan_as_lowest, newton_secant_root, parabola_peak
 from .fixed_mach import fixed_mach_ceilings
 from .kinks import (FLAT_TOP_BASES_M, PLATEAU_M, layer_base_near_m, nearest_table_node, on_layer_base, table_machs,
-                    table_nodes_inside, thrust_cell, turbofan_branch_between)
+                    table_nodes_inside, turbofan_branch_mach)
 from .physics import ClimbPhysics
 from .results import THRUST_DATA_TOP, Ceilings
 from .thrust_ceiling import WARM_HALF_WIDTH_M, thrust_ceiling_m
@@ -144,8 +143,9 @@ def joint_search(phys: ClimbPhysics, mach, altitude_m, low, high, slope_per_s):
     jumps at a layer base, so each case's steps stay in the layer it starts in (a start on a base
     counts as below it), PLATEAU_M inside its bases: one that climbs just below the base above
     has a flat top there and is answered as the base itself; one pressed against the base below,
-    turbofans whose lapse changes branch between the three speeds, and cases still moving after
-    JOINT_ITERATIONS are left to the caller.
+    and cases still moving after JOINT_ITERATIONS, are left to the caller. A kink between the
+    three speeds (a turbofan lapse's branch change) may settle a case beside a corner peak: the
+    kink stage solves the corner itself.
     """
     cs = phys.cases
     n = len(cs)
@@ -196,7 +196,6 @@ def joint_search(phys: ClimbPhysics, mach, altitude_m, low, high, slope_per_s):
             settled = ((measured | (np.abs(e_best) < JOINT_RATE_TOL_MS)) & (np.abs(m_new - m_prev) < JOINT_MACH_TOL)
                        & (np.abs(h_new - h) < SEARCH_TOL_M) & (curv < 0.0))
             fail = ~np.isfinite(h_new) | (~(curv < 0.0) & (np.abs(u) < d)) | (h_new == floor)
-            fail |= turbofan_branch_between(sub, h_new, x - d, x + d)
             fail[top] = True  # answered above
             done = np.flatnonzero(settled & ~fail)
             m_out[idx[done]], h_out[idx[done]] = m_new[done], h_new[done]
@@ -217,7 +216,9 @@ def refine(phys: ClimbPhysics, thrust_at: ThrustAtSpeed, rows, low, high, m0, h0
     passed) for the cases the joint search leaves. ``solved_start``: (m0, h0) is a solved grid
     speed, the best of the seeds, whose neighbours bound the bracket; an answer at an inner end of
     the bracket (no maximum there) or below the start is then not taken, and a start on a layer
-    base that the joint search leaves is kept as it is (a flat top). Returns (Mach, ceiling)."""
+    base that the joint search leaves is kept as it is: a flat top, where Brent's search finds
+    little (at most 0.07 ft more on the benchmark's seeds) at 3 % of the benchmark's best-speed
+    work; :func:`layer_base_stage` looks above it. Returns (Mach, ceiling)."""
     sub, slope = (phys, thrust_at.slope) if rows is None else (phys.subset(rows), thrust_at.slope[rows])
     m, h = joint_search(sub, m0, h0, low, high, slope)
     if solved_start:
@@ -236,66 +237,89 @@ def refine(phys: ClimbPhysics, thrust_at: ThrustAtSpeed, rows, low, high, m0, h0
     return m, h
 
 
-def table_node_stage(phys: ClimbPhysics, thrust_at: ThrustAtSpeed, grid: Grid, m_best, h_best):
-    """Table engines: T(M) on and beyond the table Mach columns (``m_best``, ``h_best`` in place).
+def kink_stage(phys: ClimbPhysics, thrust_at: ThrustAtSpeed, grid: Grid, m_best, h_best):
+    """T(M) on the kinks the data define, and beyond the table Mach nearest the best (``m_best``,
+    ``h_best`` in place).
 
     One flat screen at the best ceiling found (less twice SEARCH_TOL_M: near-ties are looked at)
-    decides what can do better: (a) each table Mach in the case's range where the case still
-    climbs there is solved (a peak on a kink); (b) where the table Mach nearest the best lies
-    inside the first bracket (the best grid speed's neighbours), the cell on its far side, where
-    some of FAR_SIDE_SPEEDS evenly spaced speeds of it or a table Mach in it climbs, or where the
-    parabola through the best of those and its neighbours peaks between them at a climbing rate
-    (:func:`~variantcmp.solver.finders.parabola_peak`: the excess climb rate is smooth between the
-    columns, and a peak 0.009 Mach wide went by without it: 2.3 ft low on a stress catalogue), is
-    refined from its middle. A best on the table Mach itself searches the cell on the other side of
-    the best grid speed's. Returns where a table Mach solved still climbs at the table's top.
-    Tests: the "table-dip" and "close-table-columns" dense scans.
+    decides what can do better:
+
+    (a) The kink points: every table Mach in the case's range (a sharp kink can put a narrow peak
+        on one, between grid speeds: up to 162 ft low without this on a review catalogue whose
+        thrust drops 40 % between two columns 0.05 apart), and the turbofan lapse's branch Mach
+        at the best ceiling (a corner peak where the hot branch's steeper loss takes over, which a
+        search over Mach only approaches: up to 0.46 ft low without this), solved where the case
+        still climbs there. The branch Mach moves with the altitude below the tropopause: one
+        more solve at the branch Mach of the ceiling found there.
+    (b) Where the table Mach nearest the best lies inside the first bracket (the best grid speed's
+        neighbours), the cell on its far side is refined from its middle where some of
+        FAR_SIDE_SPEEDS evenly spaced speeds of it, or a table Mach in it, climbs, or where the
+        parabola through the best of those and its neighbours peaks between them at a climbing
+        rate (:func:`~variantcmp.solver.finders.parabola_peak`: the excess climb rate is smooth
+        between the columns, and a peak 0.009 Mach wide went by without it: 2.3 ft low on a
+        stress catalogue). A best on the table Mach itself searches the cell on the other side of
+        the best grid speed's.
+
+    Returns where a table Mach solved still climbs at the table's top. Tests: the "table-dip",
+    "close-table-columns" and "turbofan-branch" dense scans.
     """
     n = len(phys.cases)
     rows = np.arange(n)
     beyond = np.zeros(n, dtype=bool)
-    tables = table_machs(phys)
-    if not tables:
-        return beyond
     level = h_best - 2.0 * SEARCH_TOL_M
-    # (a) the table Machs in range; (b) the far side of the nearest one, when in the first bracket.
-    node_case, node_mach = table_nodes_inside(phys, np.isfinite(h_best))
-    i = np.argmax(nan_as_lowest(grid.thrust_m), axis=1)
-    lo, hi = grid.around(i)
-    node = nearest_table_node(phys, m_best)
-    with np.errstate(invalid="ignore"):
-        inside = (node > lo + BEST_MACH_TOL) & (node < hi - BEST_MACH_TOL) & np.isfinite(h_best)
-    who = np.flatnonzero(inside)
-    side = np.where(np.abs(m_best - node) <= BEST_MACH_TOL, grid.mach[rows, i], m_best)[who]
-    below = side < node[who]
-    a, b = np.where(below, node[who], lo[who]), np.where(below, hi[who], node[who])
-    k = FAR_SIDE_SPEEDS + max(machs.size for machs, _ in tables)
-    probe = np.repeat(a[:, None], k, axis=1)  # (a repeated where a table has fewer Mach columns)
-    probe[:, :FAR_SIDE_SPEEDS] += (b - a)[:, None] * np.linspace(0.0, 1.0, FAR_SIDE_SPEEDS)[None, :]
-    for machs, group in tables:
-        in_group = np.zeros(n, dtype=bool)
-        in_group[group] = True
-        mine = np.flatnonzero(in_group[who])
-        probe[mine, FAR_SIDE_SPEEDS:FAR_SIDE_SPEEDS + machs.size] = np.clip(machs[None, :], a[mine, None], b[mine, None])
-    case = np.concatenate([node_case, np.repeat(who, k)])
+    known = np.isfinite(h_best)
+    node_case, node_mach = table_nodes_inside(phys, known)
+    branch = turbofan_branch_mach(phys, np.where(known, h_best, np.nan))
+    turbofan = np.flatnonzero(np.isfinite(branch))
+    point_case, point_mach = np.concatenate([node_case, turbofan]), np.concatenate([node_mach, branch[turbofan]])
+    order = np.argsort(point_case, kind="stable")  # cases in order keep the subsets' model groups slices
+    point_case, point_mach = point_case[order], point_mach[order]
+    tables = table_machs(phys)
+    who, probe = np.zeros(0, np.intp), np.zeros((0, 1))
+    if tables:
+        i = np.argmax(nan_as_lowest(grid.thrust_m), axis=1)
+        lo, hi = grid.around(i)
+        node = nearest_table_node(phys, m_best)
+        with np.errstate(invalid="ignore"):
+            who = np.flatnonzero((node > lo + BEST_MACH_TOL) & (node < hi - BEST_MACH_TOL) & known)
+        side = np.where(np.abs(m_best - node) <= BEST_MACH_TOL, grid.mach[rows, i], m_best)[who]
+        below = side < node[who]
+        a, b = np.where(below, node[who], lo[who]), np.where(below, hi[who], node[who])
+        k = FAR_SIDE_SPEEDS + max(machs.size for machs, _ in tables)
+        probe = np.repeat(a[:, None], k, axis=1)  # (a repeated where a table has fewer Mach columns)
+        probe[:, :FAR_SIDE_SPEEDS] += (b - a)[:, None] * np.linspace(0.0, 1.0, FAR_SIDE_SPEEDS)[None, :]
+        for machs, group in tables:
+            in_group = np.zeros(n, dtype=bool)
+            in_group[group] = True
+            mine = np.flatnonzero(in_group[who])
+            probe[mine, FAR_SIDE_SPEEDS:FAR_SIDE_SPEEDS + machs.size] = np.clip(machs[None, :], a[mine, None],
+                                                                                b[mine, None])
+    case = np.concatenate([point_case, np.repeat(who, probe.shape[1])])
+    if case.size == 0:
+        return beyond
+    order = np.argsort(case, kind="stable")
+    e = np.empty(case.size)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        e = phys.subset(case).excess(level[case], np.concatenate([node_mach, probe.ravel()]))
-    e_node, e_side = e[:node_case.size], e[node_case.size:].reshape(who.size, k)
+        e[order] = phys.subset(case[order]).excess(level[case[order]],
+                                                   np.concatenate([point_mach, probe.ravel()])[order])
+    e_point, e_side = e[:point_case.size], e[point_case.size:].reshape(who.size, probe.shape[1])
 
-    # (a) Peaks on the table Machs.
-    climbs = np.flatnonzero(e_node >= 0.0)
+    # (a) The kink points.
+    climbs = np.flatnonzero(e_point >= 0.0)
     if climbs.size:
-        c, m = node_case[climbs], node_mach[climbs]
+        c, m = point_case[climbs], point_mach[climbs]
         h, flags = thrust_ceiling_m(phys.subset(c), m, h_best[c] + WARM_HALF_WIDTH_M, WARM_HALF_WIDTH_M, SEARCH_TOL_M)
         beyond[c[(flags & THRUST_DATA_TOP).astype(bool)]] = True
-        value = nan_as_lowest(h)
-        order = np.lexsort((value, c))  # by case, highest ceiling last
-        last = order[np.append(c[order][1:] != c[order][:-1], True)]
-        better = last[value[last] > h_best[c[last]]]
-        m_best[c[better]], h_best[c[better]] = m[better], h[better]
+        _keep_higher(c, m, h, m_best, h_best)
+        moved = turbofan_branch_mach(phys.subset(c), np.where(np.isfinite(h), h, np.nan))
+        again = np.flatnonzero(np.isfinite(moved) & (np.abs(moved - m) > 0.1 * BEST_MACH_TOL))
+        if again.size:
+            c, m = c[again], moved[again]
+            h = thrust_ceiling_m(phys.subset(c), m, h[again], SEARCH_MIN_HALF_WIDTH_M, SEARCH_TOL_M)[0]
+            _keep_higher(c, m, h, m_best, h_best)
 
-    # (b) The far side.
-    keep = np.flatnonzero((e_side >= 0.0).any(axis=1) | (parabola_peak(probe, e_side) >= 0.0))
+    # (b) The far side of the nearest table Mach.
+    keep = np.flatnonzero((e_side >= 0.0).any(axis=1) | (parabola_peak(probe, e_side) >= 0.0)) if who.size else who
     if keep.size:
         who, a, b = who[keep], a[keep], b[keep]
         mid = 0.5 * (a + b)
@@ -311,17 +335,29 @@ def table_node_stage(phys: ClimbPhysics, thrust_at: ThrustAtSpeed, grid: Grid, m
     return beyond
 
 
-def layer_base_stage(phys: ClimbPhysics, m_best, h_best):
+def _keep_higher(case, mach, altitude_m, m_best, h_best):
+    """Per case of ``case`` (repeats allowed), the highest of ``altitude_m`` where it beats
+    ``h_best`` (in place, with its Mach)."""
+    value = nan_as_lowest(altitude_m)
+    order = np.lexsort((value, case))  # by case, highest ceiling last
+    last = order[np.append(case[order][1:] != case[order][:-1], True)]
+    better = last[value[last] > h_best[case[last]]]
+    m_best[case[better]], h_best[case[better]] = mach[better], altitude_m[better]
+
+
+def layer_base_stage(phys: ClimbPhysics, m_best, h_best, where=None):
     """Where the best thrust ceiling found sits on a layer base, look just above it (in place).
 
     The climb rate drops across a layer base, so over a range of speeds the thrust ceiling is held
     at the base itself: a flat top on which a search sees nothing. Just above the base the excess
     climb rate is smooth in Mach: where its best over the speed range
     (:meth:`~variantcmp.solver.physics.ClimbPhysics.best_climb_mach`) still climbs, the ceiling
-    there rises above the base. Test: the flat tops at the tropopause against a dense scan.
+    at that speed rises above the base (the speed that climbs best at the base: near, not always
+    at, the one whose ceiling is highest above it). ``where``: only those cases (a mask). Tests: the flat tops at the tropopause against a
+    dense scan, the "synthetic" and "turbofan-branch" dense scans.
     """
     base = layer_base_near_m(h_best, 0.5)
-    on = np.flatnonzero(np.isfinite(base))
+    on = np.flatnonzero(np.isfinite(base) & (True if where is None else where))
     if on.size == 0:
         return
     sub, h_on = phys.subset(on), base[on]
@@ -346,10 +382,14 @@ def thrust_best_stage(phys: ClimbPhysics, grid: Grid) -> ThrustBest:
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         slope = phys.excess(h0 + SLOPE_STEP_M, m0) / SLOPE_STEP_M
     thrust_at = ThrustAtSpeed(phys, grid.guess(), slope)
-    low, high = thrust_cell(phys, m0, *grid.around(i))
+    low, high = grid.around(i)
     m_best, h_best = refine(phys, thrust_at, None, low, high, m0, h0, grid.mach, values, solved_start=True)
-    beyond = table_node_stage(phys, thrust_at, grid, m_best, h_best)
-    layer_base_stage(phys, m_best, h_best)  # after the far side, which may end on a flat top too
+    # A flat top first (a kink's ceiling just above the base would hide it), and again where the
+    # kinks moved the best onto one (the far side of a table Mach may end on a flat top too).
+    layer_base_stage(phys, m_best, h_best)
+    before = h_best.copy()
+    beyond = kink_stage(phys, thrust_at, grid, m_best, h_best)
+    layer_base_stage(phys, m_best, h_best, h_best != before)
 
     # Polish: the root at the best speed to the full tolerance, in a window of 4 x SEARCH_TOL_M
     # (the search's root is within SEARCH_TOL_M). On a flat top the root is the layer base itself
