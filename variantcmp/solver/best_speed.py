@@ -39,11 +39,13 @@ Among speeds of equal altitude (a flat certified or cabin limit) the one with mo
 aerodynamic and thrust limits wins (:func:`~variantcmp.solver.results.score`).
 
 Accuracy, against dense Mach scans (161 fixed-Mach solves per case, then 41 around the best;
-``tests/test_best_speed.py``): on 3,000 benchmark cases of each of three seeds the worst case was
-0.12 ft low; on the two demo fleets (every pair x 8 weights 0.5-1.05 MTOW x ISA-15 to +45 x 0-500
-ft/min) none more than 0.03 ft low. On a reviewer's stress catalogue (MMO 0.70 with VMO 210 kt,
-four buffet peaks, three engine models, 0.35-1.3 MTOW, up to 800 ft/min) 26 of 810 cases stay
-more than 1 ft low, up to 192 ft, none without an answer. Known limits: a smooth peak narrower
+``tests/test_best_speed.py``): on 3,000 benchmark cases of each of three seeds (default, 7, 11)
+the worst case was 0.07 ft low; on the two bundled fleets (every pair x 8 weights 0.5-1.05 MTOW x
+ISA-15 to +45 every 10 C x 0, 100, 300 and 500 ft/min) 0.005 ft. On a reviewer's stress catalogue
+(MMO 0.70 with VMO 210 kt, four buffet peaks, three engine models, 0.35-1.3 MTOW, up to 800
+ft/min) 26 of 810 cases stayed more than 1 ft low, up to 192 ft, none without an answer (measured
+on the single-module solver these stages came from, whose answers they give to 0.004 ft, or
+higher). Known limits: a smooth peak narrower
 than the grid's step away from the best grid speed where every grid speed can be flown; a second
 buffet peak where the highest one cannot be flown; the band just under a thrust table's top where
 a buffet ceiling crosses it (reached to about 1 ft).

@@ -12,9 +12,18 @@ a pressure altitude and a Mach per case (or a row of altitudes per case):
 Per-case constants (weight, q S per unit pressure and Mach^2, the thrust the lapse fraction
 multiplies, the Korn coefficients, the density lapse's tropopause terms) are computed once per
 case set; the Mach-only terms once per Mach array in use (a subset asked for its parent's speeds
-takes the parent's). Each evaluation is then one ISA look-up (:func:`variantcmp.atmosphere.isa_state`)
-and a few dozen array operations; numpy's per-call overhead (100-170 us whatever the size,
-measured) is what the solvers count, so they make few, large calls.
+takes the parent's: one comparison instead of square roots and powers). Each evaluation is then
+one ISA look-up (:func:`variantcmp.atmosphere.isa_state`, branch-free below 20 km) and a few dozen
+array operations. Logarithms, exponentials and powers dominate the arithmetic where numpy has no
+vector code for them (about 10 ns a point each, 24 for a power, measured on a 2-core AVX2
+machine): one log and one exp per point for the atmosphere, the density lapse as one exp
+(:func:`variantcmp.thrust.density_lapse_from_logs`). numpy's per-call overhead (100-170 us an
+evaluation whatever its size) is what the solvers count, so they make few, large calls.
+
+Narrowed sets are lazy: the root finders drop converged cases and the checks work on a few cases
+at a time; :meth:`ClimbPhysics.subset` wraps them in a :class:`variantcmp.cases.CaseView`, which
+gathers a per-case array only when it is first read (an evaluation reads about a third of them),
+and takes its thrust-model groups from its parent's slices (an ascending index keeps them slices).
 
 Thrust models: :data:`THRUST_MODELS` maps each model code (:data:`variantcmp.cases.MODEL_CODES`)
 to its Mach-only terms, its lapse fraction and its static fraction, each a function of its own.
