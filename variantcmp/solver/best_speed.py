@@ -233,18 +233,19 @@ def check_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet, gr
     # (1) No speed evaluated beats the answer: every full-tolerance result went to ``inc``; the
     # grid's (solved to GRID_TOL_M) may beat it by that much at most, else it is solved again and
     # offered. The same for the thrust column against the grid's thrust ceilings.
-    grid_max = nan_as_lowest(grid.at["max_altitude_m"])
-    short = np.flatnonzero(grid_max.max(axis=1) > nan_as_lowest(inc.result.max_altitude_m) + GRID_TOL_M)
+    with np.errstate(invalid="ignore"):
+        short = np.flatnonzero(np.fmax.reduce(grid.at["max_altitude_m"], axis=1)
+                               > nan_as_lowest(inc.result.max_altitude_m) + GRID_TOL_M)
     if short.size:
         m = grid.mach[short, np.argmax(grid.score()[short], axis=1)]
         inc.offer(short, fixed_mach_ceilings(phys.subset(short), m, grid.guess(short)(m)))
     final = inc.result
     thrust_best = np.maximum(nan_as_lowest(thrust.final.thrust_m), nan_as_lowest(final.thrust_m))
-    grid_thrust = nan_as_lowest(grid.thrust_m)
-    short = np.flatnonzero(grid_thrust.max(axis=1) > thrust_best + GRID_TOL_M)
+    with np.errstate(invalid="ignore"):
+        short = np.flatnonzero(np.fmax.reduce(grid.thrust_m, axis=1) > thrust_best + GRID_TOL_M)
     if short.size:
-        m = grid.mach[short, np.argmax(grid_thrust[short], axis=1)]
-        again = thrust_ceiling_m(phys.subset(short), m, grid.thrust_m[short, np.argmax(grid_thrust[short], axis=1)])[0]
+        j = np.argmax(nan_as_lowest(grid.thrust_m[short]), axis=1)
+        again = thrust_ceiling_m(phys.subset(short), grid.mach[short, j], grid.thrust_m[short, j])[0]
         thrust_best[short] = np.maximum(thrust_best[short], nan_as_lowest(again))
     # (2) The answer is one fixed-Mach result at its Mach (``inc`` holds nothing else): solving
     # there again gives it, to the root tolerance.

@@ -353,8 +353,9 @@ def layer_base_stage(phys: ClimbPhysics, m_best, h_best, where=None):
     climb rate is smooth in Mach: where its best over the speed range
     (:meth:`~variantcmp.solver.physics.ClimbPhysics.best_climb_mach`) still climbs, the ceiling
     at that speed rises above the base (the speed that climbs best at the base: near, not always
-    at, the one whose ceiling is highest above it). ``where``: only those cases (a mask). Tests: the flat tops at the tropopause against a
-    dense scan, the "synthetic" and "turbofan-branch" dense scans.
+    at, the one whose ceiling is highest above it). ``where``: only those cases (a mask). Tests:
+    the flat tops at the tropopause against a dense scan, the "synthetic" and "turbofan-branch"
+    dense scans.
     """
     base = layer_base_near_m(h_best, 0.5)
     on = np.flatnonzero(np.isfinite(base) & (True if where is None else where))
