@@ -14,7 +14,9 @@ around them instead of discovering them.
 - Buffet-boundary points: the buffet ceiling is smooth between them (:func:`buffet_nodes_around`);
   its highest point over a speed range is a closed form (:func:`variantcmp.solver.limits.buffet_peak_mach`).
 - The speed range's ends (MMO, the Mach ranges of the thrust table and the buffet data: see
-  :mod:`variantcmp.cases`) are the ends of every search.
+  :mod:`variantcmp.cases`) are the ends of every search. The VMO floor rises with Mach: where it
+  climbs above the other ceilings the flyable speeds can form islands, which
+  :func:`variantcmp.solver.best_speed.flyable_islands` scans for.
 """
 
 from __future__ import annotations
