@@ -89,21 +89,21 @@ class CaseSet:
 
     def take(self, index) -> "CaseSet":
         """The cases at ``index`` (an integer array, a slice or a boolean mask)."""
-        return dataclasses.replace(self, **{n: getattr(self, n)[index] for n in _per_case_fields()})
+        return dataclasses.replace(self, **{n: getattr(self, n)[index] for n in per_case_fields()})
 
     def repeat(self, times: int) -> "CaseSet":
         """Every case ``times`` times in a row (case-major), e.g. one per Mach of a grid."""
-        return dataclasses.replace(self, **{n: np.repeat(getattr(self, n), times) for n in _per_case_fields()})
+        return dataclasses.replace(self, **{n: np.repeat(getattr(self, n), times) for n in per_case_fields()})
 
     def with_mach(self, mach) -> "CaseSet":
         return dataclasses.replace(self, mach=np.broadcast_to(np.asarray(mach, dtype=float), self.mach.shape).copy())
 
 
-def _per_case_fields() -> tuple[str, ...]:
+def per_case_fields() -> tuple[str, ...]:
     return _FLOAT_FIELDS + _INT_FIELDS + ("over_mtow",)
 
 
-_PER_CASE = frozenset(_per_case_fields())
+_PER_CASE = frozenset(per_case_fields())
 
 
 class CaseView:
@@ -175,7 +175,7 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
     blow = np.array([v.buffet_mach[0] for v in buffet_variants], dtype=float)
     bhigh = np.array([v.buffet_mach[-1] for v in buffet_variants], dtype=float)
 
-    rows: dict[str, list] = {n: [] for n in _per_case_fields()}
+    rows: dict[str, list] = {n: [] for n in per_case_fields()}
     climb_list, mach_list = [], []
     variant_order = list(variants)
     engine_order = list(engines)
@@ -234,7 +234,7 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
         climb_list.append(grid[:, 2])
         mach_list.append(np.full(n, m))
     arrays = {}
-    for name in _per_case_fields():
+    for name in per_case_fields():
         dtype = bool if name == "over_mtow" else (np.int64 if name in _INT_FIELDS else float)
         arrays[name] = np.concatenate(rows[name]).astype(dtype) if rows[name] else np.empty(0, dtype=dtype)
     cases = CaseSet(**arrays, tables=tables, buffet_key=key, buffet_cl=bcl, buffet_low=blow, buffet_high=bhigh)

@@ -20,9 +20,8 @@ repeated here: climb from :class:`variantcmp.solver.ClimbPhysics`, buffet CL fro
 from :mod:`variantcmp.airspeed`. Everything is vectorised over cases and altitudes; loops run over
 solver iterations only.
 
-Sweeps (maximum altitude against weight, ISA deviation or Mach, with the binding limit per point)
-are built on :func:`variantcmp.table.ceilings_table` or one :func:`variantcmp.solver.solve_ceilings`
-call for all points.
+Sweeps of the maximum altitude against weight, ISA deviation or Mach live in
+:mod:`variantcmp.sweeps` (their names are given here too).
 """
 
 from __future__ import annotations
@@ -36,9 +35,16 @@ from . import solver as s
 from .aero import lift_coefficient
 from .airspeed import cas_to_mach, mach_to_cas, pressure_for_cas_at_mach_pa
 from .atmosphere import G0, MODEL_TOP_M, isa_state, pressure_altitude_m, speed_of_sound_ms
-from .cases import FPM, FT, KT, build_cases
-from .table import Conditions, ceilings_table, check_selection, selected_pairs
-from .units import OptionError, WeightSpec
+from .cases import FT, KT, build_cases
+from .sweeps import DEFAULT_ISA_RANGE_C, DEFAULT_LOW_WEIGHT_PCT_MTOW, SWEEP_COLUMNS, SWEEP_OVER, Sweep, sweep
+from .table import Conditions, check_selection, selected_pairs
+from .units import OptionError
+
+__all__ = [  # the envelopes, and the sweeps' names (from variantcmp.sweeps) for the callers of this module
+    "BOUNDARIES", "BOUNDARY_LIMIT", "EXTRA_LINES", "MAX_ENVELOPE_CASES", "Envelope", "EnvelopeCase",
+    "compute_envelopes", "envelopes_for_conditions", "envelopes_for_rows",
+    "DEFAULT_ISA_RANGE_C", "DEFAULT_LOW_WEIGHT_PCT_MTOW", "SWEEP_COLUMNS", "SWEEP_OVER", "Sweep", "sweep",
+]
 
 #: Speed boundaries: name -> side of the band it can set ("low", "high") or "info" (drawn, not binding).
 BOUNDARIES: dict[str, str] = {
@@ -75,16 +81,7 @@ TOP_LEVELS = 16  # extra levels in the last 8 % below the top, where the band cl
 # --- the boundaries at given points --------------------------------------------------------------
 
 def _bisect(func, lo, hi, rising, iterations=ROOT_ITERATIONS):
-    """Vectorised bisection for func(x) = 0 on [lo, hi]; ``rising``: func < 0 at lo, >= 0 at hi."""
-    lo, hi = np.array(lo, dtype=float), np.array(hi, dtype=float)
-    for _ in range(iterations):
-        mid = 0.5 * (lo + hi)
-        with np.errstate(invalid="ignore"):
-            up = func(mid) >= 0.0
-        to_hi = up == rising  # root below mid
-        hi = np.where(to_hi, mid, hi)
-        lo = np.where(to_hi, lo, mid)
-    return 0.5 * (lo + hi)
+    return s.bisect_root(func, lo, hi, rising, iterations)
 
 
 def _finite(values):
@@ -146,7 +143,7 @@ def _thrust_peak(phys, h):
     j = np.argmax(e_obj, axis=1)
     rows = np.arange(len(cs))
 
-    def excess(_i, m):
+    def excess(m):
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             return _finite(phys.excess(h, m))
 
@@ -516,120 +513,3 @@ def envelopes_for_rows(catalogue, rows, g_margin: float = 1.3, mach="cruise") ->
     specs = [EnvelopeCase(r["variant"], r["engine"], float(r["weight_kg"]), float(r["isa_dev_c"]),
                           float(r["climb_fpm"]), g_margin) for r in rows]
     return compute_envelopes(catalogue, specs, mach)
-
-
-# --- sweeps -------------------------------------------------------------------------------------
-
-SWEEP_OVER = {"weight": "weight_kg", "isa": "isa_dev_c", "mach": "mach"}
-SWEEP_COLUMNS = ("series", "variant", "engine", "weight_kg", "isa_dev_c", "climb_fpm", "mach",
-                 "max_altitude_ft", "flight_level", "limit", "note")
-#: Default sweep ranges: ISA deviations (degrees C) for the hot-day curve; weights OEW..MTOW.
-DEFAULT_ISA_RANGE_C = (-20.0, 40.0)
-DEFAULT_LOW_WEIGHT_PCT_MTOW = 60.0  # when a variant gives no OEW (common practice, no source)
-
-
-@dataclass(frozen=True)
-class Sweep:
-    """Maximum altitude against one quantity: ``frame`` has :data:`SWEEP_COLUMNS`, one row per point."""
-
-    over: str  # "weight", "isa" or "mach"
-    x_column: str
-    frame: pl.DataFrame
-    conditions: Conditions
-
-
-def _series_labels(frame: pl.DataFrame, over: str, conditions: Conditions) -> pl.DataFrame:
-    parts = [pl.col("variant"), pl.lit("/"), pl.col("engine")]
-    if over != "weight" and len(conditions.weights) > 1:
-        parts += [pl.lit(" "), (pl.col("weight_kg") / 1000).round(1).cast(pl.String), pl.lit("t")]
-    if over != "isa" and len(conditions.isa_devs_c) > 1:
-        parts += [pl.lit(" ISA"), pl.when(pl.col("isa_dev_c") >= 0).then(pl.lit("+")).otherwise(pl.lit("")),
-                  pl.col("isa_dev_c").cast(pl.String)]
-    if len(conditions.climb_fpm) > 1:
-        parts += [pl.lit(" "), pl.col("climb_fpm").cast(pl.String), pl.lit("fpm")]
-    return frame.with_columns(series=pl.concat_str(parts))
-
-
-def sweep(catalogue, conditions: Conditions, over: str, points: int = 31, value_range=None) -> Sweep:
-    """Maximum altitude and binding limit against weight, ISA deviation or Mach, one solver call.
-
-    ``value_range``: (low, high) of the swept quantity: for weight two :class:`WeightSpec` (both kg
-    or both %MTOW; default each variant's OEW to MTOW), for ISA degrees C (default -20 to +40), for
-    Mach numbers (default each case's speed range: the best-speed search range of the solver).
-    """
-    if over not in SWEEP_OVER:
-        raise OptionError(f"--over: cannot use {over!r}: expected one of {', '.join(SWEEP_OVER)}")
-    if not 2 <= points <= 400:
-        raise OptionError(f"--points: cannot use {points}: expected 2 to 400 points")
-    check_selection(catalogue, conditions)
-    pairs = selected_pairs(catalogue, conditions)
-    frac = np.linspace(0.0, 1.0, points)
-    if over == "weight":
-        if value_range is None:
-            pct = set()
-            for vid in dict.fromkeys(v for v, _ in pairs):
-                v = catalogue.variants[vid]
-                low = 100.0 * v.oew_kg / v.mtow_kg if v.oew_kg else DEFAULT_LOW_WEIGHT_PCT_MTOW
-                pct.update(np.round(low + (100.0 - low) * frac, 9).tolist())
-            weights = tuple(WeightSpec(x, "%mtow") for x in sorted(pct))
-        else:
-            lo, hi = value_range
-            if lo.unit != hi.unit:
-                raise OptionError("--range: both ends of a weight range must be kg (t, lb) or both %mtow")
-            weights = tuple(WeightSpec(float(x), lo.unit) for x in lo.value + (hi.value - lo.value) * frac)
-        cond = _replace(conditions, weights=weights)
-        frame = ceilings_table(catalogue, cond)
-        if value_range is None:  # each variant from its own OEW (or the default share) to MTOW
-            low_kg = {vid: (v.oew_kg or v.mtow_kg * DEFAULT_LOW_WEIGHT_PCT_MTOW / 100.0)
-                      for vid, v in catalogue.variants.items()}
-            frame = frame.filter(pl.col("weight_kg") >= pl.col("variant").replace_strict(low_kg) * (1 - 1e-9))
-    elif over == "isa":
-        lo, hi = value_range or DEFAULT_ISA_RANGE_C
-        cond = _replace(conditions, isa_devs_c=tuple(np.round(lo + (hi - lo) * frac, 9).tolist()))
-        frame = ceilings_table(catalogue, cond)
-    else:
-        cond = conditions
-        frame = _mach_sweep(catalogue, conditions, pairs, frac, value_range)
-    frame = _series_labels(frame, over, conditions).select(SWEEP_COLUMNS)
-    frame = frame.sort("series", SWEEP_OVER[over], maintain_order=True)
-    return Sweep(over=over, x_column=SWEEP_OVER[over], frame=frame, conditions=cond)
-
-
-def _replace(conditions, **changes):
-    import dataclasses
-
-    return dataclasses.replace(conditions, **changes)
-
-
-def _mach_sweep(catalogue, conditions, pairs, frac, value_range) -> pl.DataFrame:
-    cases, index = build_cases(catalogue, pairs, lambda v: [w.resolve_kg(v.mtow_kg) for w in conditions.weights],
-                               conditions.isa_devs_c, conditions.climb_fpm, "cruise", conditions.g_margin)
-    g = frac.size
-    if value_range is None:
-        grid = cases.mach_low[:, None] + (cases.mach_high - cases.mach_low)[:, None] * frac[None, :]
-    else:
-        lo, hi = value_range
-        grid = np.broadcast_to(lo + (hi - lo) * frac, (len(cases), g))
-    rep = cases.repeat(g).with_mach(grid.ravel())
-    res = s.solve_ceilings(rep)
-    max_ft = res.max_altitude_m / FT
-    has = np.isfinite(max_ft)
-    names = np.array(list(s.LIMITS) + ["none"], dtype=object)
-    limit = np.where(has, names[np.where(res.limit >= 0, res.limit, len(s.LIMITS))],
-                     np.where(res.flags & s.ABOVE_MODEL_TOP, "none", None))
-    notes = np.where(has, "", np.where(res.flags & s.ABOVE_MMO, "above MMO",
-                                       np.where(res.flags & s.BELOW_VMO_FLOOR, "exceeds VMO at the limits' ceiling",
-                                                "no altitude meets every limit")))
-    return pl.DataFrame({
-        "variant": np.asarray(index.variant_ids, dtype=object)[rep.variant_index].tolist(),
-        "engine": np.asarray(index.engine_ids, dtype=object)[rep.engine_index].tolist(),
-        "weight_kg": rep.weight_kg,
-        "isa_dev_c": rep.isa_dev_c,
-        "climb_fpm": rep.climb_ms / FPM,
-        "mach": rep.mach,
-        "max_altitude_ft": np.where(has, max_ft, np.nan),
-        "flight_level": np.where(has, np.floor(np.where(has, max_ft, 0.0) / 100.0), np.nan),
-        "limit": pl.Series(limit.tolist(), dtype=pl.String),
-        "note": notes.tolist(),
-    }, nan_to_null=True).with_columns(pl.col("flight_level").cast(pl.Int64),
-                                      pl.col("climb_fpm").round(6))

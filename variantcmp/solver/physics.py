@@ -1,0 +1,338 @@
+"""Quasi-steady climb physics of a set of cases: thrust available, drag and the residual climb rate.
+
+:class:`ClimbPhysics` evaluates, for every case of a :class:`variantcmp.cases.CaseSet` at once, at
+a pressure altitude and a Mach per case (or a row of altitudes per case):
+
+- ``available_thrust_n``: the engines' thrust after lapse and flat rating;
+- ``drag_n``: q S (CD0 + K CL^2 + CDw), q S = (gamma/2) p M^2 S, with the Korn/Lock wave drag;
+- ``climb_rate_ms``: dh_p/dt = (F - D) V / W x (T_ISA/T) x f (the total-energy equation at
+  constant Mach, :func:`variantcmp.aero.energy_share_factor`), and ``excess``, that rate less
+  the case's required residual climb.
+
+Per-case constants (weight, q S per unit pressure and Mach^2, the thrust the lapse fraction
+multiplies, the Korn coefficients, the density lapse's tropopause terms) are computed once per
+case set; the Mach-only terms once per Mach array in use (a subset asked for its parent's speeds
+takes the parent's: one comparison instead of square roots and powers). Each evaluation is then
+one ISA look-up (:func:`variantcmp.atmosphere.isa_state`, branch-free below 20 km) and a few dozen
+array operations. Logarithms, exponentials and powers dominate the arithmetic where numpy has no
+vector code for them (about 10 ns a point each, 24 for a power, measured on a 2-core AVX2
+machine): one log and one exp per point for the atmosphere, the density lapse as one exp
+(:func:`variantcmp.thrust.density_lapse_from_logs`). numpy's per-call overhead (100-170 us an
+evaluation whatever its size) is what the solvers count, so they make few, large calls.
+
+Narrowed sets are lazy: the root finders drop converged cases and the checks work on a few cases
+at a time; :meth:`ClimbPhysics.subset` wraps them in a :class:`variantcmp.cases.CaseView`, which
+gathers a per-case array only when it is first read (an evaluation reads about a third of them),
+and takes its thrust-model groups from its parent's slices (an ascending index keeps them slices).
+
+Thrust models: :data:`THRUST_MODELS` maps each model code (:data:`variantcmp.cases.MODEL_CODES`)
+to its Mach-only terms, its lapse fraction and its static fraction, each a function of its own.
+Cases are grouped by model (and by table, for table engines); the solvers sort each chunk by
+:func:`group_key` so that every group is a slice (views, not gathers). A new model is one more
+entry (its evaluation point carries altitude, temperature, ISA temperature, pressure and Mach,
+so a model may use true airspeed too).
+
+Other questions use the same physics: a derived :class:`~variantcmp.cases.CaseSet` (other
+weights, deviations, thrust or CD0: ``dataclasses.replace``) gives a new ``ClimbPhysics``, and
+``best_climb_mach`` maximises the climb rate over Mach at given altitudes.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Callable
+
+import numpy as np
+
+from ..aero import energy_share_factor, korn_coefficients, lock_wave_drag
+from ..atmosphere import G0, GAMMA, R_AIR, RHO0_KG_M3, isa_state, speed_of_sound_ms
+from ..cases import FT, MODEL_CODES, CaseSet, CaseView
+from ..thrust import (density_lapse_from_logs, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms,
+                      turbofan_sea_level_fraction)
+from .finders import golden_max, nan_as_lowest
+
+CLIMB_MACH_ITERATIONS = 24  # golden section in Mach at a fixed altitude: range x 0.618^24, about 1e-5
+GROUP_BASE = 1_000_000  # group key = model code x GROUP_BASE + table id + 1 (table engines)
+TURBOFAN, TABLE = MODEL_CODES["turbofan"], MODEL_CODES["table"]
+
+
+def group_key(cases) -> np.ndarray:
+    """Thrust-model group of each case: model code, and the table for table engines."""
+    return cases.model_code * GROUP_BASE + np.where(cases.model_code == TABLE, cases.table_id + 1, 0)
+
+
+def _same(a):
+    return a
+
+
+def _column(a):
+    return a[:, None]
+
+
+class Point:
+    """Where thrust is evaluated: altitude (m), temperature and ISA temperature (K), pressure (Pa)
+    and Mach, for all cases (1-D) or rows of altitudes per case (2-D; ``col`` turns a per-case
+    array into a column)."""
+
+    __slots__ = ("h", "col", "terms", "m", "t_isa", "p", "lapse", "t")
+
+    def __init__(self, phys: "ClimbPhysics", altitude_m, mach):
+        self.h = np.asarray(altitude_m, dtype=float)
+        self.col = _column if self.h.ndim == 2 else _same
+        self.terms = phys.mach_terms(phys.cases.mach if mach is None else mach)
+        self.m = self.col(self.terms["m"])
+        self.t_isa, self.p, self.lapse = isa_state(self.h)
+        self.t = self.t_isa + self.col(phys.cases.isa_dev_c)
+        # One shape for every array the models gather from (an altitude per case may come with a
+        # row of them, or one altitude for all).
+        shape = self.t.shape
+        if self.h.shape != shape:
+            self.h = np.broadcast_to(self.h, shape)
+        if self.p.shape != shape:
+            self.p = np.broadcast_to(self.p, shape)
+        if self.t_isa.shape != shape:
+            self.t_isa = np.broadcast_to(self.t_isa, shape)
+
+
+@dataclass(frozen=True)
+class ThrustModel:
+    """How :class:`ClimbPhysics` evaluates one thrust model on its group of cases.
+
+    ``fraction(phys, idx, table_id, at, case)``: F / F_SLS for the group's cases ``idx`` at the
+    :class:`Point` ``at`` (``case(a)``: a per-case array for the group, as a column when ``at`` is
+    2-D). ``mach_terms(phys, m)``: the model's Mach-only terms for every case (full length, so that
+    a subset can take them), cached with the Mach. ``static_fraction(cases)``: the fraction at sea
+    level, static, ISA, which the catalogue's static thrust is (the thrust is divided by it).
+    """
+
+    fraction: Callable
+    mach_terms: Callable | None = None
+    static_fraction: Callable | None = None
+
+
+def _seen_temperature(phys, idx, at, case):
+    """A flat-rated engine holds its ISA thrust up to the flat-rate deviation (the loss above it is
+    :func:`variantcmp.thrust.hot_day_factor`): its lapse sees the ISA temperature, not the day's."""
+    return np.where(case(phys.flat_rated), at.t_isa[idx], at.t[idx])
+
+
+def _density_lapse(phys, idx, _tid, at, case):
+    with np.errstate(divide="ignore"):
+        ln_sigma = np.log(at.p[idx] / (R_AIR * RHO0_KG_M3 * _seen_temperature(phys, idx, at, case)))
+    return density_lapse_from_logs(ln_sigma, case(phys.cases.lapse_exponent), case(phys.ln_sigma11),
+                                   case(phys.lapse_change))
+
+
+def _turbofan(phys, idx, _tid, at, case):
+    terms = tuple(case(x) for x in at.terms[TURBOFAN])
+    return turbofan_lapse_from_terms(_seen_temperature(phys, idx, at, case), at.p[idx], case(phys.cases.throttle_ratio),
+                                     terms)
+
+
+def _table(phys, idx, tid, at, case):
+    j, ty = at.terms[TABLE]
+    return phys.cases.tables[tid].at(at.h[idx] / FT, (case(j), case(ty)))
+
+
+def _table_mach_terms(phys, m):
+    # Column index and weight per case, filled group by group.
+    j, ty = np.zeros(m.shape, dtype=np.intp), np.zeros(m.shape)
+    for code, tid, idx in phys.groups:
+        if code == TABLE:
+            j[idx], ty[idx] = phys.cases.tables[tid].mach_terms(m[idx])
+    return j, ty
+
+
+#: Thrust model code -> how it is evaluated (sources in :mod:`variantcmp.thrust`).
+THRUST_MODELS: dict[int, ThrustModel] = {
+    MODEL_CODES["density-lapse"]: ThrustModel(_density_lapse),
+    MODEL_CODES["turbofan"]: ThrustModel(_turbofan, lambda phys, m: turbofan_mach_terms(m),
+                                         lambda cs: turbofan_sea_level_fraction(cs.throttle_ratio)),
+    MODEL_CODES["table"]: ThrustModel(_table, _table_mach_terms),
+}
+
+
+class ClimbPhysics:
+    """Thrust, drag and residual climb rate of a set of cases (see the module docstring)."""
+
+    _DERIVED = ("w_n", "qs_per_pm2", "thrust_n", "m_crit0", "m_crit_slope", "lapse_change", "ln_sigma11", "flat_rated")
+
+    def __init__(self, cases: CaseSet):
+        self.cases = cases
+        self._groups()
+        self._derived()
+
+    def _groups(self):
+        # One group per thrust model (per table for table engines). Cases sorted by group make
+        # each group a slice: views instead of gathers and scatters.
+        key = group_key(self.cases)
+        self.groups = []
+        if key.size and np.all(key[1:] >= key[:-1]):
+            bounds = np.concatenate([[0], np.flatnonzero(key[1:] != key[:-1]) + 1, [key.size]])
+            for start, stop in zip(bounds[:-1], bounds[1:]):
+                k = int(key[start])
+                self.groups.append((k // GROUP_BASE, k % GROUP_BASE - 1, slice(int(start), int(stop))))
+            return
+        for k in np.unique(key):
+            idx = np.flatnonzero(key == k)
+            self.groups.append((int(k) // GROUP_BASE, int(k) % GROUP_BASE - 1, idx))
+
+    def subset(self, index) -> "ClimbPhysics":
+        """The physics of some of the cases (an index array or slice), derived values taken along."""
+        new = ClimbPhysics.__new__(ClimbPhysics)
+        new.cases = CaseView(self.cases, index)
+        new.groups = self._subset_groups(index)
+        if new.groups is None:
+            new._groups()
+        for name in self._DERIVED:
+            setattr(new, name, getattr(self, name)[index])
+        new.has_wave = self.has_wave
+        new._terms = None
+        # The parent's Mach terms, taken along when the subset is asked for the same speeds.
+        new._parent_terms = None if self._terms is None else (self._terms[1], index)
+        return new
+
+    def _subset_groups(self, index):
+        """The groups of a subset as slices, from this set's slices: where an ascending index
+        array (the solvers' flatnonzero) or a slice picks the cases. None where that does not hold."""
+        if not all(isinstance(g, slice) for _, _, g in self.groups):
+            return None
+        if isinstance(index, slice):
+            index = np.arange(len(self.cases))[index]
+        index = np.asarray(index)
+        if index.dtype == bool or (index.size > 1 and not np.all(index[1:] > index[:-1])):
+            return None
+        cuts = np.searchsorted(index, [g.start for _, _, g in self.groups] + [len(self.cases)])
+        return [(code, tid, slice(int(a), int(b))) for (code, tid, _), a, b in zip(self.groups, cuts[:-1], cuts[1:])
+                if b > a]
+
+    def _derived(self):
+        """Per-case constants of the climb equation, computed once per case set."""
+        cs = self.cases
+        self.w_n = cs.weight_kg * G0
+        self.qs_per_pm2 = 0.5 * GAMMA * cs.wing_area_m2  # q S = (gamma/2) p M^2 S
+        # The thrust the lapse fraction multiplies: static thrust, the hot-day factor, and 1 / the
+        # model's fraction at sea level, static, ISA (static thrust is the thrust there).
+        static = np.ones(len(cs))
+        for code, model in THRUST_MODELS.items():
+            if model.static_fraction is not None:
+                static = np.where(cs.model_code == code, model.static_fraction(cs), static)
+        self.thrust_n = cs.thrust_sls_n * hot_day_factor(cs.isa_dev_c, cs.flat_rate_isa_dev_c, cs.hot_day_loss_per_c)
+        self.thrust_n /= static
+        self.m_crit0, self.m_crit_slope = korn_coefficients(cs.thickness_ratio, cs.sweep_deg, cs.korn_factor)
+        self.has_wave = bool(np.isfinite(self.m_crit0).any())
+        # Density lapse above the tropopause: the exponent's change there, and ln(rho_11/rho0).
+        above = cs.lapse_exponent_above
+        self.lapse_change = np.where(np.isnan(above), 0.0, above - cs.lapse_exponent)
+        self.ln_sigma11 = np.log(cs.tropopause_density_kg_m3 / RHO0_KG_M3)
+        self.flat_rated = ~np.isnan(cs.flat_rate_isa_dev_c)
+        self._terms = self._parent_terms = None
+
+    def mach_terms(self, mach):
+        """Per-case constants that depend on the Mach only, cached for the Mach array in use.
+
+        A subset asked for its parent's speeds (the solvers narrow both alike) takes the parent's
+        terms: comparing the Mach arrays costs less than the square roots and powers."""
+        if self._terms is not None and self._terms[0] is mach:
+            return self._terms[1]
+        m = np.asarray(mach, dtype=float)
+        terms = None
+        if self._parent_terms is not None and m.ndim == 1 and self._parent_terms[0]["m"].ndim == 1:
+            parent, index = self._parent_terms
+            if np.array_equal(parent["m"][index], m):
+                terms = {k: tuple(x[index] for x in v) if isinstance(v, tuple) else v[index] for k, v in parent.items()}
+        if terms is None:
+            terms = {"m": m, "qs_per_p": self.qs_per_pm2 * m * m}
+            for code in {code for code, _, _ in self.groups}:
+                if THRUST_MODELS[code].mach_terms is not None:
+                    terms[code] = THRUST_MODELS[code].mach_terms(self, m)
+        self._terms = (mach, terms)
+        return terms
+
+    def thrust_fraction(self, at: Point):
+        """F / (F_SLS at rating) for every case, each engine model on its own group."""
+        # Gathers only: the solvers call this thousands of times on small sets, where numpy's
+        # per-call overhead (broadcasting included) costs more than the arithmetic.
+        out = np.empty(at.t.shape)
+        for code, tid, idx in self.groups:
+            frac = THRUST_MODELS[code].fraction(self, idx, tid, at, lambda a, idx=idx: at.col(a)[idx])
+            if len(self.groups) == 1:
+                return frac
+            out[idx] = frac
+        return out
+
+    def _thrust(self, at: Point):
+        thrust = self.thrust_fraction(at)
+        thrust *= at.col(self.thrust_n)
+        return thrust
+
+    def _drag(self, at: Point):
+        cs, col = self.cases, at.col
+        q_s = col(at.terms["qs_per_p"]) * at.p
+        cl = col(self.w_n) / q_s
+        cd = cl * cl
+        cd *= col(cs.k)
+        cd += col(cs.cd0)
+        if self.has_wave:
+            cd += lock_wave_drag(at.m, col(self.m_crit0) - col(self.m_crit_slope) * cl)
+        return q_s * cd
+
+    def available_thrust_n(self, altitude_m, mach=None):
+        """Thrust of all the case's engines (N) at constant Mach, after lapse and flat rating."""
+        return self._thrust(Point(self, altitude_m, mach))
+
+    def drag_n(self, altitude_m, mach=None):
+        """Drag (N) in level flight at 1 g: q S (CD0 + K CL^2 + CDw), CL = W / (q S) (Anderson,
+        *Aircraft Performance and Design*, eq. 2.47 polar; Korn/Lock wave drag, :mod:`variantcmp.aero`)."""
+        return self._drag(Point(self, altitude_m, mach))
+
+    def climb_rate_ms(self, altitude_m, mach=None):
+        """Residual rate of climb (m/s of pressure altitude) at constant Mach.
+
+        dh_p/dt = (F - D) V / W x (T_ISA / T) x f (total-energy equation, see
+        :func:`variantcmp.aero.energy_share_factor`). ``altitude_m`` is (N,) or (N, L).
+        """
+        at = Point(self, altitude_m, mach)
+        w = at.col(self.w_n)
+        excess_n = self.thrust_fraction(at)
+        excess_n *= at.col(self.thrust_n)
+        excess_n -= self._drag(at)
+        ratio = at.t_isa / at.t
+        rate = excess_n * (at.m * speed_of_sound_ms(at.t))
+        rate /= w
+        rate *= ratio
+        rate *= energy_share_factor(at.m, at.t, at.t_isa, at.lapse)
+        return rate
+
+    def excess(self, altitude_m, mach=None):
+        """Climb rate minus the case's required residual climb (m/s); >= 0: the case climbs."""
+        col = (lambda a: a[:, None]) if np.ndim(altitude_m) == 2 else (lambda a: a)
+        return self.climb_rate_ms(altitude_m, mach) - col(self.cases.climb_ms)
+
+    def excess_family(self, mach) -> "ExcessAtMach":
+        """The excess climb rate at fixed Mach as a function of altitude: a family for the root finders."""
+        return ExcessAtMach(self, np.asarray(mach, dtype=float))
+
+    def best_climb_mach(self, altitude_m, low=None, high=None):
+        """Speed in each case's range (or in [low, high]) with the largest excess climb rate at a
+        fixed altitude, and that excess (golden section: smooth and single-peaked in Mach at a
+        fixed altitude, except at a thrust table's Mach columns)."""
+        cs = self.cases
+        low, high = cs.mach_low if low is None else low, cs.mach_high if high is None else high
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            return golden_max(lambda m: nan_as_lowest(self.excess(altitude_m, m)), low, high, CLIMB_MACH_ITERATIONS)
+
+
+class ExcessAtMach:
+    """``f(h)``: the excess climb rate of each case at its Mach and altitude h (m); ``subset``."""
+
+    __slots__ = ("phys", "mach")
+
+    def __init__(self, phys: ClimbPhysics, mach):
+        self.phys, self.mach = phys, mach
+
+    def __call__(self, altitude_m):
+        return self.phys.excess(altitude_m, self.mach)
+
+    def subset(self, keep) -> "ExcessAtMach":
+        return ExcessAtMach(self.phys.subset(keep), self.mach[keep])
