@@ -347,8 +347,8 @@ def test_notes_never_print_infinities_or_altitudes_outside_the_model(tmp_path):
     from variantcmp.catalogue import CatalogueError
 
     with pytest.raises(CatalogueError, match="vmo_kt"):
-        write_catalogue(tmp_path / "bad.toml", [_engine()], [_variant(vmo_kt=1.0)])
-    cat = write_catalogue(tmp_path / "c.toml", [_engine()], [_variant(vmo_kt=80.0, mmo=0.85)])
+        write_catalogue(tmp_path / "bad.toml", [engine_spec()], [variant_spec(vmo_kt=1.0)])
+    cat = write_catalogue(tmp_path / "c.toml", [engine_spec()], [variant_spec(vmo_kt=80.0, mmo=0.85)])
     rows = ceilings_table(cat, Conditions(weights=_pct(60, 100), isa_devs_c=(0.0, 30.0), mach=0.84))
     notes = " ".join(rows["note"].to_list())
     assert "exceeds VMO" in notes

@@ -1,6 +1,5 @@
 """Exports: a stated precision, and a file written whole or not at all."""
 
-import os
 import signal
 import subprocess
 import sys
@@ -38,10 +37,10 @@ def test_an_interrupted_export_leaves_the_old_file(tmp_path, suffix):
     path = tmp_path / f"out{suffix}"
     write_table(pl.DataFrame({"a_ft": [1.0]}), path)
     before = path.read_bytes()
-    script = textwrap.dedent(f"""
+    script = textwrap.dedent("""
         import numpy as np, polars as pl, sys
         from variantcmp.export import write_table
-        frame = pl.DataFrame({{"a_ft": np.random.default_rng(1).random(30_000_000)}})
+        frame = pl.DataFrame({"a_ft": np.random.default_rng(1).random(30_000_000)})
         print("writing", flush=True)
         write_table(frame, sys.argv[1])
     """)
