@@ -94,6 +94,20 @@ class Point:
             self.t_isa = np.broadcast_to(self.t_isa, shape)
 
 
+class PressurePoint:
+    """Where level-flight drag is evaluated from the static pressure alone (at a fixed Mach it does
+    not depend on the temperature): pressure (Pa, per case or rows per case) and Mach per case."""
+
+    __slots__ = ("p", "col", "terms", "m")
+
+    def __init__(self, phys: "ClimbPhysics", pressure_pa, mach):
+        self.p = np.asarray(pressure_pa, dtype=float)
+        self.col = _column if self.p.ndim == 2 else _same
+        m = np.asarray(phys.cases.mach if mach is None else mach, dtype=float)
+        self.terms = {"qs_per_p": phys.qs_per_pm2 * m * m}
+        self.m = self.col(m)
+
+
 @dataclass(frozen=True)
 class ThrustModel:
     """How :class:`ClimbPhysics` evaluates one thrust model on its group of cases.
@@ -285,6 +299,11 @@ class ClimbPhysics:
         """Drag (N) in level flight at 1 g: q S (CD0 + K CL^2 + CDw), CL = W / (q S) (Anderson,
         *Aircraft Performance and Design*, eq. 2.47 polar; Korn/Lock wave drag, :mod:`variantcmp.aero`)."""
         return self._drag(Point(self, altitude_m, mach))
+
+    def drag_at_pressure_n(self, pressure_pa, mach=None):
+        """:meth:`drag_n` at a static pressure (Pa; per case, or rows per case) instead of an
+        altitude: no atmosphere is evaluated (the cruise solvers search in pressure)."""
+        return self._drag(PressurePoint(self, pressure_pa, mach))
 
     def climb_rate_ms(self, altitude_m, mach=None):
         """Residual rate of climb (m/s of pressure altitude) at constant Mach.
