@@ -297,3 +297,64 @@ def test_ceilings_at_the_cruise_level_conditions_reach_it(demo):
     # At the cruise level's own Mach and level, speed_table's maximum altitude says it is reached.
     one = speed_table(demo, dataclasses.replace(conditions, weights=_pct(70.0), isa_devs_c=(0.0,)), [35_000.0], None)
     assert one.filter(pl.col("max_altitude_ft") >= 35_000.0)["reaches_level"].all()
+
+
+# --- step climbs ---------------------------------------------------------------------------------
+
+def test_distance_at_a_level_is_the_constant_altitude_range_integral(clean):
+    # At a fixed level and Mach, no compressibility, b = 0: SR = r / (A + B W^2) with the range
+    # factor r = V / c, A = q S CD0 and B = K g^2 / (q S) (W in kg), so the still-air distance
+    # from W1 down to W2 is x = r / sqrt(A B) [atan(W1 sqrt(B/A)) - atan(W2 sqrt(B/A))] (a standard
+    # integral: the constant-altitude, constant-speed range of a parabolic polar, e.g. Eshelby,
+    # Aircraft Performance: Theory and Practice, 2000, ch. 6; from memory) and the time x / V.
+    from variantcmp.solver.fuel_flow import fuel_data
+    from variantcmp.solver.step_climb import Schedule, segment_integrals
+
+    v, e = clean.variants["a1"], clean.engines["flat"]
+    cases, _ = build_cases(clean, [("a1", "flat")], lambda _: [39_000.0], [0.0, 20.0], [300.0], 0.6, 1.3)
+    level = np.full((len(cases), 1), 37_000.0 * FT)
+    start, end = np.full((len(cases), 1), 39_000.0), np.full((len(cases), 1), 30_000.0)
+    plan = Schedule(level, start, end, np.ones(len(cases), dtype=np.int64), np.zeros(len(cases), dtype=np.int8))
+    distance, time = segment_integrals(cases, fuel_data(clean, cases), plan)
+    t_isa, p, _ = isa_state(37_000.0 * FT)
+    for i, dev in enumerate(cases.isa_dev_c):
+        t = t_isa + dev
+        speed = 0.6 * math.sqrt(1.4 * R * t)
+        r = speed / (e.tsfc_mg_per_ns * 1e-6 * math.sqrt(t / 288.15))
+        qs = 0.7 * p * 0.36 * v.wing_area_m2
+        a, b = qs * v.cd0, v.k * G * G / qs
+        x = r / math.sqrt(a * b) * (math.atan(39_000.0 * math.sqrt(b / a)) - math.atan(30_000.0 * math.sqrt(b / a)))
+        assert distance[i, 0] == pytest.approx(x, rel=1e-9)
+        assert time[i, 0] == pytest.approx(x / speed, rel=1e-9)
+
+
+def test_step_climb_schedule_steps_where_both_conditions_first_hold(demo):
+    # The rule: step up to the next level once it is within the maximum altitude at the
+    # climb criterion (as ceilings gives it) and gives a better specific range. At each step
+    # weight both hold (the round trip with ceilings); a little heavier (5 kg) one of them fails;
+    # segments join, weights fall, and the fuel adds up to the weight burnt.
+    from variantcmp.table.step_climb import step_climb_table
+
+    heavy, light = WeightSpec(100.0, "%mtow"), WeightSpec(62.0, "%mtow")
+    f = step_climb_table(demo, Conditions(isa_devs_c=(0.0, 20.0)), heavy, light, "2000")
+    steps = f.filter(pl.col("segment") > 1)
+    assert steps.height >= 5
+    for (vid, eid, dev), group in f.group_by(["variant", "engine", "isa_dev_c"], maintain_order=True):
+        mtow = demo.variants[vid].mtow_kg
+        w0, w1 = group["start_weight_kg"].to_numpy(), group["end_weight_kg"].to_numpy()
+        assert w0[0] == pytest.approx(mtow) and w1[-1] == pytest.approx(0.62 * mtow)
+        np.testing.assert_allclose(w0[1:], w1[:-1])
+        assert np.all(np.diff(w0) < 0)
+        assert group["fuel_kg"].sum() == pytest.approx(0.38 * mtow)
+        assert np.all(np.diff(group["flight_level"].to_numpy()) > 0)
+    for row in steps.iter_rows(named=True):
+        level_ft, w = row["flight_level"] * 100.0, row["start_weight_kg"]
+        at = ceilings_table(demo, Conditions(weights=_kg(w, w + 5.0), isa_devs_c=(row["isa_dev_c"],),
+                                             variants=(row["variant"],), engines=(row["engine"],)))
+        reach = at["max_altitude_ft"].to_numpy() >= level_ft - 0.05
+        sr = speed_table(demo, Conditions(weights=_kg(w, w + 5.0), isa_devs_c=(row["isa_dev_c"],),
+                                          variants=(row["variant"],), engines=(row["engine"],)),
+                         [level_ft - 2000.0, level_ft], None)["specific_range_nm_per_t"].to_numpy().reshape(2, 2)
+        better = sr[:, 1] > sr[:, 0]
+        assert reach[0] and better[0], row
+        assert not (reach[1] and better[1]), row

@@ -9,7 +9,7 @@ import tempfile
 from pathlib import Path
 
 #: Decimals kept in exports, by column name (first match wins): 0.01 ft, 0.1 kg, 0.01 deg C,
-#: 0.0001 Mach, never coarser. Anything else keeps 6 decimals.
+#: 0.0001 Mach, 0.1 kg/h, 0.01 NM and NM per 1,000 kg, never coarser. Anything else keeps 6 decimals.
 EXPORT_DECIMALS = (
     (re.compile(r"(^|_)mach($|_)"), 4),
     (re.compile(r"_ft$"), 2),
@@ -20,6 +20,7 @@ EXPORT_DECIMALS = (
     (re.compile(r"_kt$"), 2),
     (re.compile(r"_kg_h$"), 1),
     (re.compile(r"_nm$|_min$"), 2),
+    (re.compile(r"_nm_per_t$"), 2),
 )
 DEFAULT_DECIMALS = 6
 FORMATS = {".csv": "CSV", ".parquet": "Parquet", ".json": "JSON"}

@@ -7,8 +7,8 @@ level flown. Both conditions are thresholds in weight found once per level, for 
 level at once (the schedule is then a walk through them):
 
 - :func:`reach_weights`: per level, the heaviest weight at which it lies within the maximum
-  altitude (the maximum altitude falls as weight rises: a regula-falsi root of
-  max_altitude(W) - level, each evaluation one fixed-Mach ceilings solve of every case x level);
+  altitude (the maximum altitude falls as weight rises: a bisection on max_altitude(W) - level,
+  each evaluation one fixed-Mach ceilings solve of every case x level);
 - :func:`crossover_weights`: per pair of adjacent levels, the weight below which the upper one
   gives the better specific range (with D = A + B W^2 at each level, a single crossing);
 - :func:`schedule`: the walk from the starting level down to the final weight;
@@ -92,8 +92,8 @@ def reach_weights(cases: CaseSet, levels_m, light_kg, heavy_kg):
     maximum altitude (at the case's Mach and climb criterion): heavy where it does throughout, NaN
     where it does not even at the light weight. Shape (cases, levels).
 
-    Guarantees: the root to WEIGHT_TOL_KG, on the side where the level is within the maximum
-    altitude (as ``ceilings`` at that weight gives it)."""
+    Guarantees: the weight to WEIGHT_TOL_KG, on the side where the level is within the maximum
+    altitude (as ``ceilings`` at that weight gives it), by bisection."""
     n, k = len(cases), levels_m.size
     rows, level = np.repeat(np.arange(n), k), np.tile(levels_m, n)
     family = _Reach(cases, rows, level)
@@ -102,11 +102,14 @@ def reach_weights(cases: CaseSet, levels_m, light_kg, heavy_kg):
     out = np.where(at_heavy >= 0.0, heavy, np.nan)
     todo = np.flatnonzero((at_heavy < 0.0) & (at_light >= 0.0))
     if todo.size:
-        sub = family.subset(todo)
-        root = illinois_root(sub, light[todo], heavy[todo], at_light[todo], at_heavy[todo], WEIGHT_TOL_KG)
-        # The side where the level is reached: the regula falsi returns the end with the smaller |f|.
-        root = np.where(sub(root) >= 0.0, root, root - WEIGHT_TOL_KG)
-        out[todo] = root
+        # Bisection, not a secant method: the maximum altitude has kinks and flat stretches in
+        # weight (where a limit takes over; the certified ceiling binding below some weight).
+        sub, lo, hi = family.subset(todo), light[todo], heavy[todo]
+        for _ in range(int(np.ceil(np.log2(max(np.max(hi - lo), WEIGHT_TOL_KG) / WEIGHT_TOL_KG)))):
+            mid = 0.5 * (lo + hi)
+            reached = sub(mid) >= 0.0
+            lo, hi = np.where(reached, mid, lo), np.where(reached, hi, mid)
+        out[todo] = lo  # the side where the level is reached
     return out.reshape(n, k)
 
 
