@@ -9,12 +9,15 @@ def test_bench_small_run_agrees_with_scalar_reference(capsys):
     assert main(["bench", "--cases", "3000", "--best-cases", "200", "--scalar-cases", "150", "--format", "json"]) == 0
     figures = json.loads(capsys.readouterr().out)
     for key in ("cases", "seconds", "cases_per_s", "best_speed_cases_per_s", "scalar_cases_per_s", "speedup",
-                "max_abs_diff_ft", "grid_ms", "peak_rss_mb"):
+                "max_abs_diff_ft", "grid_ms", "peak_rss_mb", "cruise_cases_per_s", "mrc_cases_per_s"):
         assert key in figures
     assert figures["cases"] == 3000
     # Independent scalar method (floats, math, brentq): agreement within 1 ft is the target.
     assert figures["max_abs_diff_ft"] is not None and figures["max_abs_diff_ft"] < 1.0
     assert figures["scalar_mismatched_cases"] == 0
+    # The cruise workloads run on --cases cases and find answers for most of them.
+    assert figures["cruise_cases"] == figures["mrc_cases"] == 3000
+    assert figures["cruise_found_share"] > 0.9 and figures["mrc_found_share"] > 0.5
 
 
 def test_bench_table_output(capsys):

@@ -85,6 +85,9 @@ def _layer_index(altitude_m):
 def isa_temperature_k(altitude_m):
     """ISA temperature (K) at a geopotential pressure altitude (m). Source: ISO 2533, table layers."""
     h = np.asarray(altitude_m, dtype=float)
+    if h.size and np.max(h) < LAYER_BASE_M[2]:
+        # Below 20 km (as in isa_state): the same bits without the layer search.
+        return np.maximum(T0_K + LAYER_LAPSE_K_PER_M[0] * h, LAYER_BASE_T_K[1])
     i = _layer_index(h)
     return LAYER_BASE_T_K[i] + LAYER_LAPSE_K_PER_M[i] * (h - LAYER_BASE_M[i])
 

@@ -1,4 +1,5 @@
-"""Benchmark: the vectorised ceiling solver on a synthetic fleet grid, against a scalar loop.
+"""Benchmark: the vectorised ceiling solver on a synthetic fleet grid, against a scalar loop; and
+the cruise solvers (optimum altitude at a fixed Mach, MRC and LRC at a level) on the same fleet.
 
 The synthetic fleet is invented and seeded (reproducible): variants with and without
 compressibility and buffet data, engines of every thrust model. The scalar reference is written
@@ -20,6 +21,9 @@ from .catalogue import Catalogue, Engine, Variant, demo_catalogue_path, load_cat
 from .atmosphere import P0_PA, isa_pressure_pa
 from .cases import FPM, FT, build_cases
 from .solver import solve_ceilings
+from .solver.cruise import optimum_altitude as cruise_optimum_altitude
+from .solver.cruise_speed import cruise_speeds
+from .solver.fuel_flow import CruisePhysics
 from .table import Conditions, ceilings_table
 from .units import WeightSpec
 
@@ -29,20 +33,25 @@ _TABLE_MACH = (0.0, 0.3, 0.5, 0.7, 0.9)
 
 
 def synthetic_fleet(seed: int = SEED) -> Catalogue:
-    """An invented fleet: 6 variants x 3 engine options, every thrust model, mixed data."""
+    """An invented fleet: 6 variants x 3 engine options, every thrust model, mixed data, and fuel
+data of every jet kind (the TSFC formula, a TSFC table)."""
     rng = np.random.default_rng(seed)
     # Table engine: total-pressure ratio with a Mach loss (invented shape, turbofan-like).
     fraction = tuple(tuple(float(max(isa_pressure_pa(a * FT) / P0_PA * (1 + 0.2 * m * m) ** 3.5
                                      * (1.0 - 0.49 * math.sqrt(m)), 0.02)) for m in _TABLE_MACH)
                      for a in _TABLE_ALT_FT)
+    # Invented TSFC table at ISA, mg/(N s): rising with Mach, falling a little with altitude.
+    tsfc = tuple(tuple(round(11.5 + 8.0 * m - 0.02 * a / 1000.0, 3) for m in _TABLE_MACH) for a in _TABLE_ALT_FT)
     engines = {
         "syn-dl": Engine("syn-dl", "synthetic density lapse", "density-lapse", 70.0, 0.95,
                          flat_rate_isa_dev_c=15.0, hot_day_loss_per_c=0.008, lapse_exponent=1.1,
-                         lapse_exponent_above_tropopause=1.0),
-        "syn-tf": Engine("syn-tf", "synthetic turbofan", "turbofan", 80.0, 0.93, throttle_ratio=1.05),
+                         lapse_exponent_above_tropopause=1.0, tsfc_mg_per_ns=10.5, tsfc_mach_slope=9.0),
+        "syn-tf": Engine("syn-tf", "synthetic turbofan", "turbofan", 80.0, 0.93, throttle_ratio=1.05,
+                         tsfc_mg_per_ns=9.6, tsfc_mach_slope=10.8),
         "syn-tb": Engine("syn-tb", "synthetic table", "table", 75.0, 0.95, flat_rate_isa_dev_c=15.0,
                          hot_day_loss_per_c=0.007, table_altitude_ft=_TABLE_ALT_FT, table_mach=_TABLE_MACH,
-                         table_thrust_fraction=fraction),
+                         table_thrust_fraction=fraction, tsfc_table_altitude_ft=_TABLE_ALT_FT,
+                         tsfc_table_mach=_TABLE_MACH, tsfc_table_mg_per_ns=tsfc),
     }
     variants = {}
     for i in range(6):
@@ -199,8 +208,39 @@ def _peak_rss_mb(who=resource.RUSAGE_SELF) -> float:
     return resource.getrusage(who).ru_maxrss / 1024.0  # KiB on Linux
 
 
-def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases: int = 100_000) -> dict:
-    """Time the four workloads and compare vectorised with scalar answers; returns the figures."""
+CRUISE_CASES = 500_000  # the cruise workloads' default (at most --cases)
+MRC_LEVELS_FT = np.arange(29_000.0, 39_001.0, 2_000.0)  # the MRC workload's levels, one per case (seeded)
+
+
+def run_cruise_benchmark(cat: Catalogue, cases: int) -> dict:
+    """Time the optimum altitude at each case's cruise Mach, and MRC with LRC at a level per case
+    (FL290-FL390, seeded), on the synthetic fleet."""
+    fixed = synthetic_cases(cat, cases)
+    warm = synthetic_cases(cat, 2_000)
+    cruise_optimum_altitude(CruisePhysics.of(cat, warm), warm.mach)  # warm-up
+    cruise = CruisePhysics.of(cat, fixed)
+    t0 = time.perf_counter()
+    optimum_m, _, _ = cruise_optimum_altitude(cruise, fixed.mach)
+    optimum_s = time.perf_counter() - t0
+    levels = np.random.default_rng(SEED + 3).choice(MRC_LEVELS_FT, size=len(fixed)) * FT
+    t0 = time.perf_counter()
+    speeds = cruise_speeds(cruise, levels)
+    mrc_s = time.perf_counter() - t0
+    return {
+        "cruise_cases": len(fixed),
+        "cruise_seconds": optimum_s,
+        "cruise_cases_per_s": len(fixed) / optimum_s,
+        "cruise_found_share": float(np.mean(np.isfinite(optimum_m))),
+        "mrc_cases": len(fixed),
+        "mrc_seconds": mrc_s,
+        "mrc_cases_per_s": len(fixed) / mrc_s,
+        "mrc_found_share": float(np.mean(np.isfinite(speeds.mrc_mach))),
+    }
+
+
+def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases: int = 100_000,
+                  cruise_cases: int | None = None) -> dict:
+    """Time the workloads and compare vectorised with scalar answers; returns the figures."""
     cat = synthetic_fleet()
     solve_ceilings(synthetic_cases(cat, 2_000))  # warm-up: imports, first allocations
 
@@ -241,7 +281,9 @@ def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases:
 
     fixed_rate = cases / fixed_s
     scalar_rate = len(pick) / scalar_s
+    cruise = run_cruise_benchmark(cat, min(cases, CRUISE_CASES) if cruise_cases is None else cruise_cases)
     return {
+        **cruise,
         "cases": cases,
         "seconds": fixed_s,
         "cases_per_s": fixed_rate,

@@ -1,4 +1,4 @@
-"""``variantcmp bench``: time the ceiling solver (presentation of :mod:`variantcmp.bench` figures)."""
+"""``variantcmp bench``: time the ceiling and cruise solvers (presentation of :mod:`variantcmp.bench` figures)."""
 
 from __future__ import annotations
 
@@ -22,16 +22,20 @@ def _positive_int(text: str) -> int:
 
 def add(subparsers) -> None:
     p = options.add_command(
-        subparsers, "bench", help="time the ceiling solver on a synthetic fleet grid",
+        subparsers, "bench", help="time the ceiling and cruise solvers on a synthetic fleet grid",
         description="Time the vectorised ceiling solver on a seeded synthetic fleet: fixed-Mach and best-speed "
                     "maximum altitudes, a scalar one-case-at-a-time reference on a subsample (also a "
-                    "correctness check), and the demo fleet's interactive grid.")
+                    "correctness check), the demo fleet's interactive grid, and the cruise solvers (optimum "
+                    "altitude at a fixed Mach, MRC and LRC at a level).")
     p.add_argument("--cases", action=options.Once, type=_positive_int, default=1_000_000,
                    help="fixed-Mach cases (default 1,000,000)")
     p.add_argument("--best-cases", action=options.Once, type=_positive_int, default=100_000,
                    help="best-speed cases (default 100,000)")
     p.add_argument("--scalar-cases", action=options.Once, type=_positive_int, default=2_000,
                    help="cases solved one by one by the scalar reference (default 2,000)")
+    p.add_argument("--cruise-cases", action=options.Once, type=_positive_int, default=None,
+                   help="cases of the cruise workloads: optimum altitude, MRC and LRC (default: --cases, "
+                        "at most 500,000)")
     options.add_format(p, ("table", "json"), "table", "table (default) or json (the figures as one object)")
     p.set_defaults(run=run)
 
@@ -39,7 +43,7 @@ def add(subparsers) -> None:
 def run(args) -> int:
     from variantcmp.bench import run_benchmark
 
-    f = run_benchmark(args.cases, args.scalar_cases, args.best_cases)
+    f = run_benchmark(args.cases, args.scalar_cases, args.best_cases, args.cruise_cases)
     if args.format == "json":
         sys.stdout.write(json.dumps(f) + "\n")
         return options.EXIT_OK
@@ -50,6 +54,8 @@ def run(args) -> int:
          f["scalar_cases"] / f["scalar_cases_per_s"], f["scalar_cases_per_s"]),
         ("demo fleet interactive grid (9 weights x 7 days x 3 climbs)", f["grid_cases"], f["grid_ms"] / 1000,
          f["grid_cases"] / f["grid_ms"] * 1000),
+        ("cruise: optimum altitude at the cruise Mach", f["cruise_cases"], f["cruise_seconds"], f["cruise_cases_per_s"]),
+        ("cruise: MRC and LRC at a level (FL290-FL390)", f["mrc_cases"], f["mrc_seconds"], f["mrc_cases_per_s"]),
     ]
     columns = [Column("work", "Workload", "left"), Column("cases", "Cases"), Column("s", "Seconds"),
                Column("rate", "Cases/s")]

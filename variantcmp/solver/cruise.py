@@ -24,7 +24,7 @@ import numpy as np
 from ..atmosphere import G0, GAMMA, isa_pressure_pa, pressure_altitude_m
 from ..cases import FT
 from .finders import golden_max, nan_as_lowest
-from .fuel_flow import NO_FUEL, CruisePhysics
+from .fuel_flow import NO_FUEL, CruisePhysics, in_chunks
 
 # Flags (bit mask) of the cruise answers.
 NO_FUEL_DATA = 1  # the engine has no fuel data
@@ -85,6 +85,11 @@ def closed_form_optimum_pressure_pa(cases, mach):
 
 
 def optimum_altitude(cruise: CruisePhysics, mach):
+    """In chunks (:func:`~variantcmp.solver.fuel_flow.in_chunks`) of :func:`optimum_altitude_of`."""
+    return in_chunks(optimum_altitude_of, cruise, np.broadcast_to(np.asarray(mach, dtype=float), (len(cruise),)))
+
+
+def optimum_altitude_of(cruise: CruisePhysics, mach):
     """The pressure altitude (m) of maximum specific range at each case's Mach, unconstrained by
     the ceilings, the specific range there (m/kg) and flags.
 

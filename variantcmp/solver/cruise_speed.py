@@ -28,7 +28,7 @@ from ..airspeed import cas_to_mach
 from ..atmosphere import G0, GAMMA, isa_pressure_pa
 from .cruise import CANNOT_HOLD_LEVEL, FUEL_DATA_MACH, NO_FUEL_DATA, NO_SPEED, NO_SPEED_IN_BUFFET_MARGIN
 from .finders import bisect_root, golden_max, illinois_root, nan_as_lowest
-from .fuel_flow import NO_FUEL, CruisePhysics
+from .fuel_flow import NO_FUEL, CruisePhysics, in_chunks
 from .limits import buffet_cl_at, buffet_peak_mach
 
 #: Long-range cruise: the faster Mach at 99 % of the maximum specific range (common practice, no
@@ -38,10 +38,11 @@ LRC_SHARE = 0.99
 SPEED_LIMITS = ("speed range", "stall", "buffet", "MMO", "VMO", "fuel data", "thrust")
 RANGE, STALL, BUFFET, MMO, VMO, FUEL, THRUST = range(len(SPEED_LIMITS))
 MRC_SCAN = 9  # Machs scanned over the range before the golden section
-MRC_STEPS = 28  # golden-section steps: two scan steps x 0.618^28, about 1e-7 in Mach
-BISECT_STEPS = 40  # bisection on a Mach range: 1e-12
+MRC_STEPS = 20  # golden-section steps: two scan steps (at most 0.125) x 0.618^20, about 8e-6 in Mach
+BISECT_STEPS = 22  # bisection on a Mach range of at most 1: 2.4e-7
+THRUST_PEAK_STEPS = 12  # golden section for a speed inside the thrust band (only needs to be inside)
 LRC_TOL = 1e-8  # Mach
-AT_BOUND = 1e-6  # an answer this close (Mach) to an end of the range is held there
+AT_BOUND = 1e-12  # an answer on an end of the range (Mach) is held there
 
 
 @dataclass
@@ -123,25 +124,27 @@ def max_range_mach(cruise: CruisePhysics, pressure_pa, altitude_m, low, high):
     """MRC per case: the Mach in [low, high] of maximum specific range at the level, and that
     specific range (m/kg).
 
-    Guarantees: the best of MRC_SCAN evenly spaced Machs refined by golden section to about 1e-7
+    Guarantees: the best of MRC_SCAN evenly spaced Machs refined by golden section to about 1e-5
     (a single-peaked specific range's maximum; a kinked one, from a TSFC table, its best local
-    peak near the best scan point).
+    peak near the best scan point); an end of the range exactly where specific range is best there.
     """
     n = len(cruise)
-    frac = np.linspace(0.0, 1.0, MRC_SCAN)
-    grid = low[:, None] + (high - low)[:, None] * frac[None, :]
-    rep = np.repeat(np.arange(n), MRC_SCAN)
-    wide = cruise.subset(rep)
-    values = nan_as_lowest(wide.specific_range_m_per_kg(pressure_pa[rep], grid.ravel(), altitude_m[rep]))
-    values = values.reshape(n, MRC_SCAN)
-    best = np.argmax(values, axis=1)
-    rows = np.arange(n)
-    a, b = grid[rows, np.maximum(best - 1, 0)], grid[rows, np.minimum(best + 1, MRC_SCAN - 1)]
 
     def sr(m):
         return nan_as_lowest(cruise.specific_range_m_per_kg(pressure_pa, m, altitude_m))
 
-    return golden_max(sr, a, b, MRC_STEPS)
+    frac = np.linspace(0.0, 1.0, MRC_SCAN)
+    grid = low[:, None] + (high - low)[:, None] * frac[None, :]
+    values = np.stack([sr(grid[:, j]) for j in range(MRC_SCAN)], axis=1)  # a Mach per call: no gathers
+    best = np.argmax(values, axis=1)
+    rows = np.arange(n)
+    a, b = grid[rows, np.maximum(best - 1, 0)], grid[rows, np.minimum(best + 1, MRC_SCAN - 1)]
+    mach, value = golden_max(sr, a, b, MRC_STEPS)
+    # A maximum on an end of the range: the end itself (the scan evaluated it), not a point near it.
+    for end in (0, MRC_SCAN - 1):
+        on_end = values[:, end] >= value
+        mach, value = np.where(on_end, grid[:, end], mach), np.where(on_end, values[:, end], value)
+    return mach, value
 
 
 class _RangeAbove:
@@ -193,7 +196,7 @@ def thrust_band(cruise: CruisePhysics, pressure_pa, altitude_m, low, high):
     def margin(m):
         return thrust_margin_n(cruise, pressure_pa, altitude_m, m)
 
-    peak, best = golden_max(margin, low, high, MRC_STEPS)
+    peak, best = golden_max(margin, low, high, THRUST_PEAK_STEPS)
     holds = best >= 0.0
     lo = np.where(margin(low) >= 0.0, low, bisect_root(margin, low, peak, True, BISECT_STEPS))
     hi = np.where(margin(high) >= 0.0, high, bisect_root(margin, peak, high, False, BISECT_STEPS))
@@ -207,9 +210,14 @@ def _speeds_within(cruise, p, h, low, high):
 
 
 def cruise_speeds(cruise: CruisePhysics, altitude_m) -> CruiseSpeeds:
-    """MRC and LRC at a pressure altitude (m) per case: the stages of the module docstring."""
+    """MRC and LRC at a pressure altitude (m) per case: the stages of the module docstring, in
+    chunks (:func:`~variantcmp.solver.fuel_flow.in_chunks`)."""
+    return in_chunks(_cruise_speeds, cruise, np.broadcast_to(np.asarray(altitude_m, dtype=float), (len(cruise),)))
+
+
+def _cruise_speeds(cruise: CruisePhysics, altitude_m) -> CruiseSpeeds:
     n = len(cruise)
-    h = np.broadcast_to(np.asarray(altitude_m, dtype=float), (n,)).copy()
+    h = np.array(altitude_m, dtype=float)
     p = isa_pressure_pa(h)
     low, high, low_code, high_code, flags = speed_bounds(cruise, p)
     out = CruiseSpeeds(*(np.full(n, np.nan) for _ in range(6)), np.full(n, -1), np.full(n, -1), flags)
