@@ -21,8 +21,8 @@ def tsfc_kg_per_ns(mach, temperature_k, tsfc_mg_per_ns, tsfc_mach_slope=0.0):
     """Thrust-specific fuel consumption c = (a + b M) sqrt(theta), theta = T / 288.15 K the static
     temperature ratio, in kg/(N s) from a and b in mg/(N s) (1 (lb/h)/lbf = 28.33 mg/(N s)).
 
-    Source: the installed-TSFC form of Mattingly, Heiser & Pratt, *Aircraft Engine Design*, 2nd ed.,
-    AIAA 2002, ch. 3 (mission analysis), which gives a and b per engine type in 1/h (from memory).
+    Source: the installed-TSFC form of Mattingly et al., *Aircraft Engine Design*, 2nd ed., AIAA
+    2002, ch. 3 (mission analysis), which gives a and b per engine type in 1/h (from memory).
     """
     a = np.asarray(tsfc_mg_per_ns, dtype=float)
     b = np.asarray(tsfc_mach_slope, dtype=float)
