@@ -123,6 +123,18 @@ async def _shoot(size: tuple[int, int], out: Path, written: list[Path]) -> None:
         await pilot.press("escape", "M")  # back to the compare screen, marks cleared
         await settle(app, pilot)
 
+        # Cruise levels at 90 % MTOW, best specific range first, the drawing of the third row.
+        await type_into(pilot, "#field-weight", "90%mtow")
+        await settle(app, pilot)
+        await pilot.press("f")
+        await settle(app, pilot)
+        await pilot.press("s", "down", "down")
+        await settle(app, pilot)
+        save(app, "cruise")
+        await pilot.press("escape")
+        await type_into(pilot, "#field-weight", "100%mtow")
+        await settle(app, pilot)
+
         # Hot-day look-up.
         await pilot.press("h")
         await settle(app, pilot)

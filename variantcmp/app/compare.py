@@ -47,6 +47,8 @@ class CompareScreen(HoldsKeys, Screen):
                 tooltip="compare with the baseline at the same %MTOW or at the same kg, in turn"),
         Binding("i", "inspect", "Inspect", show=False),  # enter on a row does it too
         Binding("h", "hot_day", "Hot day"),
+        Binding("f", "cruise", "Cruise", tooltip="cruise levels: optimum and maximum altitude, the level of a "
+                "scheme, fuel flow and specific range, with a drawing"),
         Binding("m", "mark", "Mark", tooltip=f"mark or unmark the row for the envelope overlay, up to {MAX_MARKED}"),
         Binding("M", "clear_marks", "Clear marks", show=False, tooltip="unmark every row"),
         Binding("v", "envelope", "Envelope", group=_DRAW,
@@ -378,6 +380,9 @@ class CompareScreen(HoldsKeys, Screen):
 
     def action_hot_day(self) -> None:
         self.app.switch_mode("hotday")
+
+    def action_cruise(self) -> None:
+        self.app.switch_mode("cruise")
 
     def action_export(self) -> None:
         if self.view_df is not None:

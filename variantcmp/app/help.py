@@ -101,6 +101,7 @@ def _keys_table(title: str, rows: list[tuple[str, str]]) -> Table:
 
 def help_renderable() -> Group:
     from .compare import CompareScreen
+    from .cruise_screen import CruiseScreen
     from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
     from .envelope_screen import EnvelopeScreen
     from .hotday import HotDayScreen
@@ -111,7 +112,8 @@ def help_renderable() -> Group:
     parts = [Text(CAUTION, style="bold"), Text("")]
     for title, cls in (
         ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
-        ("Hot-day check", HotDayScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
+        ("Hot-day check", HotDayScreen), ("Cruise levels", CruiseScreen), ("Envelope view", EnvelopeScreen),
+        ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),
         ("Export dialog", ExportDialog), ("Overwrite?", ConfirmDialog),

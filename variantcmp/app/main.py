@@ -18,6 +18,7 @@ from variantcmp.catalogue import Catalogue, CatalogueError, Problem, demo_catalo
 from variantcmp.sketch import terminal_wants_ascii
 
 from .compare import CompareScreen
+from .cruise_screen import CruiseScreen
 from .dialogs import ExportDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
 from .help import APP_BINDINGS, HelpScreen, key_commands
@@ -44,7 +45,8 @@ class VariantCmpApp(KeyHold, App[int]):
     # ctrl+p: every key of the screen on show (and of the app), found by name and run (help.key_commands).
     ENABLE_COMMAND_PALETTE = True
     # Top-level views, each keeping its own state while the user switches between them.
-    MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen}
+    MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen,
+             "cruise": CruiseScreen}
     DEFAULT_MODE = "compare"
     compact_rows = var(False)  # a short terminal: one-line caution (widgets.CautionBanner)
     BINDINGS = APP_BINDINGS

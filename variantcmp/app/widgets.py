@@ -131,7 +131,9 @@ class FittingFooter(Footer):
 
     def _fit(self) -> None:
         palette = [child for child in self.children if child.has_class("-command-palette")]
-        right = self.region.right - sum(child.outer_size.width for child in palette)
+        # Keys end where the palette's key begins (it is docked right, with the footer's own edge
+        # after it: the footer's width less the palette's overstates the room by that edge).
+        right = min((child.region.x for child in palette), default=self.region.right)
         keys = [child for child in self.children if child not in palette]
         first_out = next((i for i, child in enumerate(keys) if child.region.right > right), len(keys))
         if 0 < first_out < len(keys) and isinstance(keys[first_out], Label):

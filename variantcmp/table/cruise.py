@@ -4,6 +4,8 @@ users read (ft, FL, kg/h, NM per 1,000 kg), nulls where the model gives no value
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 import polars as pl
 
@@ -108,6 +110,48 @@ def cruise_table(catalogue, conditions: Conditions, scheme: str = cr.DEFAULT_SCH
     Mach (each variant's cruise Mach or a number): the optimum altitude (unconstrained), the
     maximum altitude at the climb criterion (as ``ceilings``), the level of ``scheme`` at or below it
     with the best specific range, and fuel flow and specific range there."""
+    return _cruise_answers(catalogue, conditions, scheme)[0]
+
+
+@dataclass(frozen=True)
+class CruiseView:
+    """The cruise table and, per row, specific range against altitude at the row's Mach: a long
+    table (``row``: the row's position, ``altitude_ft``, ``specific_range_nm_per_t``), over the
+    altitudes from 8,000 ft below the lowest of the optimum, maximum and cruise altitudes to
+    2,000 ft above the highest."""
+
+    frame: pl.DataFrame
+    profiles: pl.DataFrame
+    scheme: str
+
+
+PROFILE_POINTS = 80
+PROFILE_BELOW_FT, PROFILE_ABOVE_FT = 8_000.0, 2_000.0
+
+
+def cruise_view(catalogue, conditions: Conditions, scheme: str = cr.DEFAULT_SCHEME,
+                points: int = PROFILE_POINTS) -> CruiseView:
+    """:func:`cruise_table` with each row's specific range against altitude (for the app's view)."""
+    frame, cases, cruise, optimum_m, max_m, level_m = _cruise_answers(catalogue, conditions, scheme)
+    stack = np.stack([optimum_m, max_m, level_m])
+    with np.errstate(invalid="ignore"):
+        low = np.nanmin(np.where(np.isfinite(stack), stack, np.nan), axis=0) - PROFILE_BELOW_FT * FT
+        high = np.nanmax(np.where(np.isfinite(stack), stack, np.nan), axis=0) + PROFILE_ABOVE_FT * FT
+    known = np.isfinite(low) & np.isfinite(high)
+    low, high = np.where(known, np.maximum(low, 0.0), 0.0), np.where(known, high, 45_000.0 * FT)
+    grid = low[:, None] + (high - low)[:, None] * np.linspace(0.0, 1.0, points)[None, :]
+    with np.errstate(invalid="ignore"):
+        sr = cruise.specific_range_m_per_kg(isa_pressure_pa(grid), cases.mach, grid)
+    profiles = pl.DataFrame({
+        "row": np.repeat(np.arange(len(cases)), points),
+        "altitude_ft": (grid / FT).ravel(),
+        "specific_range_nm_per_t": nm_per_t(sr).ravel(),
+    }, nan_to_null=True)
+    return CruiseView(frame, profiles, scheme)
+
+
+def _cruise_answers(catalogue, conditions: Conditions, scheme: str):
+    """The cruise table, and the cases, physics and altitudes (m) behind it."""
     fixed_mach_only(conditions)
     cases, index, res = solve(catalogue, conditions)
     shared = _case_frame(catalogue, cases, index, res)
@@ -145,7 +189,7 @@ def cruise_table(catalogue, conditions: Conditions, scheme: str = cr.DEFAULT_SCH
         "weight_pct_mtow": shared["weight_pct_mtow"],
         "below_empty_weight": shared["below_empty_weight"],
     }, nan_to_null=True).with_columns(pl.col("cruise_fl").cast(pl.Int64))
-    return frame.select(CRUISE_COLUMNS)
+    return frame.select(CRUISE_COLUMNS), cases, cruise, optimum_m, res.max_altitude_m, level_m
 
 
 def speed_table(catalogue, conditions: Conditions, levels_ft, speed) -> pl.DataFrame:
