@@ -358,3 +358,59 @@ def test_step_climb_schedule_steps_where_both_conditions_first_hold(demo):
         better = sr[:, 1] > sr[:, 0]
         assert reach[0] and better[0], row
         assert not (reach[1] and better[1]), row
+
+
+# --- the propeller engines' fuel path --------------------------------------------------------------
+
+def _with_psfc(cases, psfc_kg_per_kwh=0.28, efficiency=0.85):
+    """The cases' physics with a turboprop's fuel data: PSFC c = c0 sqrt(theta), constant eta."""
+    from variantcmp.solver.fuel_flow import PSFC, FuelData
+    from variantcmp.solver.physics import ClimbPhysics
+    from variantcmp.thrust import PropellerEfficiency
+
+    n = len(cases)
+    fuel = FuelData(np.full(n, PSFC), np.full(n, np.nan), np.full(n, np.nan), np.full(n, psfc_kg_per_kwh),
+                    np.zeros(n, dtype=np.int64), [], [PropellerEfficiency(efficiency)])
+    return CruisePhysics(ClimbPhysics(cases), fuel)
+
+
+def test_propeller_optimum_altitude_closed_forms(clean):
+    # With PSFC c = c0 sqrt(theta) and a constant propeller efficiency, SR = eta / (c0 sqrt(T/T0) D).
+    # At a fixed Mach D = A p + B / p (parabolic polar, q = 0.7 p M^2), so d ln SR / d ln p = 0 gives
+    # (1 - x) / (1 + x) = -n/2, x = K CL^2 / CD0 and n = d ln T / d ln p: n = R L / g = 0.190263
+    # in the troposphere at ISA (ISO 2533: T = T0 (p/p0)^(R L/g)), so CL = sqrt(x CD0/K) with
+    # x = (1 + n/2) / (1 - n/2); n = 0 in the isothermal layer on any day, so CL = sqrt(CD0/K)
+    # there (derivation from Anderson, Aircraft Performance and Design, 1999, sec. 5.13's range
+    # equation for propeller aircraft). Unlike a jet's, the optimum moves with the ISA deviation
+    # in the troposphere (n is R L T_ISA / (g T) there).
+    v = clean.variants["a1"]
+    n_trop = R * 0.0065 / G
+    x = (1 + n_trop / 2) / (1 - n_trop / 2)
+    for mach, weights, cl, layer, devs in (
+            (0.40, [30_000.0, 38_000.0], math.sqrt(x * v.cd0 / v.k), (0.0, 11_000.0), [0.0]),
+            (0.70, [26_000.0, 34_000.0], math.sqrt(v.cd0 / v.k), (11_000.0, 20_000.0), [-10.0, 20.0])):
+        cases, _ = _cruise(clean, weights, devs, mach, pairs=[("a1", "flat")])
+        optimum_m, _, flags = cr.optimum_altitude(_with_psfc(cases), cases.mach)
+        expected = Atmosphere.from_pressure(cases.weight_kg * G / (0.7 * mach**2 * v.wing_area_m2 * cl)).H
+        assert np.all((expected > layer[0]) & (expected < layer[1]))  # the closed form's layer
+        assert not flags.any()
+        np.testing.assert_allclose(optimum_m, expected, atol=25.0 * FT)
+
+
+def test_propeller_mrc_is_at_the_best_lift_to_drag_ratio(clean):
+    # The classic propeller range result (Anderson, Aircraft Performance and Design, 1999, sec.
+    # 5.13): with constant eta and PSFC, at a fixed altitude SR = eta / (c D) is greatest at minimum
+    # drag, CL = sqrt(CD0/K); M = sqrt(W / (0.7 p S CL)). And the fuel flow by hand: c D V / eta.
+    v = clean.variants["a1"]
+    cases, _ = _cruise(clean, [28_000.0, 36_000.0], [0.0], 0.5, pairs=[("a1", "flat")])
+    cruise = _with_psfc(cases)
+    h = np.full(len(cases), 25_000.0 * FT)
+    speeds = cruise_speeds(cruise, h)
+    t_isa, p, _ = isa_state(25_000.0 * FT)
+    expected = np.sqrt(cases.weight_kg * G / (0.7 * p * v.wing_area_m2 * math.sqrt(v.cd0 / v.k)))
+    np.testing.assert_allclose(speeds.mrc_mach, expected, atol=0.002)
+    flow = cruise.fuel_flow_kg_s(np.full(len(cases), p), speeds.mrc_mach, h)
+    drag = cruise.phys.drag_n(h, speeds.mrc_mach)
+    speed = speeds.mrc_mach * math.sqrt(1.4 * R * t_isa)
+    c = 0.28 / 3.6e6 * math.sqrt(t_isa / 288.15)
+    np.testing.assert_allclose(flow, c * drag * speed / 0.85, rtol=1e-12)

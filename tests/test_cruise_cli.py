@@ -1,26 +1,15 @@
 """``variantcmp cruise`` as a user runs it: the three answers, their columns, errors and exit codes."""
 
-import io
 import subprocess
 import sys
 
 import polars as pl
 import pytest
 
+from test_cli import read_csv, run
 from variantcmp.caution import CAUTION
-from variantcmp.cli import main
 from variantcmp.table.cruise import CRUISE_COLUMNS, SPEED_COLUMNS
 from variantcmp.table.step_climb import STEP_COLUMNS
-
-
-def run(capsys, *argv):
-    status = main(list(argv))
-    out, err = capsys.readouterr()
-    return status, out, err
-
-
-def read_csv(text):
-    return pl.read_csv(io.StringIO(text), infer_schema_length=None)
 
 
 def test_cruise_csv_has_the_issue_columns_and_one_row_per_case(capsys, demo):

@@ -18,8 +18,8 @@ from .keys import HoldsKeys, focus_now
 from .results import Results, export_frame
 from .view import (
     BASE_ROW, BASELINE_MARK, BELOW_EMPTY_MARK, COLUMNS_BY_KEY, IS_BASE, MAX_MARKED, NONE, OVER_MTOW_MARK, ROW_KEY,
-    Baseline, Column, default_match, filter_rows, header, justify, mark_sign, row_cells, sort_rows, visible_columns,
-    with_baseline,
+    Baseline, Column, default_match, filter_rows, header, justify, mark_sign, row_cells, sort_rows, stepped,
+    visible_columns, with_baseline,
 )
 from .widgets import CautionBanner, FittingFooter, TextEntry
 
@@ -305,8 +305,7 @@ class CompareScreen(HoldsKeys, Screen):
         cycle: list[str | None] = [c.key for c in visible_columns(results.df)]
         start = cycle.index("fl")
         cycle = cycle[start:] + cycle[:start] + [None]  # ends with catalogue order
-        position = cycle.index(self.sort_key) if self.sort_key in cycle else len(cycle) - 1
-        self.sort_key = cycle[(position + step) % len(cycle)]
+        self.sort_key = stepped(cycle, self.sort_key, step)
         self.descending = bool(self.sort_key and COLUMNS_BY_KEY[self.sort_key].high_first)
         self.render_table()
 

@@ -28,7 +28,7 @@ from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
 from .results import export_frame
 from .sketch_view import NO_TABLE, SketchView
-from .view import NONE, Cell, justify
+from .view import NONE, Cell, justify, stepped
 from .widgets import CautionBanner, FittingFooter
 
 #: The level schemes the l key steps through (the first is the default).
@@ -284,9 +284,7 @@ class CruiseScreen(HoldsKeys, Screen):
         # Specific range first (best on top), then the level and the rest; ends with catalogue order.
         first = ["sr", "level", "flow", "loss", "opt", "max", "limit"]
         cycle: list[str | None] = first + [c.key for c in COLUMNS if c.key not in first + ["variant", "engine", "note"]]
-        cycle.append(None)
-        position = cycle.index(self.sort_key) if self.sort_key in cycle else len(cycle) - 1
-        self.sort_key = cycle[(position + step) % len(cycle)]
+        self.sort_key = stepped(cycle + [None], self.sort_key, step)
         self.descending = bool(self.sort_key and COLUMNS_BY_KEY[self.sort_key].high_first)
         self.render_table()
 

@@ -184,8 +184,10 @@ def print_cruise(catalogue, conditions, climb_labels, frame, scheme, _speed) -> 
 def print_speeds(catalogue, conditions, climb_labels, frame, _scheme, speed) -> None:
     columns, cells = _common(frame, conditions)
     get = frame.get_column
-    chosen = {"mrc": "MRC", "lrc": "LRC"}.get(speed, "Mach")
-    columns += [Column("fl", "FL"), Column("mach", chosen, bold=True), Column("mrc", "MRC"), Column("lrc", "LRC"),
+    columns.append(Column("fl", "FL"))
+    if speed is None:  # a Mach asked for: shown beside MRC and LRC
+        columns.append(Column("mach", "Mach", bold=True))
+    columns += [Column("mrc", "MRC", bold=speed == "mrc"), Column("lrc", "LRC", bold=speed == "lrc"),
                 Column("flow", "Fuel\nkg/h"), Column("sr", "SR\nNM/t", bold=True), Column("held", "Held\nby", "left"),
                 Column("max", "Max FL\nat Mach")]
     cells["fl"] = [f"FL{fl:03d}" for fl in get("flight_level").to_list()]
@@ -199,7 +201,7 @@ def print_speeds(catalogue, conditions, climb_labels, frame, _scheme, speed) -> 
     table = TextTable(columns, cells, [None] * frame.height, _sections(cells["variant"]))
     speed_words = {"mrc": "MRC (maximum specific range)", "lrc": "LRC (the faster Mach at 99 % of the maximum "
                    "specific range, common practice)"}
-    what = speed_words.get(speed) or caption(conditions, climb_labels).split(" | ")[0]
+    what = speed_words.get(speed) or caption(conditions, climb_labels).split(" | ")[0].removeprefix("speed: ")
     output.print_table(table, f"{catalogue.title}: cruise speeds at a level", [
         f"fuel flow and SR at {what} | residual climb for Max FL: "
         + ", ".join(f"{c:g} ft/min" for c in conditions.climb_fpm) + f" | buffet margin: {conditions.g_margin:g} g",

@@ -223,7 +223,7 @@ def speed_table(catalogue, conditions: Conditions, levels_ft, speed) -> pl.DataF
     shared = _case_frame(catalogue, chosen, index, res)
     notes = fuel_notes(catalogue, cruise, np.where(np.isfinite(mach), mach, cases.mach), speeds.flags)
     bound = speeds.lrc_bound if speed == "lrc" else speeds.mrc_bound if speed == "mrc" else np.full(len(cases), -1)
-    max_ft = feet(res.max_altitude_m)
+    max_ft = np.where(np.isfinite(mach), feet(res.max_altitude_m), np.nan)  # no speed: no maximum at it
     names = np.array(SPEED_LIMITS + (None,), dtype=object)
     for i in range(len(cases)):
         notes[i] += speed_notes(int(speeds.flags[i]), levels_ft[i % k], mach[i], speeds.low[i], speeds.high[i],
