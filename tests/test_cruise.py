@@ -414,3 +414,44 @@ def test_propeller_mrc_is_at_the_best_lift_to_drag_ratio(clean):
     speed = speeds.mrc_mach * math.sqrt(1.4 * R * t_isa)
     c = 0.28 / 3.6e6 * math.sqrt(t_isa / 288.15)
     np.testing.assert_allclose(flow, c * drag * speed / 0.85, rtol=1e-12)
+
+
+def test_chunked_answers_are_each_cases_own():
+    # The cruise solvers work in chunks sorted by kind of fuel data (the bench's mixed fleet: the
+    # TSFC formula and a TSFC table); every case's answer is the one it gets solved alone.
+    from variantcmp.bench import synthetic_cases, synthetic_fleet
+    from variantcmp.solver.fuel_flow import CRUISE_CHUNK
+
+    cat = synthetic_fleet()
+    cases = synthetic_cases(cat, CRUISE_CHUNK + 5_000)
+    optimum, _, _ = cr.optimum_altitude(CruisePhysics.of(cat, cases), cases.mach)
+    speeds = cruise_speeds(CruisePhysics.of(cat, cases), np.full(len(cases), 35_000.0 * FT))
+    pick = np.random.default_rng(3).choice(len(cases), size=40, replace=False)
+    alone = cases.take(pick)
+    np.testing.assert_array_equal(cr.optimum_altitude(CruisePhysics.of(cat, alone), alone.mach)[0], optimum[pick])
+    again = cruise_speeds(CruisePhysics.of(cat, alone), np.full(pick.size, 35_000.0 * FT))
+    np.testing.assert_allclose(again.mrc_mach, speeds.mrc_mach[pick], atol=1e-9)
+    np.testing.assert_allclose(again.lrc_mach, speeds.lrc_mach[pick], atol=1e-9)
+
+
+@settings(max_examples=8, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(st.floats(75.0, 105.0), st.floats(8.0, 30.0), st.floats(-15.0, 30.0), st.sampled_from(["1000", "2000", "4000"]))
+def test_step_climb_properties(demo, heavy_pct, burn_pct, dev, scheme):
+    # Weight only falls as fuel burns (the fuel adds up to the weight burnt), the levels only rise,
+    # each level is one of the scheme's and within the maximum altitude (at the climb criterion,
+    # as ceilings gives it) at the weight it is entered at: the step rule.
+    from variantcmp.table.step_climb import step_climb_table
+
+    heavy, light = WeightSpec(heavy_pct, "%mtow"), WeightSpec(heavy_pct - burn_pct, "%mtow")
+    f = step_climb_table(demo, Conditions(isa_devs_c=(dev,)), heavy, light, scheme)
+    levels = set((cr.scheme_levels_m(scheme) / FT / 100).round().astype(int).tolist())
+    flown = f.filter(pl.col("segment").is_not_null())
+    assert set(flown["flight_level"].to_list()) <= levels
+    for (vid, eid), group in flown.group_by(["variant", "engine"], maintain_order=True):
+        mtow = demo.variants[vid].mtow_kg
+        assert group["fuel_kg"].sum() == pytest.approx(burn_pct / 100 * mtow, rel=1e-9)
+        assert np.all(np.diff(group["flight_level"].to_numpy()) > 0)
+        assert np.all(group["distance_nm"].to_numpy() > 0) and np.all(group["time_min"].to_numpy() > 0)
+        entered = ceilings_table(demo, Conditions(weights=tuple(WeightSpec(w, "kg") for w in group["start_weight_kg"]),
+                                                  isa_devs_c=(dev,), variants=(vid,), engines=(eid,)))
+        assert np.all(entered["max_altitude_ft"].to_numpy() >= group["flight_level"].to_numpy() * 100 - 0.05)

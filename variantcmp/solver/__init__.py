@@ -18,7 +18,13 @@ The package, one concern per module, each importing only those above it:
 - :mod:`~variantcmp.solver.coarse`, :mod:`~variantcmp.solver.thrust_best`,
   :mod:`~variantcmp.solver.best_speed`: the best-speed search's stages (coarse grid; the thrust
   ceiling's best speed; the combined maximum altitude and the checks);
-- :mod:`~variantcmp.solver.parallel`: :func:`solve_ceilings`, chunks and processes.
+- :mod:`~variantcmp.solver.parallel`: :func:`solve_ceilings`, chunks and processes;
+- :mod:`~variantcmp.solver.fuel_flow`: fuel flow and specific range in level flight
+  (:class:`~variantcmp.solver.fuel_flow.CruisePhysics`, one entry per kind of fuel data in
+  ``FUEL_MODELS``), chunks sorted by kind;
+- :mod:`~variantcmp.solver.cruise`, :mod:`~variantcmp.solver.cruise_speed`,
+  :mod:`~variantcmp.solver.step_climb`: the cruise answers' stages (optimum altitude and the best
+  level of a scheme; MRC and LRC at a level; step climbs).
 
 This module gives the names the rest of the package uses.
 """
