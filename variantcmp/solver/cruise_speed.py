@@ -125,8 +125,9 @@ def max_range_mach(cruise: CruisePhysics, pressure_pa, altitude_m, low, high):
     specific range (m/kg).
 
     Guarantees: the best of MRC_SCAN evenly spaced Machs refined by golden section to about 1e-5
-    (a single-peaked specific range's maximum; a kinked one, from a TSFC table, its best local
-    peak near the best scan point); an end of the range exactly where specific range is best there.
+    (a single-peaked specific range's maximum; a kinked one, from a TSFC table or a propeller
+    efficiency against Mach, its best local peak near the best scan point, on the kink exactly where
+    the peak is one); an end of the range exactly where specific range is best there.
     """
     n = len(cruise)
 
@@ -144,6 +145,23 @@ def max_range_mach(cruise: CruisePhysics, pressure_pa, altitude_m, low, high):
     for end in (0, MRC_SCAN - 1):
         on_end = values[:, end] >= value
         mach, value = np.where(on_end, grid[:, end], mach), np.where(on_end, values[:, end], value)
+    return _on_data_nodes(cruise, pressure_pa, altitude_m, a, b, mach, value)
+
+
+def _on_data_nodes(cruise: CruisePhysics, pressure_pa, altitude_m, a, b, mach, value):
+    """A maximum on a kink of the fuel data (a TSFC table's or a propeller efficiency's Mach column,
+    where specific range is linear either side): the node itself where it beats the golden section's
+    answer, for the cases whose bracket [a, b] holds it."""
+    everyone = np.arange(len(cruise))
+    for _, nodes, idx in cruise.fuel.mach_nodes():
+        rows = everyone[idx]
+        for node in nodes:
+            near = rows[(a[rows] <= node) & (node <= b[rows])]
+            if near.size:
+                at = cruise.subset(near).specific_range_m_per_kg(pressure_pa[near], np.full(near.size, node),
+                                                                 altitude_m[near])
+                better = nan_as_lowest(at) > value[near]
+                mach[near[better]], value[near[better]] = node, at[better]
     return mach, value
 
 

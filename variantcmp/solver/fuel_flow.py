@@ -70,6 +70,17 @@ class FuelData:
                 low[idx], high[idx] = self.propellers[did].mach_range
         return low, high
 
+    def mach_nodes(self) -> list[tuple[int, np.ndarray, np.ndarray | slice]]:
+        """(data id, Mach columns, cases) of each TSFC table and propeller efficiency against Mach:
+        where specific range has kinks in Mach."""
+        out = []
+        for code, did, idx in self.groups():
+            if code == TSFC_TABLE:
+                out.append((did, self.tables[did].mach, idx))
+            elif code == PSFC and self.propellers[did].constant is None:
+                out.append((did, self.propellers[did].mach, idx))
+        return out
+
     def altitude_range_m(self) -> tuple[np.ndarray, np.ndarray]:
         """The pressure altitudes each case's fuel data cover: a TSFC table's, else the -2,000 ft
         floor to the model top."""
