@@ -32,12 +32,13 @@ from .limits import buffet_ceiling_m, buffet_cl_at, buffet_peak_mach, closed_for
 from .parallel import solve_ceilings
 from .physics import THRUST_MODELS, ClimbPhysics
 from .results import (ABOVE_MMO, ABOVE_MODEL_TOP, BELOW_FLOOR, BELOW_VMO_FLOOR, CANNOT_CLIMB, LIMITS, NO_BUFFET_AT_MACH,
-                      NO_COMMON_ALTITUDE, THRUST_DATA_MACH, THRUST_DATA_TOP, UNFLYABLE, Ceilings)
+                      NO_COMMON_ALTITUDE, PROPELLER_DATA_MACH, THRUST_DATA_MACH, THRUST_DATA_TOP, UNFLYABLE,
+                      Ceilings)
 from .thrust_ceiling import SCAN_LEVELS_M, thrust_ceiling_m
 
 __all__ = [
     "ABOVE_MMO", "ABOVE_MODEL_TOP", "BELOW_FLOOR", "BELOW_VMO_FLOOR", "BEST_MACH_GRID", "CANNOT_CLIMB", "LIMITS",
-    "MODEL_TOP_M", "NO_BUFFET_AT_MACH", "NO_COMMON_ALTITUDE", "SCAN_LEVELS_M", "THRUST_DATA_MACH", "THRUST_DATA_TOP",
+    "MODEL_TOP_M", "NO_BUFFET_AT_MACH", "NO_COMMON_ALTITUDE", "PROPELLER_DATA_MACH", "SCAN_LEVELS_M", "THRUST_DATA_MACH", "THRUST_DATA_TOP",
     "THRUST_MODELS", "UNFLYABLE", "Ceilings", "ClimbPhysics", "best_speed_ceilings", "bisect_root",
     "buffet_ceiling_m", "buffet_cl_at", "buffet_peak_mach", "closed_form_ceilings_m", "fixed_mach_ceilings",
     "golden_max", "mach_grid", "nan_as_lowest", "solve_ceilings", "thrust_ceiling_m",

@@ -21,7 +21,9 @@ stages, each with its guarantee:
    spike of the boundary can lie between grid speeds); a grid step either side of M_T, where that
    lies outside the first bracket (a peak on a table Mach). All brackets run as one search on
    repeated cases. Then two situations the grid is too coarse for, each in its own step:
-   :func:`flyable_islands` and :func:`narrow_climbing_band`.
+   :func:`flyable_islands` and :func:`narrow_climbing_band`; and where thrust and the buffet or
+   stall ceiling bind together (a coffin corner: where a propeller aircraft's best speed mostly
+   lies, against the buffet margin at low speed), :func:`close_the_corner` steps onto the crossing.
 4. *Check* (:func:`check_stage`) enforces the invariants of the answer:
 
    - the reported maximum altitude is no lower than any fixed-Mach result the search evaluated
@@ -68,6 +70,10 @@ from .thrust_ceiling import thrust_ceiling_m
 
 BEST_MACH_ITERATIONS = 18  # golden section on the maximum altitude: a grid step x 0.618^18, about 2e-5
 ISLAND_SPEEDS = 48  # dense scan for cases whose grid met unflyable speeds (a step of about 0.014 Mach)
+CORNER_STEP_MACH = 1e-4  # the second speed of the corner's Newton step (its gap is linear over this)
+CORNER_MAX_STEPS = 20  # the Newton step goes at most this many of those (the search left it within a few)
+CORNER_WINDOW_M = 30.0  # thrust roots of the corner step start this close (a 1e-4 Mach step moves them about 3 m)
+CORNER_MARGIN_M = 0.05  # the corner step stops this far short of the crossing (over 10 x the root tolerance)
 TABLE_TOP_LOOK_M = 300.0  # a best thrust ceiling this close under the thrust table's top gets a look at the top
 BOUNDING = (LIMITS.index("thrust"), LIMITS.index("certified"), LIMITS.index("cabin"))  # bound H at every speed
 
@@ -88,6 +94,7 @@ def best_speed_ceilings(phys: ClimbPhysics) -> Ceilings:
                      | np.isnan(inc.result.max_altitude_m[todo]))
     flyable_islands(phys, grid, np.flatnonzero(suspect), inc)
     narrow_climbing_band(phys, grid, inc)
+    close_the_corner(phys, inc)
     return check_stage(phys, grid, thrust, m_buffet, grid_flags, inc)
 
 
@@ -203,6 +210,54 @@ def narrow_climbing_band(phys: ClimbPhysics, grid: Grid, inc: Incumbent) -> None
     climbs = np.flatnonzero(e_star >= 0.0)
     if climbs.size:
         inc.offer(stuck[climbs], fixed_mach_ceilings(sub.subset(climbs), m_star[climbs]))
+
+
+def close_the_corner(phys: ClimbPhysics, inc: Incumbent) -> None:
+    """Where thrust and the buffet or stall ceiling bind together at the answer (a coffin corner),
+    one Newton step onto their crossing in Mach.
+
+    There the maximum altitude is min(T, L) with T falling and L rising (or the other way): a
+    kink, which the golden-section search of :func:`combined_stage` brackets to about
+    BEST_MACH_ITERATIONS steps, where its steep sides (a propeller aircraft's, against the buffet
+    margin at low speed: about 100 ft per 0.001 Mach) leave up to a foot. The gap g = T - L is
+    smooth in Mach: a second solve CORNER_STEP_MACH away gives its slope, and a solve at the
+    Newton step's speed (within CORNER_MAX_STEPS of those steps) is offered, kept only where it is
+    higher. The step aims CORNER_MARGIN_M short of the crossing, on the side where the limit found
+    binding stays the lower: on the crossing itself the two ceilings are equal to less than the
+    thrust root's tolerance, and a solve at that Mach could name the other limit, or find that
+    thrust cannot climb at the other's ceiling (the check of
+    :func:`~variantcmp.solver.fixed_mach.fixed_mach_ceilings`). Tests: the "turboprop" dense Mach
+    scan (0.42 ft low without this), the reported Mach giving the reported altitude.
+    """
+    res = inc.result
+    thrust, aero_limits = LIMITS.index("thrust"), (LIMITS.index("buffet"), LIMITS.index("stall"))
+    pair = ((res.limit == thrust) & np.isin(res.co_limit, aero_limits)) | (
+        np.isin(res.limit, aero_limits) & (res.co_limit == thrust))
+    rows = np.flatnonzero(pair & np.isfinite(res.max_altitude_m))
+    if rows.size == 0:
+        return
+    cs = phys.cases
+    here = res.take(rows)
+    other = np.where(np.isin(here.limit, aero_limits), here.limit, here.co_limit)
+    gap = lambda r: r.thrust_m - np.where(other == aero_limits[0], r.buffet_m, r.stall_m)  # noqa: E731
+    sub = phys.subset(rows)
+    low, high = cs.mach_low[rows], cs.mach_high[rows]
+    # Step towards the middle of the speed range (a corner may sit at one end of it).
+    step = np.where(here.mach + CORNER_STEP_MACH <= high, CORNER_STEP_MACH, -CORNER_STEP_MACH)
+    m2 = np.clip(here.mach + step, low, high)
+    there = fixed_mach_ceilings(sub, m2, here.thrust_m, guess_half_width_m=CORNER_WINDOW_M)
+    inc.offer(rows, there)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        slope = (gap(there) - gap(here)) / (m2 - here.mach)
+        # The gap to aim at: the binding limit CORNER_MARGIN_M under the other one.
+        aim = np.where(here.limit == thrust, -CORNER_MARGIN_M, CORNER_MARGIN_M)
+        move = np.clip((aim - gap(here)) / slope, -CORNER_MAX_STEPS * CORNER_STEP_MACH, CORNER_MAX_STEPS * CORNER_STEP_MACH)
+        thrust_slope = (there.thrust_m - here.thrust_m) / (m2 - here.mach)
+    go = np.flatnonzero(np.isfinite(move) & (move != 0.0))
+    if go.size:
+        m_new = np.clip(here.mach[go] + move[go], low[go], high[go])
+        guess = here.thrust_m[go] + thrust_slope[go] * (m_new - here.mach[go])
+        inc.offer(rows[go], fixed_mach_ceilings(sub.subset(go), m_new, guess, guess_half_width_m=CORNER_WINDOW_M))
 
 
 def past_table_top(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, thrust_best, grid_flags) -> None:

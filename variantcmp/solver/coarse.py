@@ -14,8 +14,9 @@ flat top at a layer base scatters by 1e-6 m) it is taken to keep falling that wa
 so is one that rose from the middle to the next faster speed, on the slow sweep. A further speed
 of the sweep is then not solved where neither the last thrust ceiling nor that speed's other
 limits (closed forms) are above the best maximum altitude found: it cannot beat it. Table
-engines are not taken to keep falling (a dip in a table's Mach columns can rise again after any
-number of grid speeds): past a fall, a speed is not solved where
+engines, and propeller engines with an efficiency table, are not taken to keep falling (a dip in
+a table's Mach columns can rise again after any number of grid speeds;
+:func:`~variantcmp.solver.kinks.kinked_in_mach`): past a fall, a speed is not solved where
 :func:`~variantcmp.solver.thrust_ceiling.ceiling_below` shows its thrust ceiling below the best
 maximum altitude found. (Before the sweeps the fastest speed came first, where many heavy, hot
 cases cannot climb at all: the sweeps and the table-engine check took the benchmark's best-speed
@@ -33,9 +34,10 @@ from typing import Callable
 
 import numpy as np
 
-from ..cases import MODEL_CODES, CaseSet
+from ..cases import CaseSet
 from .finders import nan_as_lowest
 from .fixed_mach import fixed_mach_ceilings
+from .kinks import kinked_in_mach
 from .limits import closed_form_ceilings_m, lowest_other_ceiling_m
 from .physics import ClimbPhysics
 from .results import Ceilings, score
@@ -115,7 +117,7 @@ def coarse_stage(phys: ClimbPhysics) -> Grid:
     n, g = grid.shape
     columns = [None] * g
     best_max = np.full(n, -np.inf)
-    smooth = cs.model_code != MODEL_CODES["table"]
+    smooth = ~kinked_in_mach(phys)
     start = min(GRID_START, g - 1)
     for sweep in (range(start, g), range(start - 1, -1, -1)):
         if len(sweep) == 0:

@@ -24,6 +24,7 @@ BELOW_VMO_FLOOR = 32  # at this Mach the ceiling lies where CAS would exceed VMO
 NO_COMMON_ALTITUDE = 64  # thrust only works above the ceiling the other limits allow
 ABOVE_MODEL_TOP = 128  # no limit binds below the top of the atmosphere model
 BELOW_FLOOR = 256  # the limits cross below -2,000 ft
+PROPELLER_DATA_MACH = 512  # Mach outside the propeller efficiency table
 #: Flags of a speed that cannot be flown at all (no maximum altitude there).
 UNFLYABLE = ABOVE_MMO | BELOW_VMO_FLOOR | NO_COMMON_ALTITUDE | BELOW_FLOOR
 
