@@ -461,3 +461,8 @@ def test_each_limit_column_is_that_limits_own_best_over_speed(demo):
         assert np.all(got[ok] <= brute[ok] + 5.0 * FT), column  # the scan's steps (a few ft) at most
     differ = np.abs(best.buffet_m - best.max_altitude_m) > 100.0
     assert differ.sum() > 10  # the columns are their own bests, not the values at the reported Mach
+    # The thrust ceiling's own speed (thrust_mach): solved there at fixed Mach, it gives the column.
+    known = np.flatnonzero(np.isfinite(best.thrust_m))
+    assert known.size > 50 and np.all(np.isnan(best.thrust_mach[np.isnan(best.thrust_m)]))
+    at = solver.solve_ceilings(dataclasses.replace(cases.take(known), mach=best.thrust_mach[known].copy()), processes=1)
+    np.testing.assert_allclose(at.thrust_m, best.thrust_m[known], rtol=0, atol=0.05 * FT)

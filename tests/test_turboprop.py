@@ -5,6 +5,7 @@ minimum-power point, the fixed-Mach thrust ceiling against scipy's brentq on a s
 written here, a Mach outside the efficiency table withheld, and properties (hypothesis).
 """
 
+import io
 import math
 
 import numpy as np
@@ -233,3 +234,43 @@ def test_available_thrust_is_efficiency_times_power_over_true_airspeed(tmp_path,
         eta = float(np.interp(m, EFFICIENCY_MACH, EFFICIENCY))
         # (1e-5: the two ISA implementations differ in the last digits of their constants)
         assert got[i] == pytest.approx(eta * 2 * POWER_KW * 1e3 * lapse * hot / speed, rel=1e-5)
+
+
+def test_derived_figures_give_power_to_weight_and_the_speed_of_the_absolute_ceiling(power_lapse_cat):
+    # Shaft power-to-weight = n P0 / MTOW (definition); the absolute ceiling at MTOW, ISA is the
+    # minimum-power closed form above, flown at CL = sqrt(3 CD0/K) (Anderson 1999, sec. 5.4), and
+    # the figures name that speed and the propeller efficiency there (constant here).
+    from variantcmp.table import fleet_figures
+
+    fig = fleet_figures(power_lapse_cat)["a1"]
+    assert "thrust_to_weight" not in fig
+    assert fig["power_to_weight_kw_per_kg"]["p1"] == pytest.approx(2 * POWER_KW / AIRFRAME["mtow_kg"])
+    row = ceilings_table(power_lapse_cat, Conditions(mach="best", climb_fpm=(0.0,))).row(0, named=True)
+    assert fig["absolute_ceiling_ft"]["p1"] == pytest.approx(row["thrust_ceiling_ft"], abs=0.01)
+    mach = fig["absolute_ceiling_mach"]["p1"]
+    assert mach == pytest.approx(row["mach"], abs=1e-3)  # nothing else binds: the best speed's
+    p, _, _ = isa(row["thrust_ceiling_ft"] * FT)
+    k = 1.0 / (math.pi * AIRFRAME["aspect_ratio"] * AIRFRAME["oswald_e"])
+    cl = AIRFRAME["mtow_kg"] * G0 / (0.5 * GAMMA * p * mach**2 * AIRFRAME["wing_area_m2"])
+    assert cl == pytest.approx(math.sqrt(3 * AIRFRAME["cd0"] / k), rel=0.05)
+    assert fig["absolute_ceiling_propeller_efficiency"]["p1"] == ETA
+
+
+def test_catalogue_warnings_go_to_stderr_one_line_each_and_check_lists_them(tmp_path, capsys):
+    # Common practice, no source: propeller efficiency collapses above about M0.7, so a turboprop
+    # option on a variant cruising faster is valid but doubtful: warned about, never silently.
+    from variantcmp.cli import main
+
+    fast = dict(AIRFRAME, cruise_mach=0.74, mmo=0.78)
+    write_catalogue(tmp_path / "fast.toml", [turboprop_spec()], [variant_spec(engine_options=["p1"], **fast),
+                                                                  variant_spec(id="a2", engine_options=["p1"], **fast)])
+    path = str(tmp_path / "fast.toml")
+    assert main(["ceilings", path, "--format", "csv"]) == 0
+    out, err = capsys.readouterr()
+    assert pl.read_csv(io.StringIO(out)).height == 2  # data only on stdout
+    lines = [line for line in err.splitlines() if "warning:" in line]
+    assert len(lines) == 2 and all(line.startswith(path + ": variant[") for line in lines)
+    assert '"a2".cruise_mach' in lines[1] and "propeller efficiency collapses above about M0.7" in lines[1]
+    assert main(["check", path]) == 0
+    out, err = capsys.readouterr()
+    assert "warning" not in err and out.count("propeller efficiency collapses") == 2

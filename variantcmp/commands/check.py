@@ -26,7 +26,7 @@ def add(subparsers) -> None:
 def run(args) -> int:
     from variantcmp.catalogue import summarise
 
-    catalogue = options.load(args.catalogue)
+    catalogue = options.load(args.catalogue, warn=False)  # the summary lists the warnings
     out = output.console()
     label_width = max(len(label) for label, _ in summarise(catalogue))
     lines = []
@@ -95,5 +95,7 @@ def _figure_text(key: str, value) -> str:
             return "—"
         if key.endswith("_ft"):
             return f"{format_altitude_ft(value)} ({format_flight_level(value)})"
+        if key.endswith("_mach"):
+            return f"M{value:.3f}"
         return f"{value:,.0f}" if abs(value) >= 1000 else f"{value:.4g}"
     return str(value)

@@ -31,7 +31,8 @@ stages, each with its guarantee:
      speed, solved to GRID_TOL_M, that beats it by more than that is solved again and offered);
    - the reported Mach reproduces the reported maximum altitude at fixed Mach (every answer is
      one fixed-Mach solve to ROOT_TOL_M at that Mach: within 0.01 ft);
-   - each limit's column is that limit's own best over the speed range: thrust at M_T (unknown,
+   - each limit's column is that limit's own best over the speed range (``thrust_mach`` the speed
+     of the thrust ceiling's): thrust at M_T (unknown,
      NaN, where some speed still climbs at the top of the thrust table: such speeds may lie
      between grid speeds, so a best within TABLE_TOP_LOOK_M under the table's top gets a look
      for the best climb rate at the top within a grid step of it), buffet at its closed-form peak,
@@ -295,13 +296,18 @@ def check_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet, gr
         m = grid.mach[short, np.argmax(grid.score()[short], axis=1)]
         inc.offer(short, fixed_mach_ceilings(phys.subset(short), m, grid.guess(short)(m)))
     final = inc.result
+    # The thrust ceiling's own best, and the speed it is at.
+    answer_higher = nan_as_lowest(final.thrust_m) > nan_as_lowest(thrust.final.thrust_m)
     thrust_best = np.maximum(nan_as_lowest(thrust.final.thrust_m), nan_as_lowest(final.thrust_m))
+    thrust_mach = np.where(answer_higher, final.mach, thrust.mach)
     with np.errstate(invalid="ignore"):
         short = np.flatnonzero(np.fmax.reduce(grid.thrust_m, axis=1) > thrust_best + GRID_TOL_M)
     if short.size:
         j = np.argmax(nan_as_lowest(grid.thrust_m[short]), axis=1)
-        again = thrust_ceiling_m(phys.subset(short), grid.mach[short, j], grid.thrust_m[short, j])[0]
-        thrust_best[short] = np.maximum(thrust_best[short], nan_as_lowest(again))
+        again = nan_as_lowest(thrust_ceiling_m(phys.subset(short), grid.mach[short, j], grid.thrust_m[short, j])[0])
+        higher = again > thrust_best[short]
+        thrust_best[short] = np.where(higher, again, thrust_best[short])
+        thrust_mach[short] = np.where(higher, grid.mach[short, j], thrust_mach[short])
     # (2) The answer is one fixed-Mach result at its Mach (``inc`` holds nothing else): solving
     # there again gives it, to the root tolerance.
     # (3) Each limit's own best over the speed range.
@@ -313,6 +319,7 @@ def check_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet, gr
     # lies beyond the data: unknown, not the best of the other speeds.
     beyond = (grid_flags & THRUST_DATA_TOP).astype(bool)
     thrust_best[beyond] = np.nan
+    thrust_mach[~np.isfinite(thrust_best)] = np.nan
     flags = final.flags.copy()
     nothing = np.isnan(final.max_altitude_m)
     # Explain a case no speed can fly by what every grid speed ran into.
@@ -321,4 +328,4 @@ def check_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet, gr
     unavailable = lambda v: np.where(np.isneginf(v), np.nan, v)  # noqa: E731
     return Ceilings(unavailable(thrust_best), np.where(cs.buffet_id >= 0, unavailable(buffet_best), np.inf),
                     stall_best, final.certified_m, final.cabin_m, final.max_altitude_m, final.mach,
-                    final.limit, flags, final.vmo_floor_m, final.co_limit)
+                    final.limit, flags, final.vmo_floor_m, final.co_limit, thrust_mach)
