@@ -16,8 +16,9 @@ The package, one concern per module, each importing only those above it:
 - :mod:`~variantcmp.solver.thrust_ceiling`: the thrust ceiling at a fixed Mach;
 - :mod:`~variantcmp.solver.fixed_mach`: every limit and the maximum altitude at a fixed Mach;
 - :mod:`~variantcmp.solver.coarse`, :mod:`~variantcmp.solver.thrust_best`,
-  :mod:`~variantcmp.solver.best_speed`: the best-speed search's stages (coarse grid; the thrust
-  ceiling's best speed; the combined maximum altitude and the checks);
+  :mod:`~variantcmp.solver.corner`, :mod:`~variantcmp.solver.best_speed`: the best-speed search's
+  stages (coarse grid; the thrust ceiling's best speed; the crossing of thrust and buffet or
+  stall at a coffin corner; the combined maximum altitude and the checks);
 - :mod:`~variantcmp.solver.parallel`: :func:`solve_ceilings`, chunks and processes.
 
 This module gives the names the rest of the package uses.

@@ -15,15 +15,21 @@ stages, each with its guarantee:
    buffet ceiling binds at its own best speed (:func:`~variantcmp.solver.limits.buffet_peak_mach`,
    a closed form: the highest B goes). Thrust bounds nothing where some speed still climbs at the
    top of the thrust table (its ceiling lies beyond the data there): such a case goes on (up to
-   995 ft low without this on a stress catalogue). The rest (buffet or stall binding: the coffin
-   corner) get golden-section searches of H over brackets: the best grid speed's neighbours; the
+   995 ft low without this on a stress catalogue). The buffet peak's answer is the grid's where
+   it falls on a grid speed without a maximum altitude (:func:`_at_buffet_peak`). The rest (buffet
+   or stall binding: the coffin corner) are searched. Where thrust binds at one grid neighbour of
+   the best grid speed and buffet or stall at the other, moving apart, H peaks on their crossing,
+   found by a root search (:func:`~variantcmp.solver.corner.corner_search`: where a propeller
+   aircraft's best speed mostly lies, against the buffet margin at low speed); the others get
+   golden-section searches of H over brackets: the best grid speed's neighbours; the
    buffet-boundary points either side of the buffet peak, where that beats the best grid speed (a
    spike of the boundary can lie between grid speeds); a grid step either side of M_T, where that
-   lies outside the first bracket (a peak on a table Mach). All brackets run as one search on
-   repeated cases. Then two situations the grid is too coarse for, each in its own step:
-   :func:`flyable_islands` and :func:`narrow_climbing_band`; and where thrust and the buffet or
-   stall ceiling bind together (a coffin corner: where a propeller aircraft's best speed mostly
-   lies, against the buffet margin at low speed), :func:`close_the_corner` steps onto the crossing.
+   lies outside the first bracket (a peak on a table Mach). These last two only where the other
+   limits' closed forms allow more than the best found somewhere in the bracket (:func:`_bound_m`).
+   All brackets run as one search on repeated cases. Then two situations the grid is too coarse
+   for, each in its own step: :func:`flyable_islands` and :func:`narrow_climbing_band`; and
+   where thrust and the buffet or stall ceiling bind together however found,
+   :func:`~variantcmp.solver.corner.close_the_corner` steps onto the crossing.
 4. *Check* (:func:`check_stage`) enforces the invariants of the answer:
 
    - the reported maximum altitude is no lower than any fixed-Mach result the search evaluated
@@ -60,6 +66,7 @@ import numpy as np
 
 from ..atmosphere import MODEL_TOP_M
 from .coarse import GRID_TOL_M, Grid, coarse_stage, mach_grid
+from .corner import close_the_corner, corner_search
 from .finders import golden_max, nan_as_lowest
 from .fixed_mach import fixed_mach_ceilings
 from .kinks import buffet_nodes_around
@@ -71,10 +78,6 @@ from .thrust_ceiling import thrust_ceiling_m
 
 BEST_MACH_ITERATIONS = 18  # golden section on the maximum altitude: a grid step x 0.618^18, about 2e-5
 ISLAND_SPEEDS = 48  # dense scan for cases whose grid met unflyable speeds (a step of about 0.014 Mach)
-CORNER_STEP_MACH = 1e-4  # the second speed of the corner's Newton step (its gap is linear over this)
-CORNER_MAX_STEPS = 20  # the Newton step goes at most this many of those (the search left it within a few)
-CORNER_WINDOW_M = 30.0  # thrust roots of the corner step start this close (a 1e-4 Mach step moves them about 3 m)
-CORNER_MARGIN_M = 0.05  # the corner step stops this far short of the crossing (over 10 x the root tolerance)
 TABLE_TOP_LOOK_M = 300.0  # a best thrust ceiling this close under the thrust table's top gets a look at the top
 BOUNDING = (LIMITS.index("thrust"), LIMITS.index("certified"), LIMITS.index("cabin"))  # bound H at every speed
 
@@ -127,20 +130,33 @@ def combined_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet,
     # The buffet ceiling's own best speed: where the buffet ceiling binds there, no speed goes
     # higher (it bounds the maximum altitude at every speed): no search.
     m_peak = np.where(np.isfinite(m_buffet[todo]), m_buffet[todo], m_grid)
-    at_peak = fixed_mach_ceilings(sub, m_peak, guess(m_peak))
+    at_peak = _at_buffet_peak(sub, grid, todo, m_peak, guess)
     open_ = ~(np.isfinite(m_buffet[todo]) & (at_peak.limit == LIMITS.index("buffet"))
               & np.isfinite(at_peak.max_altitude_m))
     go = np.flatnonzero(open_)
-    around = np.flatnonzero((score(at_peak) > gs[r, i]) & open_)
+    around = np.flatnonzero((score(at_peak) > gs[r, i]) & open_ & np.isfinite(m_buffet[todo]))
+    # A coffin corner next to the best grid speed: its crossing by a root search (few solves),
+    # the golden-section search for the rest.
+    cornered, m_corner = corner_search(sub, Grid(grid.mach[todo], {k: v[todo] for k, v in grid.at.items()},
+                                                 grid.low[todo], grid.high[todo]), go)
+    go = np.setdiff1d(go, cornered)
     peak_lo, peak_hi = buffet_nodes_around(sub.cases, m_peak)
     m_t = thrust.mach[todo]
     step = grid.step(todo)
+    low, high = grid.mach[todo][:, 0], grid.mach[todo][:, -1]
     apart = np.flatnonzero(np.isfinite(m_t) & ((m_t < lo) | (m_t > hi)) & open_)
+    # Brackets where the other limits' closed forms keep every speed below the best found cannot
+    # do better (at a propeller's coffin corner, M_T's bracket lies where the buffet margin binds).
+    best_m = np.fmax(nan_as_lowest(np.fmax.reduce(grid.at["max_altitude_m"][todo], axis=1)),
+                     nan_as_lowest(inc.result.max_altitude_m[todo]))
+    around = around[_bound_m(sub.cases, around, np.maximum(peak_lo, low)[around], np.minimum(peak_hi, high)[around])
+                    > best_m[around]]
+    apart = apart[_bound_m(sub.cases, apart, np.maximum(m_t - step, low)[apart], np.minimum(m_t + step, high)[apart])
+                  > best_m[apart]]
     searched = np.concatenate([go, around, apart])
     m_found = np.zeros(0)
     if searched.size:
         sub2 = sub if searched.size == todo.size else sub.subset(searched)
-        low, high = grid.mach[todo][:, 0], grid.mach[todo][:, -1]
         m_found, _ = golden_max(lambda m: combined_score(sub2, m, guess(m, searched)),
                                 np.concatenate([lo[go], np.maximum(peak_lo, low)[around],
                                                 np.maximum(m_t - step, low)[apart]]),
@@ -154,6 +170,8 @@ def combined_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet,
     # speed, the buffet peak, the search around it, the one around M_T, M_T itself.
     rest = np.flatnonzero(~open_)
     inc.offer(todo[rest], at_peak.take(rest))
+    if cornered.size:
+        inc.offer(todo[cornered], solved(cornered, m_corner))
     if go.size:
         inc.offer(todo[go], solved(go, m_found[:go.size]))
     inc.offer(todo, fixed_mach_ceilings(sub, m_grid, guess(m_grid)))
@@ -164,6 +182,40 @@ def combined_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet,
         inc.offer(todo[apart], solved(apart, m_found[go.size + around.size:]))
     inc.offer(todo, final.take(todo))
     return todo
+
+
+def _bound_m(cases, rows, low, high):
+    """An upper bound of the maximum altitude over [low, high] for the cases ``rows``: the lowest of
+    the certified and cabin ceilings, the stall ceiling at ``high`` (it rises with Mach) and the
+    buffet ceiling at its own best speed there (:func:`~variantcmp.solver.limits.buffet_peak_mach`);
+    each bounds it at every speed. Unknown buffet (no data in the range) bounds nothing."""
+    sub = cases.take(rows)
+    buffet = buffet_ceiling_m(sub, buffet_peak_mach(sub, low, high))
+    stall = closed_form_ceilings_m(sub, high)[1]
+    return np.fmin(np.fmin(np.where(np.isnan(buffet), np.inf, buffet), stall), np.fmin(sub.certified_m, sub.cabin_m))
+
+
+def _at_buffet_peak(sub: ClimbPhysics, grid: Grid, todo, m_peak, guess) -> Ceilings:
+    """The fixed-Mach answers at the buffet ceiling's own best speed for the cases ``todo`` (``sub``
+    their physics). Where that speed is a grid speed without a maximum altitude (solved there, or
+    skipped by the coarse stage: it cannot beat the best found) the grid's answer stands in: no
+    speed there beats the best grid speed, nor can the buffet ceiling bind there (it is higher
+    there than at the best grid speed). A propeller aircraft's buffet ceiling mostly peaks at MMO,
+    where heavy or hot ones cannot climb at all: proving that (the altitude scan) took a quarter of
+    a turboprop chunk's time."""
+    r = np.arange(todo.size)
+    mach = grid.mach[todo]
+    on_grid = mach == m_peak[:, None]
+    col = np.argmax(on_grid, axis=1)
+    known = np.flatnonzero(on_grid.any(axis=1) & np.isnan(grid.at["max_altitude_m"][todo][r, col]))
+    if known.size == 0:
+        return fixed_mach_ceilings(sub, m_peak, guess(m_peak))
+    out = Ceilings.blank(todo.size, m_peak)
+    out.put(known, Ceilings(**{k: v[todo[known], col[known]] for k, v in grid.at.items()}))
+    need = np.setdiff1d(r, known)
+    if need.size:
+        out.put(need, fixed_mach_ceilings(sub.subset(need), m_peak[need], guess(m_peak[need], need)))
+    return out
 
 
 def flyable_islands(phys: ClimbPhysics, grid: Grid, idx, inc: Incumbent) -> None:
@@ -211,54 +263,6 @@ def narrow_climbing_band(phys: ClimbPhysics, grid: Grid, inc: Incumbent) -> None
     climbs = np.flatnonzero(e_star >= 0.0)
     if climbs.size:
         inc.offer(stuck[climbs], fixed_mach_ceilings(sub.subset(climbs), m_star[climbs]))
-
-
-def close_the_corner(phys: ClimbPhysics, inc: Incumbent) -> None:
-    """Where thrust and the buffet or stall ceiling bind together at the answer (a coffin corner),
-    one Newton step onto their crossing in Mach.
-
-    There the maximum altitude is min(T, L) with T falling and L rising (or the other way): a
-    kink, which the golden-section search of :func:`combined_stage` brackets to about
-    BEST_MACH_ITERATIONS steps, where its steep sides (a propeller aircraft's, against the buffet
-    margin at low speed: about 100 ft per 0.001 Mach) leave up to a foot. The gap g = T - L is
-    smooth in Mach: a second solve CORNER_STEP_MACH away gives its slope, and a solve at the
-    Newton step's speed (within CORNER_MAX_STEPS of those steps) is offered, kept only where it is
-    higher. The step aims CORNER_MARGIN_M short of the crossing, on the side where the limit found
-    binding stays the lower: on the crossing itself the two ceilings are equal to less than the
-    thrust root's tolerance, and a solve at that Mach could name the other limit, or find that
-    thrust cannot climb at the other's ceiling (the check of
-    :func:`~variantcmp.solver.fixed_mach.fixed_mach_ceilings`). Tests: the "turboprop" dense Mach
-    scan (0.42 ft low without this), the reported Mach giving the reported altitude.
-    """
-    res = inc.result
-    thrust, aero_limits = LIMITS.index("thrust"), (LIMITS.index("buffet"), LIMITS.index("stall"))
-    pair = ((res.limit == thrust) & np.isin(res.co_limit, aero_limits)) | (
-        np.isin(res.limit, aero_limits) & (res.co_limit == thrust))
-    rows = np.flatnonzero(pair & np.isfinite(res.max_altitude_m))
-    if rows.size == 0:
-        return
-    cs = phys.cases
-    here = res.take(rows)
-    other = np.where(np.isin(here.limit, aero_limits), here.limit, here.co_limit)
-    gap = lambda r: r.thrust_m - np.where(other == aero_limits[0], r.buffet_m, r.stall_m)  # noqa: E731
-    sub = phys.subset(rows)
-    low, high = cs.mach_low[rows], cs.mach_high[rows]
-    # Step towards the middle of the speed range (a corner may sit at one end of it).
-    step = np.where(here.mach + CORNER_STEP_MACH <= high, CORNER_STEP_MACH, -CORNER_STEP_MACH)
-    m2 = np.clip(here.mach + step, low, high)
-    there = fixed_mach_ceilings(sub, m2, here.thrust_m, guess_half_width_m=CORNER_WINDOW_M)
-    inc.offer(rows, there)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        slope = (gap(there) - gap(here)) / (m2 - here.mach)
-        # The gap to aim at: the binding limit CORNER_MARGIN_M under the other one.
-        aim = np.where(here.limit == thrust, -CORNER_MARGIN_M, CORNER_MARGIN_M)
-        move = np.clip((aim - gap(here)) / slope, -CORNER_MAX_STEPS * CORNER_STEP_MACH, CORNER_MAX_STEPS * CORNER_STEP_MACH)
-        thrust_slope = (there.thrust_m - here.thrust_m) / (m2 - here.mach)
-    go = np.flatnonzero(np.isfinite(move) & (move != 0.0))
-    if go.size:
-        m_new = np.clip(here.mach[go] + move[go], low[go], high[go])
-        guess = here.thrust_m[go] + thrust_slope[go] * (m_new - here.mach[go])
-        inc.offer(rows[go], fixed_mach_ceilings(sub.subset(go), m_new, guess, guess_half_width_m=CORNER_WINDOW_M))
 
 
 def past_table_top(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, thrust_best, grid_flags) -> None:

@@ -10,7 +10,9 @@ around them instead of discovering them.
   :func:`nearest_kink_mach`). A propeller efficiency table's Machs are kinks the same way
   (thrust = eta(M) P / V, eta linear between them), and so is any model's ``kink_machs``
   (:func:`mach_kink_groups`). Between two kinks of a propeller table the excess power at an
-  altitude, eta P linear in M less the convex power required, is concave: one hump per cell.
+  altitude, eta P linear in M less the power required (convex in speed), is concave: one hump
+  per cell; where the table is concave (slopes never rising), over the whole range
+  (:func:`several_humps_in_mach`).
 - The turbofan lapse's branch change at theta0 = TR (:func:`variantcmp.thrust.turbofan_lapse_fraction`):
   a kink in Mach whose place depends on the altitude, fixed in the isothermal layer
   (:func:`turbofan_branch_mach`).
@@ -53,24 +55,29 @@ def layer_base_near_m(altitude_m, within_m):
         return np.where((np.abs(altitude_m - base) < within_m) & (base > 0.0), base, np.nan)
 
 
-def mach_kink_groups(phys):
+def mach_kink_groups(phys, several_humps=False):
     """(kink Machs, group) of every group whose data put kinks in Mach (:attr:`ThrustModel.kink_machs`
     of :mod:`variantcmp.solver.physics`: a thrust table's Mach columns, a propeller efficiency
-    table's Machs); groups without such points (a constant efficiency) left out."""
+    table's Machs); groups without such points (a constant efficiency) left out. ``several_humps``:
+    only the groups whose thrust ceiling may have several humps over speed (not
+    :attr:`ThrustModel.one_hump`: a concave efficiency table has one)."""
     out = []
     for code, data_id, group in phys.groups:
-        kinks = THRUST_MODELS[code].kink_machs
-        machs = None if kinks is None else kinks(phys.cases, data_id)
-        if machs is not None and machs.size:
-            out.append((machs, group))
+        model = THRUST_MODELS[code]
+        machs = None if model.kink_machs is None else model.kink_machs(phys.cases, data_id)
+        if machs is None or not machs.size:
+            continue
+        if several_humps and model.one_hump is not None and model.one_hump(phys.cases, data_id):
+            continue
+        out.append((machs, group))
     return out
 
 
-def kinked_in_mach(phys) -> np.ndarray:
-    """Per case, whether its thrust has kinks in Mach (:func:`mach_kink_groups`): its thrust
-    ceiling can fall and rise again over speed, where a smooth model's has one hump."""
+def several_humps_in_mach(phys) -> np.ndarray:
+    """Per case, whether its thrust ceiling may fall and rise again over speed: kinks in Mach that
+    are not all concave (:func:`mach_kink_groups`); a smooth model's has one hump."""
     out = np.zeros(len(phys.cases), dtype=bool)
-    for _, group in mach_kink_groups(phys):
+    for _, group in mach_kink_groups(phys, several_humps=True):
         out[group] = True
     return out
 

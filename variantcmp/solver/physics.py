@@ -117,6 +117,8 @@ class ThrustModel:
     ``static_fraction(cases)``: the fraction at sea level, static, ISA, which the catalogue's static
     thrust is (the thrust is divided by it). ``kink_machs(cases, data_id)``: the Mach points where
     the group's data interpolate linearly (thrust has a kink there; none: smooth in Mach).
+    ``one_hump(cases, data_id)``: whether the thrust ceiling has one hump over speed in spite of
+    those kinks (all of them concave; None: the model cannot say, several humps are possible).
     ``data_mach_flag``: the flag of a Mach outside the model's data.
     """
 
@@ -124,6 +126,7 @@ class ThrustModel:
     mach_terms: Callable | None = None
     static_fraction: Callable | None = None
     kink_machs: Callable | None = None
+    one_hump: Callable | None = None
     data_mach_flag: int = THRUST_DATA_MACH
 
 
@@ -185,7 +188,7 @@ THRUST_MODELS: dict[int, ThrustModel] = {
                                          lambda cs: turbofan_sea_level_fraction(cs.throttle_ratio)),
     MODEL_CODES["table"]: ThrustModel(_table, _table_mach_terms, kink_machs=lambda cs, tid: cs.tables[tid].mach),
     TURBOPROP: ThrustModel(_turboprop, _turboprop_mach_terms, kink_machs=lambda cs, pid: cs.propellers[pid].mach,
-                           data_mach_flag=PROPELLER_DATA_MACH),
+                           one_hump=lambda cs, pid: cs.propellers[pid].concave, data_mach_flag=PROPELLER_DATA_MACH),
 }
 
 

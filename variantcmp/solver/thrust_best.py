@@ -275,7 +275,7 @@ def kink_stage(phys: ClimbPhysics, thrust_at: ThrustAtSpeed, grid: Grid, m_best,
     point_case, point_mach = np.concatenate([node_case, turbofan]), np.concatenate([node_mach, branch[turbofan]])
     order = np.argsort(point_case, kind="stable")  # cases in order keep the subsets' model groups slices
     point_case, point_mach = point_case[order], point_mach[order]
-    tables = mach_kink_groups(phys)
+    tables = mach_kink_groups(phys, several_humps=True)  # a far side can rise again (not under a concave table)
     who, probe = np.zeros(0, np.intp), np.zeros((0, 1))
     if tables:
         i = np.argmax(nan_as_lowest(grid.thrust_m), axis=1)
