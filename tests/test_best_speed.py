@@ -448,8 +448,12 @@ def test_each_limit_column_is_that_limits_own_best_over_speed(demo):
 
     cases = next(_best_speed_sets(demo))
     best = solver.solve_ceilings(cases, processes=1)
-    k = 161
-    speeds = cases.mach_low[:, None] + (cases.mach_high - cases.mach_low)[:, None] * np.linspace(0.0, 1.0, k)[None, :]
+    # The scan's speeds and every engine's kink Machs (thrust-table columns, propeller efficiency
+    # points) in range: a thrust ceiling can peak on one, where a scan point beside it reads lower.
+    kinks = np.array(sorted({m for e in demo.engines.values() for m in e.table_mach + e.propeller_efficiency_mach}))
+    dense = cases.mach_low[:, None] + (cases.mach_high - cases.mach_low)[:, None] * np.linspace(0.0, 1.0, 161)[None, :]
+    speeds = np.hstack([dense, np.clip(kinks[None, :], cases.mach_low[:, None], cases.mach_high[:, None])])
+    k = speeds.shape[1]
     rep = cases.take(np.repeat(np.arange(len(cases)), k))
     scan = solver.solve_ceilings(dataclasses.replace(rep, mach=speeds.ravel().copy()), processes=1)
     for column, slack_ft in (("thrust_m", 0.3), ("buffet_m", 1e-6), ("stall_m", 1e-6)):

@@ -274,3 +274,105 @@ def test_catalogue_warnings_go_to_stderr_one_line_each_and_check_lists_them(tmp_
     assert main(["check", path]) == 0
     out, err = capsys.readouterr()
     assert "warning" not in err and out.count("propeller efficiency collapses") == 2
+
+
+# ------------------------------------------------------------------- the demo turboprops, end to end
+
+DEMO_PROPS = [("t72", "tavish-20", 23_000.0, 15.0), ("t78", "tavish-24", 25_000.0, 30.0), ("t72", "tavish-24", 20_000.0, 0.0)]
+
+
+def _demo_row(demo, variant, engine, weight_kg, isa_dev_c, mach, climb_fpm=300.0):
+    return ceilings_table(demo, Conditions(weights=(WeightSpec(weight_kg, "kg"),), isa_devs_c=(isa_dev_c,), mach=mach,
+                                           climb_fpm=(climb_fpm,), variants=(variant,), engines=(engine,))).row(0, named=True)
+
+
+def test_demo_turboprop_envelopes_agree_with_ceilings_and_balance_power(demo):
+    # Round trip: the envelope's top (where the feasible band closes) is the best-speed maximum
+    # altitude and its highest point on the cruise-Mach line the fixed-Mach one (within the
+    # envelope's altitude grid, 20 ft, as for the jets); on the thrust boundaries the residual
+    # climb is the criterion, by the climb equation written here: (T - D) V / W x (T_ISA/T) x f
+    # with T = eta P / V (Anderson, Aircraft Performance and Design, secs. 3.3 and 5.11).
+    from variantcmp import aero, thrust
+    from variantcmp.envelope import EnvelopeCase, compute_envelopes
+
+    specs = [EnvelopeCase(v, e, w, dev) for v, e, w, dev in DEMO_PROPS]
+    env = compute_envelopes(demo, specs)
+    for case, spec in enumerate(specs):
+        summary = env.summary.row(case, named=True)
+        best = _demo_row(demo, spec.variant, spec.engine, spec.weight_kg, spec.isa_dev_c, "best")
+        cruise = _demo_row(demo, spec.variant, spec.engine, spec.weight_kg, spec.isa_dev_c, "cruise")
+        assert summary["top_ft"] == pytest.approx(best["max_altitude_ft"], abs=20.0)
+        assert best["limit"] in summary["top_limit"]
+        if cruise["max_altitude_ft"] is not None:
+            assert summary["marked_top_ft"] == pytest.approx(cruise["max_altitude_ft"], abs=20.0)
+        v, e = demo.variants[spec.variant], demo.engines[spec.engine]
+        eff = thrust.PropellerEfficiency(e.propeller_efficiency, e.propeller_efficiency_mach, e.propeller_efficiency_table)
+        checked = 0
+        for side in ("min", "max"):
+            t = env.table.filter((pl.col("case") == case) & pl.col(f"thrust_{side}_mach").is_not_null())
+            for alt_ft, mach in zip(t["altitude_ft"].to_list(), t[f"thrust_{side}_mach"].to_list()):
+                p, t_isa, r = isa(alt_ft * FT)
+                temp = t_isa + spec.isa_dev_c
+                rho_isa = p / (r * t_isa)  # flat rated (both demo engines): power sees the ISA day
+                power = 2 * e.shaft_power_kw * 1e3 * (rho_isa / (101_325.0 / (r * 288.15))) ** e.lapse_exponent
+                power *= max(1.0 - e.hot_day_loss_per_c * max(spec.isa_dev_c - e.flat_rate_isa_dev_c, 0.0), 0.0)
+                speed = mach * math.sqrt(GAMMA * r * temp)
+                q_s = 0.5 * GAMMA * p * mach**2 * v.wing_area_m2
+                w = spec.weight_kg * G0
+                cl = w / q_s
+                cd = v.cd0 + v.k * cl**2 + aero.wave_drag_coefficient(mach, cl, v.thickness_ratio, v.sweep_deg,
+                                                                      v.korn_factor)
+                lapse = -0.0065 if alt_ft * FT < 11_000.0 else 0.0
+                share = aero.energy_share_factor(mach, temp, t_isa, lapse)
+                rate = (float(eff(mach)) * power / speed - q_s * cd) * speed / w * (t_isa / temp) * share
+                assert rate / (FT / 60.0) == pytest.approx(300.0, abs=0.1)
+                checked += 1
+        assert checked > 10
+
+
+def test_demo_turboprop_sweeps_agree_with_ceilings(demo):
+    # Round trip: each sweep point is the ceilings table's answer at that weight, ISA deviation or
+    # Mach; the Mach sweep's highest point is the best speed's maximum altitude less at most what
+    # a 41-point grid misses (a few hundred ft), never more.
+    from variantcmp.sweeps import sweep
+
+    select = Conditions(variants=("t78",), engines=("tavish-20",))
+    sw = sweep(demo, select, "isa", points=5, value_range=(0.0, 40.0))
+    for row in sw.frame.iter_rows(named=True):
+        direct = _demo_row(demo, "t78", "tavish-20", row["weight_kg"], row["isa_dev_c"], "cruise")
+        assert row["max_altitude_ft"] == direct["max_altitude_ft"]
+    weights = sweep(demo, select, "weight", points=6).frame.sort("weight_kg")
+    assert np.all(np.diff(weights["max_altitude_ft"].drop_nulls().to_numpy()) <= 1e-6)  # heavier never higher
+    direct = _demo_row(demo, "t78", "tavish-20", weights["weight_kg"][-1], 0.0, "cruise")
+    assert weights["max_altitude_ft"][-1] == pytest.approx(direct["max_altitude_ft"], abs=1e-6)
+    machs = sweep(demo, select, "mach", points=41).frame
+    best = _demo_row(demo, "t78", "tavish-20", 25_000.0, 0.0, "best")
+    assert best["max_altitude_ft"] - 300.0 <= machs["max_altitude_ft"].max() <= best["max_altitude_ft"] + 20.0
+    peak = machs.filter(pl.col("max_altitude_ft") == pl.col("max_altitude_ft").max()).row(0, named=True)
+    assert peak["mach"] < demo.variants["t78"].cruise_mach  # the minimum-power region, slower than cruise
+
+
+@settings(max_examples=10, deadline=None)
+@given(st.sampled_from(["t72", "t78"]), st.sampled_from(["tavish-20", "tavish-24"]), st.floats(70.0, 98.0),
+       st.floats(2.0, 10.0), st.floats(-15.0, 35.0), st.floats(2.0, 15.0), st.sampled_from([0.0, 100.0, 300.0]))
+def test_demo_turboprops_fly_highest_slower_than_they_cruise(demo, variant, engine, w, dw, dev, ddev, climb):
+    # Trade facts (Anderson, Aircraft Performance and Design, ch. 5): a propeller aircraft's thrust
+    # ceiling peaks near its minimum-power speed, slower than it cruises; where thrust binds the
+    # maximum altitude, that is where it flies highest. Its best-speed ceiling falls with weight and
+    # with a warmer day (a few ft of slack: the search's tolerance on a flat optimum).
+    from variantcmp.table import solve
+
+    conditions = Conditions(weights=(WeightSpec(w, "%mtow"), WeightSpec(w + dw, "%mtow")), isa_devs_c=(dev, dev + ddev),
+                            mach="best", climb_fpm=(climb,), variants=(variant,), engines=(engine,))
+    cases, _, res = solve(demo, conditions)
+    cruise = demo.variants[variant].cruise_mach
+    known = np.isfinite(res.thrust_m)
+    assert known.any() and np.all(res.thrust_mach[known] < cruise)
+    thrust_binds = np.isfinite(res.max_altitude_m) & (res.limit == 0)
+    assert np.all(res.mach[thrust_binds] < cruise)
+    grid = {(cases.weight_kg[i], cases.isa_dev_c[i]): (res.thrust_m[i], res.max_altitude_m[i]) for i in range(len(cases))}
+    (light, heavy), (cool, hot) = sorted({k[0] for k in grid}), sorted({k[1] for k in grid})
+    for a, b in [((light, cool), (heavy, cool)), ((light, cool), (light, hot)), ((light, hot), (heavy, hot))]:
+        for high, low in zip(grid[a], grid[b]):
+            if np.isfinite(high) and np.isfinite(low):
+                assert low <= high + 5.0 * FT, (a, b)
