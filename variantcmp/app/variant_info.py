@@ -49,6 +49,10 @@ _GRID_FIELDS = ("table_altitude_ft", "table_mach", "table_thrust_fraction", "pro
                 "propeller_efficiency_table")
 
 
+# Engine values shown first: the model and its rating (thrust, or power and the propeller's efficiency).
+_ENGINE_FIRST = ("model", "static_thrust_kn", "shaft_power_kw", "propeller_efficiency")
+
+
 def _name_and_unit(key: str) -> tuple[str, str]:
     if key in FIGURE_LABELS:
         return FIGURE_LABELS[key][:2]
@@ -121,8 +125,10 @@ def engines_table(engines: list[Engine], per_engine: dict[str, dict]) -> Table:
     for engine in engines:
         table.add_column(engine.id, justify="right")
     names: list[str] = []
-    for engine in engines:  # derived figures first, then the catalogue values
-        for key in list(per_engine.get(engine.id, {})) + [f.name for f in fields(engine) if f.name != "id"]:
+    values = [f.name for f in fields(Engine) if f.name != "id"]
+    values = [k for k in _ENGINE_FIRST if k in values] + [k for k in values if k not in _ENGINE_FIRST + ("label",)]
+    for engine in engines:  # derived figures first, then the catalogue values (the label last: it wraps)
+        for key in list(per_engine.get(engine.id, {})) + values + ["label"]:
             if key not in names and key not in _GRID_FIELDS:
                 names.append(key)
     for key in names:
