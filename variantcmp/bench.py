@@ -49,20 +49,12 @@ def synthetic_fleet(seed: int = SEED) -> Catalogue:
                          hot_day_loss_per_c=0.007, table_altitude_ft=_TABLE_ALT_FT, table_mach=_TABLE_MACH,
                          table_thrust_fraction=fraction),
     }
-    variants = {}
-    for i in range(6):
-        wing = float(rng.uniform(70, 110))
-        with_buffet, with_wave = i % 2 == 0, i % 3 != 2
-        variants[f"syn-{i}"] = Variant(
-            f"syn-{i}", f"synthetic {i}", tuple(engines), 2, wing, float(rng.uniform(8, 10)),
-            float(rng.uniform(0.76, 0.84)), None, float(rng.uniform(0.019, 0.024)), float(rng.uniform(1.35, 1.6)),
-            float(wing * rng.uniform(480, 560)), 0.76, max_altitude_ft=float(rng.choice([39000.0, 41000.0])),
-            mmo=0.82, vmo_kt=320.0,
-            buffet_mach=(0.4, 0.6, 0.7, 0.76, 0.8, 0.84) if with_buffet else (),
-            buffet_cl=(1.15, 1.0, 0.85, 0.72, 0.63, 0.52) if with_buffet else (),
-            sweep_deg=26.0 if with_wave else None, thickness_ratio=0.115 if with_wave else None,
-            korn_factor=0.93 if with_wave else None,
-            max_cabin_dp_kpa=56.0 if i % 2 else None, cabin_altitude_ft=8000.0 if i % 2 else None)
+    variants = _synthetic_variants(
+        "syn-", "synthetic", engines, rng, 6, wing_m2=(70, 110), aspect=(8, 10), oswald=(0.76, 0.84), cd0=(0.019, 0.024),
+        cl_max=(1.35, 1.6), loading_kg_m2=(480, 560), cruise_mach=0.76,
+        certified_ft=lambda i: float(rng.choice([39000.0, 41000.0])), mmo=0.82, vmo_kt=320.0,
+        buffet=((0.4, 0.6, 0.7, 0.76, 0.8, 0.84), (1.15, 1.0, 0.85, 0.72, 0.63, 0.52)), wave=(26.0, 0.115, 0.93),
+        cabin_dp_kpa=56.0)
     return Catalogue(Path("<synthetic>"), "synthetic benchmark fleet", "invented, seeded", engines, variants)
 
 
@@ -80,22 +72,34 @@ def synthetic_turboprop_fleet(seed: int = SEED) -> Catalogue:
                            hot_day_loss_per_c=0.008, propeller_efficiency_mach=_ETA_MACH,
                            propeller_efficiency_table=tuple(e - 0.01 for e in _ETA)),
     }
-    variants = {}
-    for i in range(4):
-        wing = float(rng.uniform(52, 68))
-        with_buffet, with_wave = i % 2 == 0, i % 3 != 2
-        variants[f"syn-tp-{i}"] = Variant(
-            f"syn-tp-{i}", f"synthetic turboprop {i}", tuple(engines), 2, wing, float(rng.uniform(11, 13)),
-            float(rng.uniform(0.78, 0.84)), None, float(rng.uniform(0.023, 0.027)), float(rng.uniform(1.5, 1.7)),
-            float(wing * rng.uniform(340, 390)), 0.42, max_altitude_ft=25000.0 if i % 2 else None,
-            mmo=0.55, vmo_kt=250.0,
-            buffet_mach=(0.25, 0.35, 0.45, 0.5, 0.55, 0.6) if with_buffet else (),
-            buffet_cl=(1.35, 1.28, 1.18, 1.1, 1.0, 0.88) if with_buffet else (),
-            sweep_deg=3.0 if with_wave else None, thickness_ratio=0.16 if with_wave else None,
-            korn_factor=0.87 if with_wave else None,
-            max_cabin_dp_kpa=40.0 if i % 2 else None, cabin_altitude_ft=8000.0 if i % 2 else None)
+    variants = _synthetic_variants(
+        "syn-tp-", "synthetic turboprop", engines, rng, 4, wing_m2=(52, 68), aspect=(11, 13), oswald=(0.78, 0.84),
+        cd0=(0.023, 0.027), cl_max=(1.5, 1.7), loading_kg_m2=(340, 390), cruise_mach=0.42,
+        certified_ft=lambda i: 25000.0 if i % 2 else None, mmo=0.55, vmo_kt=250.0,
+        buffet=((0.25, 0.35, 0.45, 0.5, 0.55, 0.6), (1.35, 1.28, 1.18, 1.1, 1.0, 0.88)), wave=(3.0, 0.16, 0.87),
+        cabin_dp_kpa=40.0)
     return Catalogue(Path("<synthetic turboprops>"), "synthetic turboprop benchmark fleet", "invented, seeded", engines,
                      variants)
+
+
+def _synthetic_variants(prefix, label, engines, rng, count, *, wing_m2, aspect, oswald, cd0, cl_max, loading_kg_m2,
+                        cruise_mach, certified_ft, mmo, vmo_kt, buffet, wave, cabin_dp_kpa) -> dict[str, Variant]:
+    """``count`` twins offering every engine of ``engines``, their airframes drawn from the ranges
+    given (uniform, in this order); buffet data on every other one, wave drag (sweep, thickness,
+    Korn factor) on two in three, a cabin limit on the odd ones."""
+    variants = {}
+    for i in range(count):
+        wing = float(rng.uniform(*wing_m2))
+        with_buffet, with_wave = i % 2 == 0, i % 3 != 2
+        variants[f"{prefix}{i}"] = Variant(
+            f"{prefix}{i}", f"{label} {i}", tuple(engines), 2, wing, float(rng.uniform(*aspect)),
+            float(rng.uniform(*oswald)), None, float(rng.uniform(*cd0)), float(rng.uniform(*cl_max)),
+            float(wing * rng.uniform(*loading_kg_m2)), cruise_mach, max_altitude_ft=certified_ft(i), mmo=mmo,
+            vmo_kt=vmo_kt, buffet_mach=buffet[0] if with_buffet else (), buffet_cl=buffet[1] if with_buffet else (),
+            sweep_deg=wave[0] if with_wave else None, thickness_ratio=wave[1] if with_wave else None,
+            korn_factor=wave[2] if with_wave else None,
+            max_cabin_dp_kpa=cabin_dp_kpa if i % 2 else None, cabin_altitude_ft=8000.0 if i % 2 else None)
+    return variants
 
 
 def synthetic_cases(catalogue: Catalogue, n: int, mach="cruise", seed: int = SEED):
