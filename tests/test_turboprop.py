@@ -11,6 +11,7 @@ import math
 import numpy as np
 import polars as pl
 import pytest
+import tomli_w
 from ambiance import Atmosphere
 from hypothesis import given, settings
 from hypothesis import strategies as st
@@ -61,8 +62,8 @@ def pressure_altitude_for_density_m(rho, isa_dev_c):
     return brentq(gap, -1000.0, 40_000.0, xtol=1e-6)
 
 
-@pytest.mark.parametrize("weight_pct", [60.0, 80.0, 100.0])
-@pytest.mark.parametrize("isa_dev_c", [-15.0, 0.0, 20.0, 35.0])
+@pytest.mark.parametrize("weight_pct", [60.0, 70.0, 80.0, 100.0])
+@pytest.mark.parametrize("isa_dev_c", [-15.0, -10.0, 0.0, 20.0, 35.0])
 def test_best_speed_absolute_ceiling_is_at_minimum_power(power_lapse_cat, weight_pct, isa_dev_c):
     # Minimum power required with a parabolic polar: CL = sqrt(3 CD0 / K), CD = 4 CD0 (Anderson,
     # Aircraft Performance and Design, McGraw-Hill 1999, sec. 5.4), P_R = sqrt(2 W^3 / (rho S))
@@ -81,8 +82,11 @@ def test_best_speed_absolute_ceiling_is_at_minimum_power(power_lapse_cat, weight
     row = ceilings_table(power_lapse_cat, Conditions(weights=(WeightSpec(weight_pct, "%mtow"),), isa_devs_c=(isa_dev_c,),
                                                      mach="best", climb_fpm=(0.0,))).row(0, named=True)
     assert row["limit"] == "thrust"
-    assert row["max_altitude_ft"] * FT == pytest.approx(h_ref, abs=25.0 * FT)
-    assert row["thrust_ceiling_ft"] * FT == pytest.approx(h_ref, abs=25.0 * FT)
+    # The bound is 25 ft; the search does better: within 1 ft (measured 0.04 ft worst over
+    # 13 weights x 26 days), 70 %MTOW at ISA-10 included, 400 ft above the tropopause, where the
+    # speed climbing best at the layer base is not quite the speed of the best ceiling above it.
+    assert row["max_altitude_ft"] * FT == pytest.approx(h_ref, abs=1.0 * FT)
+    assert row["thrust_ceiling_ft"] * FT == pytest.approx(h_ref, abs=1.0 * FT)
     # Flown at the minimum-power CL (the optimum is flat in speed: a few % on CL).
     p, t, _ = isa(row["max_altitude_ft"] * FT)
     cl = w / (0.5 * GAMMA * p * row["mach"] ** 2 * s)
@@ -376,3 +380,38 @@ def test_demo_turboprops_fly_highest_slower_than_they_cruise(demo, variant, engi
         for high, low in zip(grid[a], grid[b]):
             if np.isfinite(high) and np.isfinite(low):
                 assert low <= high + 5.0 * FT, (a, b)
+
+
+_TABLE_ETA = {"propeller_efficiency_mach": [0.2, 0.5], "propeller_efficiency_table": [0.7, 0.8]}
+
+
+@pytest.mark.parametrize("change, fragment", [
+    ({"shaft_power_kw": 2_000_000.0}, '"p1".shaft_power_kw: expected shaft power per engine, sea level, static, '
+                                      "ISA, at the climb/cruise rating, in kW, greater than 0 and at most 20,000; got 2,000,000"),
+    ({"propeller_efficiency": 82.0}, '"p1".propeller_efficiency: expected the propeller efficiency (thrust power / shaft '
+                                     "power), at least 0.3 and at most 0.95; got 82"),
+    ({"propeller_efficiency": None, **_TABLE_ETA, "propeller_efficiency_mach": [0.5, 0.2]},
+     '"p1".propeller_efficiency_mach[1]: expected Mach numbers in strictly increasing order, got 0.2 after 0.5'),
+    ({"propeller_efficiency": None, **_TABLE_ETA, "propeller_efficiency_table": [0.7, 1.3]},
+     '"p1".propeller_efficiency_table[1]: expected propeller efficiencies (thrust power / shaft power), greater than 0 '
+     "and at most 0.95; got 1.3"),
+    ({"propeller_efficiency": None, "propeller_efficiency_mach": [0.2, 0.5]},
+     '"p1".propeller_efficiency_table: missing: the propeller efficiency against Mach needs propeller_efficiency_mach, '
+     "propeller_efficiency_table together"),
+    ({"propeller_efficiency": None, **_TABLE_ETA, "propeller_efficiency_mach": [0.2, 1.2]},
+     '"p1".propeller_efficiency_mach[1]: expected Mach numbers below 1: the models are subsonic; got 1.2'),
+    ({"rating_fraction": 0.9}, '"p1".rating_fraction: not used by model "turboprop"'),
+    ({"throttle_ratio": 1.05}, '"p1".throttle_ratio: not used by model "turboprop"; it belongs to model \'turbofan\''),
+])
+def test_a_broken_turboprop_gets_one_clear_message_with_its_key_path(tmp_path, capsys, change, fragment):
+    # The project's rule for errors users can cause: one message naming the file, the key path and
+    # what is expected, exit status 2, no traceback (no external source: the catalogue format).
+    from variantcmp.cli import main
+
+    engine = {k: val for k, val in dict(turboprop_spec(), **change).items() if val is not None}
+    path = tmp_path / "broken.toml"
+    path.write_text(tomli_w.dumps({"catalogue": {"title": "t"}, "engine": [engine], "variant": [
+        variant_spec(engine_options=["p1"], **AIRFRAME)]}))
+    assert main(["ceilings", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert f"{path}: engine[0] {fragment}" in err and "Traceback" not in err

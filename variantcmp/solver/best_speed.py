@@ -49,9 +49,10 @@ aerodynamic and thrust limits wins (:func:`~variantcmp.solver.results.score`).
 
 Accuracy, against dense Mach scans (161 fixed-Mach solves per case, then 41 around the best;
 ``tests/test_best_speed.py``): on 3,000 benchmark cases of each of three seeds (default, 7, 11)
-the worst case was 0.12 ft low for the jets, 0.15 ft for the turboprops (their thrust column
-0.27 ft); on the two bundled fleets (every pair x 8 weights 0.5-1.05 MTOW x ISA-15 to +45 every
-10 C x 0, 100, 300 and 500 ft/min) 0.005 ft for the jets, 0.05 ft for the turboprops. On a reviewer's stress catalogue
+the worst case was 0.003 ft low for the jets (0.12 ft before the joint search above a layer base:
+:mod:`~variantcmp.solver.thrust_best`), 0.15 ft for the turboprops (their thrust column 0.27 ft);
+on the two bundled fleets (every pair x 8 weights 0.5-1.05 MTOW x ISA-15 to +45 every 10 C x 0,
+100, 300 and 500 ft/min) 0.005 ft for the jets, 0.05 ft for the turboprops. On a reviewer's stress catalogue
 (MMO 0.70 with VMO 210 kt, four buffet peaks, three engine models, 0.35-1.3 MTOW, up to 800
 ft/min) 26 of 810 cases stayed more than 1 ft low, up to 192 ft, none without an answer (measured
 on the single-module solver these stages came from, whose answers they give to 0.004 ft, or

@@ -106,6 +106,20 @@ def nearest_kink_mach(phys, mach):
     return node
 
 
+def smooth_cell(phys, mach, low, high):
+    """Per case, [low, high] narrowed to the cell between the kink Machs (:func:`mach_kink_groups`)
+    around ``mach``: where the thrust ceiling is smooth in Mach (unchanged for smooth models)."""
+    low, high = np.array(low, dtype=float), np.array(high, dtype=float)
+    for machs, group in mach_kink_groups(phys):
+        m = mach[group]
+        j = np.searchsorted(machs, m, side="right")
+        below = machs[np.clip(j - 1, 0, machs.size - 1)]
+        above = machs[np.clip(j, 0, machs.size - 1)]
+        low[group] = np.where((j > 0) & (below > low[group]), below, low[group])
+        high[group] = np.where((j < machs.size) & (above < high[group]), above, high[group])
+    return low, high
+
+
 def turbofan_branch_mach(phys, altitude_m):
     """The Mach at which each turbofan case's lapse changes branch at an altitude: theta0 = TR,
     theta0 = (T/T0)(1 + (gamma-1)/2 M^2) (:func:`variantcmp.thrust.turbofan_lapse_fraction`; a
