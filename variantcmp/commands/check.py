@@ -42,7 +42,9 @@ def run(args) -> int:
     if out.is_terminal:
         out.print(f"[bold green]OK[/]{status[2:]}", highlight=False, soft_wrap=True)
     else:
-        print(textwrap.fill(status, out.width, break_long_words=False, break_on_hyphens=False))
+        # A path longer than the width is cut at it (as the summary's file row is): CI installs
+        # the package under a temporary folder whose path alone is 101 characters.
+        print(textwrap.fill(status, out.width, break_on_hyphens=False))
     output.print_caution(stderr=False)
     return options.EXIT_OK
 
