@@ -309,6 +309,17 @@ def parse_flight_level(text: str, option: str = "--target") -> float:
     return altitude_ft + 0.0
 
 
+def parse_flight_levels(text: str, option: str = "--target") -> list[float]:
+    """A comma list of levels, each as :func:`parse_flight_level`: "FL350,FL370", "37000ft,FL390"
+    (ft, in a list without a thousands separator); duplicates dropped."""
+    items = _items(text, option, "a comma list of flight levels or altitudes, e.g. FL350,FL370 or 37000ft")
+    for before, item in zip(items, items[1:]):  # "35,000ft" splits into "35" and "000ft"
+        if re.fullmatch(r"\d{3}(ft)?", item.lower()) and re.fullmatch(r"\d{1,3}", before):
+            raise OptionError(f"{option}: {shown(text)} looks like a number with a thousands separator; commas "
+                              "separate list items: write 35000ft or FL350")
+    return _dedupe([parse_flight_level(item, option) for item in items])
+
+
 def format_flight_level(altitude_ft: float | None) -> str:
     """37120 -> "FL371" (floor of ft/100, three digits); None/nan -> "—"."""
     if altitude_ft is None or not math.isfinite(altitude_ft):

@@ -15,7 +15,9 @@ coffin corner: thrust against buffet onset). The search is three stages:
    kink speed, each side is searched alone; where a neighbour is one, the piece beyond it too, up
    to the next point (a table's thrust can dip at a Mach column between two humps, and the
    higher hump's top lie on either side). Where the best kink speed lies outside the first
-   bracket (a peak on or next to a kink, on another hump), the same around it.
+   bracket (a peak on or next to a kink, on another hump), the same around it. And around up to
+   SCREENED samples elsewhere whose parabola with their neighbours peaks between them above the
+   best value found (:func:`_screened`: a hump whose top lies between samples, on another piece).
 3. *Refine*: Brent's search (:func:`~variantcmp.solver.finders.brent_max`) in every bracket, as
    one search on repeated cases, each stopping once its bracket is within MACH_TOL: at a crossing
    of two limits the objective's slope is not zero, so the Mach is found to 1e-7 there (a
@@ -37,6 +39,8 @@ from .limits import buffet_peak_mach
 GRID_SPEEDS = 12  # evenly spaced over the range: a step of about 0.06 Mach
 MACH_TOL = 1e-7  # Brent's search stops once its bracket is within this of its best point
 SEARCH_ITERATIONS = 48  # at most (golden-section steps at a crossing: 0.12 x 0.618^30 is 6e-8)
+SCREENED = 2  # humps between samples searched per case, besides the best point's
+SCREEN_MARGIN = 1e-9  # a vertex must beat the best value by this share of it (not rounding)
 
 
 def kink_speeds(phys, altitude_m, low, high) -> np.ndarray:
@@ -80,6 +84,7 @@ def best_speed_search(objective, low, high, kinks=None):
             apart = np.flatnonzero(np.isfinite(values[r, k]) & ((x_k < points[r, _neighbours(points, first)])
                                                                  | (x_k > points[r, _neighbours(points, first, True)])))
         brackets += _around(points, apart, k[apart])
+    brackets += _screened(points, values, first)
     who, start, start_values = _starts(objective, points, values, brackets)
     # Cases in order (each at most once per bracket), so that their thrust-model groups stay slices.
     order = np.argsort(who, kind="stable")
@@ -113,6 +118,40 @@ def _around(points, rows, at):
         beyond = _neighbours(p[far], side[far], up=up)
         out.append((rows[far], side[far], None, beyond) if up else (rows[far], beyond, None, side[far]))
     return [b for b in out if b[0].size]
+
+
+def _screened(points, values, first):
+    """Brackets (as :func:`_around`'s) around the samples, away from the best point, where the
+    parabola through a sample and its neighbours (never across a kink: the sample is not one)
+    peaks between them above the best value found: a smooth hump whose top lies between samples
+    (Brent's parabolic step; the screen of :func:`~variantcmp.solver.finders.parabola_peak`, at
+    every sample). At most SCREENED per case, the highest vertices first."""
+    n, width = points.shape
+    r = np.arange(n)
+    order = np.argsort(np.where(np.isfinite(points), points, np.inf), axis=1)
+    x, f = np.take_along_axis(points, order, axis=1), np.take_along_axis(values, order, axis=1)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        d0, d2 = x[:, :-2] - x[:, 1:-1], x[:, 2:] - x[:, 1:-1]
+        s0, s2 = (f[:, :-2] - f[:, 1:-1]) / d0, (f[:, 2:] - f[:, 1:-1]) / d2
+        curv = 2.0 * (s2 - s0) / (d2 - d0)
+        rise = s0 - 0.5 * curv * d0
+        t = -rise / curv
+        vertex = np.where((curv < 0.0) & (t > d0) & (t < d2), f[:, 1:-1] + 0.5 * rise * t, -np.inf)
+    middle = order[:, 1:-1]
+    near = (middle == first[:, None]) | (order[:, :-2] == first[:, None]) | (order[:, 2:] == first[:, None])
+    vertex = np.where((middle < GRID_SPEEDS) & ~near & np.isfinite(vertex), vertex, -np.inf)
+    vertex = np.where(vertex > values[r, first][:, None] + SCREEN_MARGIN * np.abs(values[r, first])[:, None], vertex,
+                      -np.inf)
+    out = []
+    for rank in range(min(SCREENED, vertex.shape[1])):
+        j = np.argmax(vertex, axis=1)
+        rows = np.flatnonzero(np.isfinite(vertex[r, j]))
+        if rows.size == 0:
+            break
+        jj = j[rows]
+        out.append((rows, order[rows, jj], order[rows, jj + 1], order[rows, jj + 2]))
+        vertex[rows, jj] = -np.inf
+    return out
 
 
 def _starts(objective, points, values, brackets):
