@@ -76,8 +76,10 @@ def level_caption(conditions, climb_labels, targets, best_words: str) -> str:
 
 
 def tonnes(values) -> list[str]:
-    """kg -> t with one decimal, rounded down (a heaviest weight is never overstated); — for none."""
-    return ["—" if v is None or not math.isfinite(v) else f"{math.floor(v / 100.0) / 10.0:,.1f}" for v in values]
+    """kg -> t with one decimal, rounded down after rounding to the export's 0.1 kg (a heaviest
+    weight is never overstated, and reads as its export does); — for none."""
+    return ["—" if v is None or not math.isfinite(v) else f"{math.floor(round(v, 1) / 100.0) / 10.0:,.1f}"
+            for v in values]
 
 
 def heaviest_text_table(conditions, frame) -> TextTable:

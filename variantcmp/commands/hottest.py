@@ -71,7 +71,7 @@ def warmest(values) -> list[str]:
         if v is None or not math.isfinite(v):
             out.append("—")
             continue
-        tenths = math.floor(v * 10.0 + 1e-9) / 10.0
+        tenths = math.floor(round(v, 2) * 10.0) / 10.0  # after the export's 0.01 deg C, as altitudes
         out.append("ISA" if tenths == 0 else f"ISA{tenths:+.1f}")
     return out
 
@@ -94,7 +94,7 @@ def hottest_text_table(conditions, frame) -> TextTable:
         "target": [format_flight_level(t) for t in get("target_ft").to_list()],
         "mach": [format_mach(float_or_none(m)) for m in get("mach").to_list()],
         "warmest": warmest(get("max_isa_dev_c").to_list()),
-        "oat": ["—" if t is None else f"{math.floor(t * 10.0) / 10.0:+.1f}" for t in get("level_oat_c").to_list()],
+        "oat": ["—" if t is None else f"{math.floor(round(t, 2) * 10.0) / 10.0:+.1f}" for t in get("level_oat_c").to_list()],
         "limit": [lim or "—" for lim in get("limit").to_list()],
     }
     notes = [n or "" for n in get("note").to_list()]
