@@ -57,7 +57,8 @@ def test_exports_keep_the_stated_precision(capsys):
                     assert len(value.split(".")[1]) <= decimals[name], (name, value)
 
 
-def test_the_readable_tables_show_levels_tonnes_mtow_and_the_caution(capsys):
+def test_the_readable_tables_show_levels_tonnes_mtow_and_the_caution(capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "200")  # piped output as wide as COLUMNS says
     status, out, err = run(capsys, "heaviest", "--target", "FL350,FL410", "--isa", "ISA+15")
     assert status == 0, err
     assert "FL350" in out and "FL410" in out and "Heaviest" in out and "MTOW" in out and "ISA+15" in out
@@ -69,7 +70,8 @@ def test_the_readable_tables_show_levels_tonnes_mtow_and_the_caution(capsys):
     assert "nan" not in out and "inf" not in out
 
 
-def test_the_readable_weight_is_rounded_down_never_up(capsys):
+def test_the_readable_weight_is_rounded_down_never_up(capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "200")
     # A heaviest weight shown must never be more than the computed one (like altitudes).
     status, out, _ = run(capsys, "heaviest", "--target", "FL370", "--variant", "v88", "--engine", "ossel-78",
                          "--format", "csv")
