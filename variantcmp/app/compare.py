@@ -46,7 +46,7 @@ class CompareScreen(HoldsKeys, Screen):
         Binding("B", "baseline_match", "Baseline weight", show=False,
                 tooltip="compare with the baseline at the same %MTOW or at the same kg, in turn"),
         Binding("i", "inspect", "Inspect", show=False),  # enter on a row does it too
-        Binding("h", "hot_day", "Hot day"),
+        Binding("h", "planner", "Planner", tooltip="the heaviest weight and the warmest day for a target level"),
         Binding("m", "mark", "Mark", tooltip=f"mark or unmark the row for the envelope overlay, up to {MAX_MARKED}"),
         Binding("M", "clear_marks", "Clear marks", show=False, tooltip="unmark every row"),
         Binding("v", "envelope", "Envelope", group=_DRAW,
@@ -376,8 +376,8 @@ class CompareScreen(HoldsKeys, Screen):
         if row is not None:
             self.app.inspect_variant(row["variant"])
 
-    def action_hot_day(self) -> None:
-        self.app.switch_mode("hotday")
+    def action_planner(self) -> None:
+        self.app.switch_mode("planner")
 
     def action_export(self) -> None:
         if self.view_df is not None:

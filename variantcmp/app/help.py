@@ -103,7 +103,7 @@ def help_renderable() -> Group:
     from .compare import CompareScreen
     from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
     from .envelope_screen import EnvelopeScreen
-    from .hotday import HotDayScreen
+    from .hotday import PlannerScreen
     from .open_dialog import OpenDialog
     from .sweep_screen import SweepScreen
     from .variant_info import VariantScreen
@@ -111,7 +111,7 @@ def help_renderable() -> Group:
     parts = [Text(CAUTION, style="bold"), Text("")]
     for title, cls in (
         ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
-        ("Hot-day check", HotDayScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
+        ("Planner", PlannerScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),
         ("Export dialog", ExportDialog), ("Overwrite?", ConfirmDialog),
