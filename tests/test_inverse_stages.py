@@ -19,7 +19,7 @@ from variantcmp.solver.heaviest import heaviest_fixed_mach, objective, solve_hea
 from variantcmp.solver.hottest import SCAN_DAYS_C, hottest_fixed_mach, solve_hottest
 from variantcmp.solver.level import HOLDS_AT_WARMEST, NOT_MONOTONE, lift_limited_weights_n, speed_range_at_level
 from variantcmp.solver.limits import closed_form_ceilings_m
-from variantcmp.solver.speed_search import best_speed_search
+from variantcmp.solver.speed_search import MACH_TOL, best_speed_search
 from variantcmp.table import Conditions, ceilings_table
 from variantcmp.units import WeightSpec
 
@@ -153,7 +153,7 @@ def test_the_speed_search_matches_scipy_where_it_applies():
             else [(0.2, 0.85)]
         ref = max(-minimize_scalar(lambda m: -one(np.array([0]), np.array([m]))[0], bounds=piece, method="bounded",
                                    options={"xatol": 1e-9}).fun for piece in pieces)
-        assert fx[i] >= ref - 1e-6, (i, kind[i], a[i], b[i], x[i])
+        assert fx[i] >= ref - 10.0 * MACH_TOL, (i, kind[i], a[i], b[i], x[i])  # slopes up to 5 at a crossing
         assert fx[i] == pytest.approx(f(np.array([i]), x[i:i + 1])[0])
 
 

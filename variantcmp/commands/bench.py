@@ -10,6 +10,11 @@ from . import options, output
 from .output import Column, TextTable
 
 
+INVERSE_ROWS = (("heaviest", "heaviest weight for a level, fixed Mach"), ("hottest", "warmest day for a level, fixed Mach"),
+                ("heaviest_best", "heaviest weight for a level, best speed"),
+                ("hottest_best", "warmest day for a level, best speed"))
+
+
 def _positive_int(text: str) -> int:
     try:
         value = int(text.replace("_", "").replace(",", ""))
@@ -25,7 +30,8 @@ def add(subparsers) -> None:
         subparsers, "bench", help="time the ceiling solver on a synthetic fleet grid",
         description="Time the vectorised ceiling solver on a seeded synthetic fleet: fixed-Mach and best-speed "
                     "maximum altitudes, a scalar one-case-at-a-time reference on a subsample (also a "
-                    "correctness check), and the demo fleet's interactive grid.")
+                    "correctness check), the demo fleet's interactive grid, and the heaviest weight and the "
+                    "warmest day for a level at a fixed Mach and at the best speed.")
     p.add_argument("--cases", action=options.Once, type=_positive_int, default=1_000_000,
                    help="fixed-Mach cases (default 1,000,000)")
     p.add_argument("--best-cases", action=options.Once, type=_positive_int, default=100_000,
@@ -50,7 +56,7 @@ def run(args) -> int:
          f["scalar_cases"] / f["scalar_cases_per_s"], f["scalar_cases_per_s"]),
         ("demo fleet interactive grid (9 weights x 7 days x 3 climbs)", f["grid_cases"], f["grid_ms"] / 1000,
          f["grid_cases"] / f["grid_ms"] * 1000),
-    ]
+    ] + [(words, f[f"{key}_cases"], f[f"{key}_seconds"], f[f"{key}_cases_per_s"]) for key, words in INVERSE_ROWS]
     columns = [Column("work", "Workload", "left"), Column("cases", "Cases"), Column("s", "Seconds"),
                Column("rate", "Cases/s")]
     cells = {"work": [r[0] for r in rows], "cases": [f"{r[1]:,}" for r in rows],
@@ -61,6 +67,8 @@ def run(args) -> int:
         f"speed-up of the vectorised solver over the scalar loop: {f['speedup']:,.0f}x per case",
         f"largest vectorised - scalar difference: {diff}; cases where only one finds an altitude: "
         f"{f['scalar_mismatched_cases']}",
+        "heaviest weight put back into the ceilings solver: largest difference from the level "
+        + ("n/a" if f["heaviest_round_trip_max_ft"] is None else f"{f['heaviest_round_trip_max_ft']:.4f} ft"),
         f"demo grid: {f['grid_ms']:.1f} ms; peak memory {f['peak_rss_mb']:,.0f} MB "
         f"(largest worker process {f['peak_rss_worker_mb']:,.0f} MB)"])
     output.print_caution(stderr=False)

@@ -73,9 +73,7 @@ class Heaviest(PerCase):
     co_limit: np.ndarray
     flags: np.ndarray
 
-    @classmethod
-    def empty(cls) -> "Heaviest":
-        return cls(*(np.empty(0) for _ in range(5)), np.empty(0, np.int8), np.empty(0, np.int8), np.empty(0, np.int32))
+    SMALL = {"limit": np.int8, "co_limit": np.int8, "flags": np.int32}
 
 
 class LevelExcess:
@@ -209,6 +207,6 @@ def heaviest_best_speed(cases: CaseSet, altitude_m) -> Heaviest:
     return res
 
 
-def solve_heaviest(cases: CaseSet, altitude_m) -> Heaviest:
+def solve_heaviest(cases: CaseSet, altitude_m, processes: int | None = None) -> Heaviest:
     """The heaviest weight for each case's level (fixed Mach, or best speed where the Mach is NaN)."""
-    return solve_by_level(cases, altitude_m, heaviest_fixed_mach, heaviest_best_speed, Heaviest.empty)
+    return solve_by_level(cases, altitude_m, heaviest_fixed_mach, heaviest_best_speed, Heaviest, processes)

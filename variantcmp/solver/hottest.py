@@ -69,10 +69,7 @@ class Hottest(PerCase):
     flags: np.ndarray
     holds_again_c: np.ndarray
 
-    @classmethod
-    def empty(cls) -> "Hottest":
-        return cls(np.empty(0), np.empty(0), np.empty(0, np.int8), np.empty(0, np.int8), np.empty(0, np.int32),
-                   np.empty(0))
+    SMALL = {"limit": np.int8, "co_limit": np.int8, "flags": np.int32}
 
 
 class DayExcess:
@@ -206,6 +203,6 @@ def hottest_best_speed(cases: CaseSet, altitude_m) -> Hottest:
     return res
 
 
-def solve_hottest(cases: CaseSet, altitude_m) -> Hottest:
+def solve_hottest(cases: CaseSet, altitude_m, processes: int | None = None) -> Hottest:
     """The warmest day for each case's level and weight (fixed Mach, or best speed where the Mach is NaN)."""
-    return solve_by_level(cases, altitude_m, hottest_fixed_mach, hottest_best_speed, Hottest.empty)
+    return solve_by_level(cases, altitude_m, hottest_fixed_mach, hottest_best_speed, Hottest, processes)
