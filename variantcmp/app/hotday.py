@@ -21,14 +21,16 @@ from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
 from .planner_view import DEFAULT_SORT, PLANNER_BY_KEY, planner_cell, visible_planner_columns
 from .results import Results, compute_planner, export_frame
+from .sorting import SortCycle
 from .view import ROW_KEY, header, justify, sort_rows
 from .widgets import CautionBanner, FittingFooter, TextEntry
 
 LOOKUP_FIELDS = ("weight", "isa", "target")
 
 
-class PlannerScreen(HoldsKeys, Screen):
+class PlannerScreen(SortCycle, HoldsKeys, Screen):
     PICTURE_NAME = "planner"  # in the name of a saved SVG (f2)
+    FIRST_SORT = "makes"
     BINDINGS = [
         Binding("escape", "compare", "Compare"),
         Binding("c", "focus_fields", "Fields"),
@@ -172,38 +174,20 @@ class PlannerScreen(HoldsKeys, Screen):
 
     @on(DataTable.HeaderSelected)
     def header_selected(self, event: DataTable.HeaderSelected) -> None:
-        key = event.column_key.value
-        if key == self.sort_key:
-            self.descending = not self.descending
-        else:
-            self.sort_key, self.descending = key, PLANNER_BY_KEY[key].high_first
-        self._rerender()
+        self.sort_by(event.column_key.value)
 
     def _rerender(self) -> None:
         if self.results is not None:
             self.render_table(self.results.conditions)
 
-    def _sort_step(self, step: int) -> None:
-        if self.results is None:
-            return
-        cycle: list[str | None] = [c.key for c in visible_planner_columns(self.results.conditions)]
-        start = cycle.index("makes")
-        cycle = cycle[start:] + cycle[:start] + [None]  # ends with catalogue order
-        position = cycle.index(self.sort_key) if self.sort_key in cycle else len(cycle) - 1
-        self.sort_key = cycle[(position + step) % len(cycle)]
-        self.descending = bool(self.sort_key and PLANNER_BY_KEY[self.sort_key].high_first)
+    def sort_columns(self) -> list:
+        return [] if self.results is None else visible_planner_columns(self.results.conditions)
+
+    def sort_column(self, key: str):
+        return PLANNER_BY_KEY[key]
+
+    def render_sorted(self) -> None:
         self._rerender()
-
-    def action_sort_next(self) -> None:
-        self._sort_step(1)
-
-    def action_sort_previous(self) -> None:
-        self._sort_step(-1)
-
-    def action_reverse_sort(self) -> None:
-        if self.sort_key is not None:
-            self.descending = not self.descending
-            self._rerender()
 
     def action_compare(self) -> None:
         if isinstance(self.focused, Input):

@@ -26,38 +26,54 @@ FOOTER = ("Weights in t, rounded down; — = no weight reaches the level (see th
 
 
 def add(subparsers) -> None:
-    p = options.add_command(
-        subparsers, "heaviest",
+    add_level_command(
+        subparsers, "heaviest", run,
         help="heaviest weight that reaches each target level, per variant x engine x ISA deviation",
         description="Compute the heaviest weight at which each target level is within every limit (thrust at the "
                     "required residual rate of climb, buffet margin, stall, certified ceiling, cabin pressure, "
                     "VMO and MMO) and the limit that binds there, for every variant x engine option x ISA "
                     "deviation x climb criterion.",
-        epilog=EPILOG)
-    options.add_catalogue_argument(p)
-    options.add_targets(p, "target levels: FL370, FL350,FL370 or 37000ft (required)")
-    options.add_selection(p)
-    options.add_conditions(p, weights=False)
-    options.add_format(p)
-    p.set_defaults(run=run)
+        epilog=EPILOG, target_help="target levels: FL370, FL350,FL370 or 37000ft (required)", weights=False)
 
 
 def run(args) -> int:
     from variantcmp.table import heaviest_table
 
-    conditions, climb_labels = options.conditions_from_args(args)  # bad options first: cheapest to fix
+    return run_level_command(args, heaviest_table, heaviest_text_table, "heaviest weight for each level",
+                             "the one that allows the most weight", FOOTER, DROP_FOR_WIDTH)
+
+
+def add_level_command(subparsers, name: str, run, help: str, description: str, epilog: str, target_help: str,
+                      weights: bool = True, isa: bool = True) -> None:
+    """A command that asks about target levels (``heaviest``, ``hottest``): the catalogue, --target,
+    the selection, the conditions and --format."""
+    p = options.add_command(subparsers, name, help=help, description=description, epilog=epilog)
+    options.add_catalogue_argument(p)
+    options.add_targets(p, target_help)
+    options.add_selection(p)
+    options.add_conditions(p, weights=weights, isa=isa)
+    options.add_format(p)
+    p.set_defaults(run=run)
+
+
+def run_level_command(args, table, text_table, title: str, best_words: str, footer: str, drop_for_width,
+                      check=None) -> int:
+    """Parse (the other options first: the cheapest to fix), load, solve with ``table(catalogue,
+    conditions, targets)`` and print: csv/json data, or ``text_table(conditions, frame)`` with the
+    caption, ``footer`` and the caution. ``check(args)`` runs after the options parse."""
+    conditions, climb_labels = options.conditions_from_args(args)
+    if check is not None:
+        check(args)
     targets = options.targets_from_args(args)
     catalogue = options.load(args.catalogue)
     conditions = options.selected(catalogue, conditions)
-    frame = heaviest_table(catalogue, conditions, targets)
+    frame = table(catalogue, conditions, targets)
     if args.format in ("csv", "json"):
         output.write_data(frame, args.format)
-    else:
-        table = heaviest_text_table(conditions, frame)
-        output.print_table(table, f"{catalogue.title}: heaviest weight for each level",
-                           [level_caption(conditions, climb_labels, targets, "the one that allows the most weight"),
-                            FOOTER], DROP_FOR_WIDTH)
-        output.print_caution(stderr=False)
+        return options.EXIT_OK
+    output.print_table(text_table(conditions, frame), f"{catalogue.title}: {title}",
+                       [level_caption(conditions, climb_labels, targets, best_words), footer], drop_for_width)
+    output.print_caution(stderr=False)
     return options.EXIT_OK
 
 
@@ -107,10 +123,4 @@ def heaviest_text_table(conditions, frame) -> TextTable:
         "buffet": tonnes(get("buffet_weight_kg").to_list()),
         "stall": tonnes(get("stall_weight_kg").to_list()),
     }
-    notes = [n or "" for n in get("note").to_list()]
-    if any(notes):
-        columns.append(Column("note", "Note", "left", wraps=True))
-        cells["note"] = notes
-    variants = cells["variant"]
-    return TextTable(columns, cells, [None] * len(variants),
-                     [i + 1 == len(variants) or variants[i + 1] != v for i, v in enumerate(variants)])
+    return output.fleet_table(columns, cells, frame, flag_weights=False)

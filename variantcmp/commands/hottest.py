@@ -6,8 +6,8 @@ import math
 
 from variantcmp.units import OptionError, format_flight_level, format_mach
 
-from . import options, output
-from .heaviest import level_caption
+from . import output
+from .heaviest import add_level_command, run_level_command
 from .output import Column, TextTable, float_or_none
 
 EPILOG = """\
@@ -26,42 +26,26 @@ FOOTER = ("Warmest day: the highest ISA deviation (deg C, rounded down) at which
 
 
 def add(subparsers) -> None:
-    p = options.add_command(
-        subparsers, "hottest",
+    add_level_command(
+        subparsers, "hottest", run,
         help="warmest day (ISA deviation) that still reaches each target level, per variant x engine x weight",
         description="Compute the warmest ISA deviation (searched from -40 to +50 deg C) at which each target level "
                     "is within every limit (thrust at the required residual rate of climb, buffet margin, stall, "
                     "certified ceiling, cabin pressure, VMO and MMO), for every variant x engine option x weight x "
                     "climb criterion.",
-        epilog=EPILOG)
-    options.add_catalogue_argument(p)
-    options.add_targets(p, "target levels: FL350, FL350,FL370 or 37000ft (required)")
-    options.add_selection(p)
-    options.add_conditions(p, isa=False)
-    options.add_format(p)
-    p.set_defaults(run=run)
+        epilog=EPILOG, target_help="target levels: FL350, FL350,FL370 or 37000ft (required)", isa=False)
 
 
 def run(args) -> int:
     from variantcmp.table import hottest_table
 
+    return run_level_command(args, hottest_table, hottest_text_table, "warmest day for each level",
+                             "the one that allows the warmest day", FOOTER, DROP_FOR_WIDTH, check=_weights_given)
+
+
+def _weights_given(args) -> None:
     if not args.weight:
-        raise OptionError("--weight: give the weight(s) to ask about, e.g. --weight 100%mtow or "
-                                  "--weight 44t,48t")
-    conditions, climb_labels = options.conditions_from_args(args)  # bad options first: cheapest to fix
-    targets = options.targets_from_args(args)
-    catalogue = options.load(args.catalogue)
-    conditions = options.selected(catalogue, conditions)
-    frame = hottest_table(catalogue, conditions, targets)
-    if args.format in ("csv", "json"):
-        output.write_data(frame, args.format)
-    else:
-        table = hottest_text_table(conditions, frame)
-        output.print_table(table, f"{catalogue.title}: warmest day for each level",
-                           [level_caption(conditions, climb_labels, targets, "the one that allows the warmest day"),
-                            FOOTER], DROP_FOR_WIDTH)
-        output.print_caution(stderr=False)
-    return options.EXIT_OK
+        raise OptionError("--weight: give the weight(s) to ask about, e.g. --weight 100%mtow or --weight 44t,48t")
 
 
 def warmest(values) -> list[str]:
@@ -97,11 +81,4 @@ def hottest_text_table(conditions, frame) -> TextTable:
         "oat": ["—" if t is None else f"{math.floor(round(t, 2) * 10.0) / 10.0:+.1f}" for t in get("level_oat_c").to_list()],
         "limit": [lim or "—" for lim in get("limit").to_list()],
     }
-    notes = [n or "" for n in get("note").to_list()]
-    if any(notes):
-        columns.append(Column("note", "Note", "left", wraps=True))
-        cells["note"] = notes
-    variants = cells["variant"]
-    flagged = [bool(o) or bool(b) for o, b in zip(get("over_mtow").to_list(), get("below_empty_weight").to_list())]
-    return TextTable(columns, cells, ["yellow" if f else None for f in flagged],
-                     [i + 1 == len(variants) or variants[i + 1] != v for i, v in enumerate(variants)])
+    return output.fleet_table(columns, cells, frame)

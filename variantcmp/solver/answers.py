@@ -26,9 +26,19 @@ from .physics import group_key
 
 
 class PerCase:
-    """Mixin for dataclasses whose fields are all per-case arrays (``SMALL``: the integer ones)."""
+    """Mixin for dataclasses whose fields are all per-case arrays (``SMALL``: the integer ones),
+    an answer's (``VALUE``, NaN where none) with its ``limit`` and ``co_limit``."""
 
     SMALL: dict = {}
+    VALUE = ""
+
+    def blank(self, rows) -> None:
+        """No answer for the cases ``rows`` (their flags kept)."""
+        getattr(self, self.VALUE)[rows] = np.nan
+        self.limit[rows], self.co_limit[rows] = -1, -1
+
+    def answered(self) -> np.ndarray:
+        return np.isfinite(getattr(self, self.VALUE))
 
     def take(self, index):
         return type(self)(**{f.name: getattr(self, f.name)[index] for f in dataclasses.fields(self)})

@@ -47,11 +47,11 @@ from ..atmosphere import G0
 from ..cases import CaseSet
 from .answers import PerCase, solve_by_level
 from .finders import illinois_root, nan_as_lowest
-from .level import (CLIMBS_ABOVE, EVERY_SPEED, LEVEL_BLOCKS, buffet_data_flags, climbs_past_level, level_flags,
-                    lift_limited_weights_n, speed_range_at_level, thrust_data_flags)
+from .level import (CLIMBS_ABOVE, LEVEL_BLOCKS, buffet_data_flags, climbs_past_level, level_flags,
+                    lift_limited_weights_n, thrust_data_flags)
 from .physics import ClimbPhysics
-from .results import BELOW_VMO_FLOOR, CANNOT_CLIMB, LIMITS
-from .speed_search import best_speed_search, kink_speeds
+from .results import CANNOT_CLIMB, LIMITS
+from .speed_search import best_speed_at_level
 
 WEIGHT_TOL_N = 0.01  # the thrust root in weight: about 1 g
 CO_LIMIT_FRACTION = 1.5e-3  # a second limit this close binds too (about 10 m of ceiling: dh = -H dW/W)
@@ -74,6 +74,7 @@ class Heaviest(PerCase):
     flags: np.ndarray
 
     SMALL = {"limit": np.int8, "co_limit": np.int8, "flags": np.int32}
+    VALUE = "weight_kg"
 
 
 class LevelExcess:
@@ -189,22 +190,11 @@ class WeightAtSpeed:
 
 def heaviest_best_speed(cases: CaseSet, altitude_m) -> Heaviest:
     """The heaviest weight over the speeds that can fly the level (module docstring)."""
-    h = np.asarray(altitude_m, dtype=float)
-    low, high = speed_range_at_level(cases, h)
-    every = level_flags(cases, h, low) & EVERY_SPEED
-    search = np.flatnonzero((every == 0) & (low <= high))
-    mach = low.copy()
-    if search.size:
-        phys = ClimbPhysics(cases).subset(search)
-        mach[search], _ = best_speed_search(WeightAtSpeed(phys, h[search]), low[search], high[search],
-                                            kink_speeds(phys, h[search], low[search], high[search]))
-    res = heaviest_fixed_mach(cases, h, mach)
-    # No speed at all: every one exceeds VMO (or MMO) at the level.
-    none = (every == 0) & (low > high)
-    res.flags[none] |= BELOW_VMO_FLOOR
-    res.weight_kg[none], res.limit[none], res.co_limit[none] = np.nan, -1, -1
-    res.mach[np.isnan(res.weight_kg)] = np.nan
-    return res
+    def objective(sub, h):
+        phys = ClimbPhysics(sub)
+        return WeightAtSpeed(phys, h), phys
+
+    return best_speed_at_level(cases, altitude_m, objective, heaviest_fixed_mach)
 
 
 def solve_heaviest(cases: CaseSet, altitude_m, processes: int | None = None) -> Heaviest:

@@ -42,12 +42,11 @@ from ..cases import CaseSet
 from .answers import PerCase, solve_by_level
 from .finders import illinois_root
 from .heaviest import BUFFET, CO_LIMIT_FRACTION, STALL, THRUST
-from .level import (BUFFET_BELOW, CLIMBS_ABOVE, EVERY_SPEED, FAILS_AT_COLDEST, HOLDS_AT_WARMEST, LEVEL_BLOCKS,
-                    NOT_MONOTONE, STALL_BELOW, buffet_data_flags, climbs_past_level, level_flags, lift_limited_weights_n,
-                    speed_range_at_level, thrust_data_flags)
+from .level import (BUFFET_BELOW, CLIMBS_ABOVE, FAILS_AT_COLDEST, HOLDS_AT_WARMEST, LEVEL_BLOCKS, NOT_MONOTONE,
+                    STALL_BELOW, buffet_data_flags, climbs_past_level, level_flags, lift_limited_weights_n,
+                    thrust_data_flags)
 from .physics import ClimbPhysics
-from .results import BELOW_VMO_FLOOR
-from .speed_search import best_speed_search, kink_speeds
+from .speed_search import best_speed_at_level
 
 DAY_LOW_C, DAY_HIGH_C = -40.0, 50.0  # the days searched
 SCAN_DAYS_C = np.arange(DAY_LOW_C, DAY_HIGH_C + 1.0, 10.0)  # a crossing narrower than 10 C between them is not seen
@@ -70,6 +69,7 @@ class Hottest(PerCase):
     holds_again_c: np.ndarray
 
     SMALL = {"limit": np.int8, "co_limit": np.int8, "flags": np.int32}
+    VALUE = "isa_dev_c"
 
 
 class DayExcess:
@@ -186,21 +186,8 @@ def day_objective(cases: CaseSet, altitude_m, mach):
 
 def hottest_best_speed(cases: CaseSet, altitude_m) -> Hottest:
     """The warmest day over the speeds that can fly the level (module docstring)."""
-    h = np.asarray(altitude_m, dtype=float)
-    low, high = speed_range_at_level(cases, h)
-    every = level_flags(cases, h, low) & EVERY_SPEED
-    search = np.flatnonzero((every == 0) & (low <= high))
-    mach = low.copy()
-    if search.size:
-        sub = cases.take(search)
-        mach[search], _ = best_speed_search(DayAtSpeed(sub, h[search]), low[search], high[search],
-                                            kink_speeds(ClimbPhysics(sub), h[search], low[search], high[search]))
-    res = hottest_fixed_mach(cases, h, mach)
-    none = (every == 0) & (low > high)
-    res.flags[none] |= BELOW_VMO_FLOOR
-    res.isa_dev_c[none], res.limit[none], res.co_limit[none] = np.nan, -1, -1
-    res.mach[np.isnan(res.isa_dev_c)] = np.nan
-    return res
+    return best_speed_at_level(cases, altitude_m, lambda sub, h: (DayAtSpeed(sub, h), ClimbPhysics(sub)),
+                               hottest_fixed_mach)
 
 
 def solve_hottest(cases: CaseSet, altitude_m, processes: int | None = None) -> Hottest:

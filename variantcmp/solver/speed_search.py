@@ -34,7 +34,9 @@ import numpy as np
 
 from .finders import brent_max, nan_as_lowest
 from .kinks import table_machs, turbofan_branch_mach
+from .level import EVERY_SPEED, level_flags, speed_range_at_level
 from .limits import buffet_peak_mach
+from .results import BELOW_VMO_FLOOR
 
 GRID_SPEEDS = 12  # evenly spaced over the range: a step of about 0.06 Mach
 MACH_TOL = 1e-6  # Brent's search stops once its bracket is within this of its best point
@@ -59,6 +61,31 @@ def kink_speeds(phys, altitude_m, low, high) -> np.ndarray:
     out[:, width + 1] = buffet_peak_mach(cs, low, high)
     with np.errstate(invalid="ignore"):
         return np.where((out > low[:, None]) & (out < high[:, None]), out, np.nan)
+
+
+def best_speed_at_level(cases, altitude_m, objective_for, fixed):
+    """An answer at the best speed per case: the search of the module docstring over the speeds
+    that can fly each level (:func:`~variantcmp.solver.level.speed_range_at_level`; none where a
+    limit blocks the level at every speed), then ``fixed(cases, altitude_m, mach)`` at the speed
+    found, so that the answer is one fixed-Mach answer. ``objective_for(cases, altitude_m)``: the
+    objective and the physics (for the kink speeds) of the cases searched. Where no speed at all
+    can fly the level (every one over VMO there) BELOW_VMO_FLOOR and no answer; no Mach where
+    there is no answer."""
+    h = np.asarray(altitude_m, dtype=float)
+    low, high = speed_range_at_level(cases, h)
+    every = level_flags(cases, h, low) & EVERY_SPEED
+    search = np.flatnonzero((every == 0) & (low <= high))
+    mach = low.copy()
+    if search.size:
+        objective, phys = objective_for(cases.take(search), h[search])
+        mach[search], _ = best_speed_search(objective, low[search], high[search],
+                                            kink_speeds(phys, h[search], low[search], high[search]))
+    res = fixed(cases, h, mach)
+    none = (every == 0) & (low > high)
+    res.flags[none] |= BELOW_VMO_FLOOR
+    res.blank(none)
+    res.mach[~res.answered()] = np.nan
+    return res
 
 
 def best_speed_search(objective, low, high, kinks=None):
