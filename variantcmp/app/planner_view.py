@@ -20,19 +20,26 @@ PLANNER_COLUMNS: tuple[Column, ...] = (
     Column("engine", "Engine", "engine", "text"),
     Column("makes", "Makes?", "margin_ft", "verdict", high_first=True),
     Column("fl", "Max FL", "max_altitude_ft", "fl", high_first=True),
-    Column("heaviest", "Heaviest t", "max_weight_kg", "t", high_first=True),
+    Column("heaviest", "Max W t", "max_weight_kg", "t", high_first=True),  # the heaviest weight, as "W t" on compare
     Column("heaviest_pct", "%MTOW", "max_weight_pct_mtow", "pct", high_first=True),
     Column("spare_t", "Spare t", "weight_margin_kg", "spare_t", high_first=True),
-    Column("weight_limit", "W limit", "weight_limit", "limit"),
-    Column("warmest", "Warmest", "max_isa_dev_c", "day", high_first=True),
+    Column("weight_limit", "W limit", "weight_limit", "limit_or_why"),
+    Column("warmest", "Warmest", "max_isa_dev_c", "day_or_why", high_first=True),
     Column("spare_c", "Spare °C", "isa_margin_c", "spare_c", high_first=True),
-    Column("day_limit", "Day limit", "isa_limit", "limit"),
     Column("weight", "W t", "weight_kg", "tonnes"),
     Column("isa", "ISA", "isa_dev_c", "isa"),
     Column("climb", "Climb", "climb_fpm", "fpm"),
     Column("note", "Note", "planner_note", "text"),
 )
 PLANNER_BY_KEY = {column.key: column for column in PLANNER_COLUMNS}
+#: Where a column is empty, the table column that says why, and words for some reasons. (The
+#: warmest day's limit is thrust wherever there is one: only thrust depends on the day.)
+WHY = {"weight_limit": "weight_reason", "max_isa_dev_c": "isa_reason"}
+DAY_WORDS = {"thrust": f"{SHORT_OF_IT} fails -40", "holds_on_warmest_day": f"{LIMIT_GLYPHS['none']} holds +50"}
+WHY_WORDS = {"holds_on_warmest_day": f"{LIMIT_GLYPHS['none']} holds to ISA+50",
+             "empty_weight": f"{SHORT_OF_IT} below empty weight", "thrust_table_top": f"{SHORT_OF_IT} above thrust data",
+             "thrust_table_floor": f"{SHORT_OF_IT} below thrust data", "thrust_data": f"{SHORT_OF_IT} no thrust data",
+             "buffet_data": f"{SHORT_OF_IT} no buffet data"}
 #: Shown only when the conditions give several of them.
 SEVERAL = {"weight": "weights", "isa": "isa_devs_c", "climb": "climb_fpm"}
 DEFAULT_SORT = "spare_t"
@@ -57,6 +64,13 @@ def planner_cell(column: Column, row: dict) -> Cell:
         return Cell(f"{MAKES_IT} yes" if row.get("reaches_target") else f"{SHORT_OF_IT} no")
     if kind == "text":
         return Cell("" if value is None else str(value))
+    if kind in ("limit_or_why", "day_or_why"):  # the value, else why there is none (the table's reason)
+        if value is None or (isinstance(value, float) and math.isnan(value)):
+            why = row.get(WHY[column.source])
+            words = DAY_WORDS.get(why) if kind == "day_or_why" else None
+            words = words or WHY_WORDS.get(why) or (None if why is None else f"{SHORT_OF_IT} {why.replace('_', ' ')}")
+            return Cell(words or NONE, right=kind == "day_or_why")
+        kind = "limit" if kind == "limit_or_why" else "day"
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
         return Cell(NONE, right=kind != "limit")
     if kind == "fl":

@@ -27,11 +27,19 @@ from .conditions import Conditions, selected_pairs
 
 HEAVIEST_COLUMNS = (
     "variant", "engine", "isa_dev_c", "mach", "climb_fpm", "target_ft", "max_weight_kg", "max_weight_pct_mtow",
-    "over_mtow", "limit", "note", "thrust_weight_kg", "buffet_weight_kg", "stall_weight_kg", "mtow_kg",
+    "over_mtow", "limit", "reason", "note", "thrust_weight_kg", "buffet_weight_kg", "stall_weight_kg", "mtow_kg",
 )
 HOTTEST_COLUMNS = (
     "variant", "engine", "weight_kg", "weight_pct_mtow", "mach", "climb_fpm", "target_ft", "max_isa_dev_c",
-    "level_oat_c", "limit", "note", "over_mtow", "below_empty_weight",
+    "level_oat_c", "limit", "reason", "note", "over_mtow", "below_empty_weight",
+)
+#: Where an answer is empty, why, in one word (the first that applies; the note says it in full).
+REASONS = (
+    (lv.ABOVE_CERTIFIED, "certified"), (lv.ABOVE_CABIN, "cabin"), (s.THRUST_DATA_TOP, "thrust_table_top"),
+    (s.BELOW_FLOOR, "thrust_table_floor"), (s.ABOVE_MMO, "mmo"), (s.BELOW_VMO_FLOOR, "vmo"),
+    (s.THRUST_DATA_MACH, "thrust_data"), (s.NO_BUFFET_AT_MACH, "buffet_data"), (lv.BUFFET_BELOW, "buffet"),
+    (lv.STALL_BELOW, "stall"), (s.CANNOT_CLIMB, "thrust"), (lv.FAILS_AT_COLDEST, "thrust"),
+    (lv.HOLDS_AT_WARMEST, "holds_on_warmest_day"),
 )
 K = 273.15
 
@@ -49,6 +57,18 @@ def _by_target(n_blocks: int, block: int, targets_ft):
 def _names(index, cases):
     return (np.asarray(index.variant_ids, dtype=object)[cases.variant_index].tolist(),
             np.asarray(index.engine_ids, dtype=object)[cases.engine_index].tolist())
+
+
+def _reasons(flags, answered, light=None) -> list:
+    """The ``reason`` column: a word from REASONS where there is no answer (``light``: a heaviest
+    weight below the empty weight), null where there is one."""
+    out = np.full(flags.shape, None, dtype=object)
+    for flag, word in reversed(REASONS):  # the first that applies is written last
+        out[(flags & flag).astype(bool)] = word
+    if light is not None:
+        out[light] = "empty_weight"
+    out[answered] = None
+    return out.tolist()
 
 
 def _limit_names(limit) -> list:
@@ -86,6 +106,7 @@ def heaviest_table(catalogue, conditions: Conditions, targets_ft) -> pl.DataFram
         "climb_fpm": climb_fpm, "target_ft": level_ft, "max_weight_kg": weight,
         "max_weight_pct_mtow": 100.0 * weight / mtow, "over_mtow": np.isfinite(weight) & (weight > mtow * (1 + 1e-9)),
         "limit": pl.Series(_limit_names(np.where(np.isfinite(weight), res.limit, -1)), dtype=pl.String),
+        "reason": pl.Series(_reasons(res.flags, np.isfinite(weight), light), dtype=pl.String),
         "note": notes,
         "thrust_weight_kg": np.where(res.thrust_kg > 0.0, res.thrust_kg, np.nan),
         "buffet_weight_kg": np.where(np.isfinite(res.buffet_kg), res.buffet_kg, np.nan),
@@ -114,6 +135,7 @@ def hottest_table(catalogue, conditions: Conditions, targets_ft) -> pl.DataFrame
         "target_ft": level_ft, "max_isa_dev_c": res.isa_dev_c,
         "level_oat_c": isa_temperature_k(level_m) + res.isa_dev_c - K,
         "limit": pl.Series(_limit_names(res.limit), dtype=pl.String),
+        "reason": pl.Series(_reasons(res.flags, np.isfinite(res.isa_dev_c)), dtype=pl.String),
         "note": hottest_notes(cases, res, climb_fpm, floor),
         "over_mtow": cases.over_mtow, "below_empty_weight": cases.weight_kg < floor,
     }, nan_to_null=True)
@@ -129,10 +151,10 @@ def planner_table(catalogue, conditions: Conditions, target_ft: float) -> pl.Dat
     keys = ["variant", "engine", "climb_fpm"]
     heavy = heaviest_table(catalogue, conditions, (target_ft,)).select(
         *keys, "isa_dev_c", "max_weight_kg", "max_weight_pct_mtow", pl.col("limit").alias("weight_limit"),
-        pl.col("note").alias("weight_note"), pl.col("mach").alias("weight_mach"))
+        pl.col("reason").alias("weight_reason"), pl.col("note").alias("weight_note"), pl.col("mach").alias("weight_mach"))
     hot = hottest_table(catalogue, conditions, (target_ft,)).select(
-        *keys, "weight_kg", "max_isa_dev_c", pl.col("limit").alias("isa_limit"), pl.col("note").alias("isa_note"),
-        pl.col("mach").alias("isa_mach"))
+        *keys, "weight_kg", "max_isa_dev_c", pl.col("limit").alias("isa_limit"), pl.col("reason").alias("isa_reason"),
+        pl.col("note").alias("isa_note"), pl.col("mach").alias("isa_mach"))
     return (frame.with_row_index("_order")
             .join(heavy, on=[*keys, "isa_dev_c"], how="left")
             .join(hot, on=[*keys, "weight_kg"], how="left")
