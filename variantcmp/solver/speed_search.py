@@ -15,7 +15,8 @@ coffin corner: thrust against buffet onset). The search is three stages:
    kink speed, each side is searched alone; where a neighbour is one, the piece beyond it too, up
    to the next point (a table's thrust can dip at a Mach column between two humps, and the
    higher hump's top lie on either side). Where the best kink speed lies outside the first
-   bracket (a peak on or next to a kink, on another hump), the same around it. And around up to
+   bracket, within KINK_SHARE of the best value (a peak on or next to a kink, on another hump),
+   the same around it. And around up to
    SCREENED samples elsewhere whose parabola with their neighbours peaks between them above the
    best value found (:func:`_screened`: a hump whose top lies between samples, on another piece).
 3. *Refine*: Brent's search (:func:`~variantcmp.solver.finders.brent_max`) in every bracket, as
@@ -42,6 +43,7 @@ GRID_SPEEDS = 12  # evenly spaced over the range: a step of about 0.06 Mach
 MACH_TOL = 1e-6  # Brent's search stops once its bracket is within this of its best point
 SEARCH_ITERATIONS = 48  # at most (golden-section steps at a crossing: 0.12 x 0.618^25 is 7e-7)
 SCREENED = 2  # humps between samples searched per case, besides the best point's
+KINK_SHARE = 0.02  # a kink speed apart from the best point is searched around if this close to the best value
 SCREEN_MARGIN = 1e-9  # a vertex must beat the best value by this share of it (not rounding)
 
 
@@ -107,9 +109,11 @@ def best_speed_search(objective, low, high, kinks=None):
     if kinks.shape[1]:
         k = GRID_SPEEDS + np.argmax(values[:, GRID_SPEEDS:], axis=1)
         x_k = points[r, k]
+        best = values[r, first]
         with np.errstate(invalid="ignore"):
-            apart = np.flatnonzero(np.isfinite(values[r, k]) & ((x_k < points[r, _neighbours(points, first)])
-                                                                 | (x_k > points[r, _neighbours(points, first, True)])))
+            apart = np.flatnonzero(np.isfinite(values[r, k]) & (values[r, k] >= best - KINK_SHARE * np.abs(best))
+                                   & ((x_k < points[r, _neighbours(points, first)])
+                                      | (x_k > points[r, _neighbours(points, first, True)])))
         brackets += _around(points, apart, k[apart])
     brackets += _screened(points, values, first)
     who, start, start_values = _starts(objective, points, values, brackets)
