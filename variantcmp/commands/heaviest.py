@@ -33,7 +33,8 @@ def add(subparsers) -> None:
                     "required residual rate of climb, buffet margin, stall, certified ceiling, cabin pressure, "
                     "VMO and MMO) and the limit that binds there, for every variant x engine option x ISA "
                     "deviation x climb criterion.",
-        epilog=EPILOG, target_help="target levels: FL370, FL350,FL370 or 37000ft (required)", weights=False)
+        epilog=EPILOG, target_help="target levels: FL370, FL350,FL370 or 37000ft (required)", weights=False,
+        best="the speed that allows the most weight")
 
 
 def run(args) -> int:
@@ -44,14 +45,15 @@ def run(args) -> int:
 
 
 def add_level_command(subparsers, name: str, run, help: str, description: str, epilog: str, target_help: str,
-                      weights: bool = True, isa: bool = True) -> None:
+                      best: str, weights: bool = True, isa: bool = True) -> None:
     """A command that asks about target levels (``heaviest``, ``hottest``): the catalogue, --target,
     the selection, the conditions and --format."""
     p = options.add_command(subparsers, name, help=help, description=description, epilog=epilog)
     options.add_catalogue_argument(p)
     options.add_targets(p, target_help)
     options.add_selection(p)
-    options.add_conditions(p, weights=weights, isa=isa)
+    options.add_conditions(p, weights=weights, isa=isa,
+                           mach_help=f"fixed Mach, best ({best}) or cruise (each variant's cruise Mach; default)")
     options.add_format(p)
     p.set_defaults(run=run)
 

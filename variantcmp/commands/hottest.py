@@ -33,7 +33,8 @@ def add(subparsers) -> None:
                     "is within every limit (thrust at the required residual rate of climb, buffet margin, stall, "
                     "certified ceiling, cabin pressure, VMO and MMO), for every variant x engine option x weight x "
                     "climb criterion.",
-        epilog=EPILOG, target_help="target levels: FL350, FL350,FL370 or 37000ft (required)", isa=False)
+        epilog=EPILOG, target_help="target levels: FL350, FL350,FL370 or 37000ft (required)", isa=False,
+        best="the speed that allows the warmest day")
 
 
 def run(args) -> int:
