@@ -88,7 +88,7 @@ def test_the_lift_weights_put_the_buffet_and_stall_ceilings_on_the_level(demo):
     # Lift equilibrium both ways (Anderson, Introduction to Flight, eq. 4.83): at the weight the
     # closed form gives, the ceilings' closed forms put buffet onset and stall on the level.
     cases = _cases(demo, [30_000.0], [0.0], [300.0], "cruise")
-    h = RNG.uniform(9_000.0, 12_500.0, len(cases))
+    h = np.fmin(cases.certified_m, 12_500.0) * RNG.uniform(0.7, 1.0, len(cases))
     w_buffet, w_stall = lift_limited_weights_n(cases, h, cases.mach)
     for weights, column in ((w_buffet, 0), (w_stall, 1)):
         at = dataclasses.replace(cases, weight_kg=weights / G)
@@ -161,13 +161,12 @@ def test_the_speed_search_matches_scipy_where_it_applies():
 def test_the_best_speed_heaviest_weight_is_the_best_of_a_dense_mach_scan(path):
     # By brute force, no external source: the heaviest weight at 601 speeds over each case's
     # range at the level, then a golden-section search around the best of them. The search must
-    # be no lighter than that (to 0.01 kg) and give the same weight at its own Mach.
+    # be no lighter than that (to 0.2 kg) and give the same weight at its own Mach.
     from variantcmp.solver.finders import golden_max
 
     cat = load_catalogue(path)
-    top = max(v.max_altitude_ft for v in cat.variants.values())
     cases = _cases(cat, [1.0], np.arange(-15.0, 46.0, 15.0), [0.0, 100.0, 300.0, 500.0], "best")
-    h = RNG.uniform(top - 16_000.0, top, len(cases)) * FT
+    h = cases.certified_m - RNG.uniform(0.0, 16_000.0, len(cases)) * FT  # up to 16,000 ft below each's ceiling
     res = solve_heaviest(cases, h)
     low, high = speed_range_at_level(cases, h)
     k = 601
@@ -180,7 +179,7 @@ def test_the_best_speed_heaviest_weight_is_the_best_of_a_dense_mach_scan(path):
     dense = np.maximum(refined, scan[r, j]) / G
     found = np.isfinite(res.weight_kg)
     assert found.sum() > len(cases) // 2
-    assert np.all(res.weight_kg[found] >= dense[found] - 0.01)
+    assert np.all(res.weight_kg[found] >= dense[found] - 0.2)  # MACH_TOL at a crossing of two limits: 0.1 kg
     again = heaviest_fixed_mach(cases.take(np.flatnonzero(found)), h[found], res.mach[found])
     np.testing.assert_allclose(again.weight_kg, res.weight_kg[found], atol=1e-6)
 
@@ -266,9 +265,9 @@ def test_where_the_data_make_the_ceiling_rise_with_temperature_the_first_crossin
 def test_the_best_speed_warmest_day_is_no_cooler_than_at_any_grid_speed(demo):
     # The definition, by brute force, no external source: the warmest day at best speed is at
     # least the warmest day at each of 25 fixed speeds over the range (to 0.001 deg C).
-    cases = _cases(demo, [1.0], [0.0], [0.0, 300.0], "best")
-    cases = dataclasses.replace(cases, weight_kg=np.full(len(cases), 38_000.0))
-    h = np.full(len(cases), 35_000.0 * FT)
+    pairs = [(v.id, e) for v in demo.variants.values() for e in v.engine_options]
+    cases, _ = build_cases(demo, pairs, lambda v: [0.8 * v.mtow_kg], [0.0], [0.0, 300.0], "best", 1.3)
+    h = 0.88 * cases.certified_m
     best = solve_hottest(cases, h)
     warmest = np.where(best.flags & HOLDS_AT_WARMEST, np.inf, best.isa_dev_c)
     low, high = speed_range_at_level(cases, h)
@@ -279,4 +278,4 @@ def test_the_best_speed_warmest_day_is_no_cooler_than_at_any_grid_speed(demo):
     assert np.isfinite(best.isa_dev_c).sum() >= len(cases) // 2
     forward = solve_ceilings(cases.with_isa_dev(best.isa_dev_c))
     ok = np.isfinite(best.isa_dev_c)
-    np.testing.assert_allclose(forward.max_altitude_m[ok] / FT, 35_000.0, atol=1.0)
+    np.testing.assert_allclose(forward.max_altitude_m[ok] / FT, h[ok] / FT, atol=1.0)
