@@ -32,6 +32,7 @@ from .sweep_screen import SweepScreen
 from .variant_info import VariantScreen
 from .widgets import COMPACT_BELOW_ROWS, shown_path
 
+WARNING_SECONDS = 15  # how long a catalogue's warnings stay on screen after it loads
 DARK_THEME = "textual-dark"
 LIGHT_THEME = "textual-light"
 
@@ -99,6 +100,10 @@ class VariantCmpApp(KeyHold, App[int]):
         else:
             self.problems = []
             self.catalogue = catalogue
+            if catalogue.warnings:  # valid but doubtful: said once, for long enough to read
+                self.notify("\n".join(f"{w.key}: {w.message.removeprefix('warning: ')}" for w in catalogue.warnings),
+                            title=f"Catalogue warnings ({shown_path(self.catalogue_path)})", severity="warning",
+                            timeout=WARNING_SECONDS)
         self.catalogue_signal.publish(self.catalogue)
         if self.problems:
             self.push_screen(ProblemsScreen(self.catalogue_path, self.problems, self.catalogue))

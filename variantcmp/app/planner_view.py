@@ -38,7 +38,7 @@ WHY = {"weight_limit": "weight_reason", "max_isa_dev_c": "isa_reason"}
 DAY_WORDS = {"thrust": f"{SHORT_OF_IT} fails -40", "holds_on_warmest_day": f"{LIMIT_GLYPHS['none']} holds +50"}
 WHY_WORDS = {"holds_on_warmest_day": f"{LIMIT_GLYPHS['none']} holds to ISA+50",
              "empty_weight": f"{SHORT_OF_IT} below empty weight", "thrust_table_top": f"{SHORT_OF_IT} above thrust data",
-             "thrust_table_floor": f"{SHORT_OF_IT} below thrust data", "thrust_data": f"{SHORT_OF_IT} no thrust data",
+             "thrust_table_floor": f"{SHORT_OF_IT} below thrust data", "thrust_data": f"{SHORT_OF_IT} no thrust data", "propeller_data": f"{SHORT_OF_IT} no propeller data",
              "buffet_data": f"{SHORT_OF_IT} no buffet data"}
 #: Shown only when the conditions give several of them.
 SEVERAL = {"weight": "weights", "isa": "isa_devs_c", "climb": "climb_fpm"}

@@ -11,6 +11,7 @@ import argparse
 import difflib
 import os
 import shutil
+import sys
 import textwrap
 from pathlib import Path
 
@@ -169,11 +170,17 @@ def resolve_catalogue(text: str | None) -> Path:
     return path  # load_catalogue reports a missing file as a catalogue problem
 
 
-def load(text: str | None):
-    """Load and validate a catalogue; CatalogueError propagates to main()."""
+def load(text: str | None, warn: bool = True):
+    """Load and validate a catalogue; CatalogueError propagates to main(). Its warnings (valid but
+    doubtful values) go to stderr, one line each, unless ``warn`` is False (``check`` lists them
+    in its summary); stdout keeps only the command's output."""
     from variantcmp.catalogue import load_catalogue
 
-    return load_catalogue(resolve_catalogue(text))
+    catalogue = load_catalogue(resolve_catalogue(text))
+    if warn:
+        for warning in catalogue.warnings:
+            print(str(warning), file=sys.stderr)
+    return catalogue
 
 
 def looks_like_catalogue(token: str) -> bool:

@@ -178,10 +178,11 @@ def fleet_table(columns: list[Column], cells: dict[str, list[str]], frame, flag_
     return TextTable(columns, cells, styles, [i + 1 == len(variants) or variants[i + 1] != v for i, v in enumerate(variants)])
 
 
-def print_table(table: TextTable, title: str | None, footer_lines: list[str], drop_order: tuple[str, ...] = ()) -> None:
+def print_table(table: TextTable, title: str | None, footer_lines: list[str], drop_order: tuple[str, ...] = (),
+                more: str = "widen the window, or use --format csv for every column") -> None:
     """Print a table fitted to the console (columns in ``drop_order`` hidden first, a line says
-    which), its title centred above and the footer lines below; then nothing else (the caller
-    prints the caution)."""
+    which and how to see them: ``more``), its title centred above and the footer lines below; then
+    nothing else (the caller prints the caution)."""
     from rich.text import Text
 
     out = console()
@@ -192,8 +193,7 @@ def print_table(table: TextTable, title: str | None, footer_lines: list[str], dr
         lines.insert(0, title.center(width).rstrip())
         spans = [(line + 1, a, b, s) for line, a, b, s in spans]
     if dropped:
-        footer_lines = [f"Hidden to fit the terminal: {', '.join(dropped)} (widen the window, or use --format "
-                        "csv for every column)."] + footer_lines
+        footer_lines = [f"Hidden to fit the terminal: {', '.join(dropped)} ({more})."] + footer_lines
     if not out.is_terminal:
         sys.stdout.write("\n".join(lines + footer_lines) + "\n")
         return

@@ -16,8 +16,9 @@ The package, one concern per module, each importing only those above it:
 - :mod:`~variantcmp.solver.thrust_ceiling`: the thrust ceiling at a fixed Mach;
 - :mod:`~variantcmp.solver.fixed_mach`: every limit and the maximum altitude at a fixed Mach;
 - :mod:`~variantcmp.solver.coarse`, :mod:`~variantcmp.solver.thrust_best`,
-  :mod:`~variantcmp.solver.best_speed`: the best-speed search's stages (coarse grid; the thrust
-  ceiling's best speed; the combined maximum altitude and the checks);
+  :mod:`~variantcmp.solver.corner`, :mod:`~variantcmp.solver.best_speed`: the best-speed search's
+  stages (coarse grid; the thrust ceiling's best speed; the crossing of thrust and buffet or
+  stall at a coffin corner; the combined maximum altitude and the checks);
 - :mod:`~variantcmp.solver.parallel`: :func:`solve_ceilings`, chunks and processes;
 - the inverse questions at a target level: :mod:`~variantcmp.solver.level` (what the level allows
   whatever the weight or the day), :mod:`~variantcmp.solver.speed_search` (the best speed at a
@@ -39,13 +40,15 @@ from .limits import buffet_ceiling_m, buffet_cl_at, buffet_peak_mach, closed_for
 from .parallel import solve_ceilings
 from .physics import THRUST_MODELS, ClimbPhysics
 from .results import (ABOVE_MMO, ABOVE_MODEL_TOP, BELOW_FLOOR, BELOW_VMO_FLOOR, CANNOT_CLIMB, LIMITS, NO_BUFFET_AT_MACH,
-                      NO_COMMON_ALTITUDE, THRUST_DATA_MACH, THRUST_DATA_TOP, UNFLYABLE, Ceilings)
+                      NO_COMMON_ALTITUDE, PROPELLER_DATA_MACH, THRUST_DATA_MACH, THRUST_DATA_TOP, UNFLYABLE,
+                      Ceilings)
 from .thrust_ceiling import SCAN_LEVELS_M, thrust_ceiling_m
 
 __all__ = [
     "ABOVE_MMO", "ABOVE_MODEL_TOP", "BELOW_FLOOR", "BELOW_VMO_FLOOR", "BEST_MACH_GRID", "CANNOT_CLIMB", "LIMITS",
-    "MODEL_TOP_M", "NO_BUFFET_AT_MACH", "NO_COMMON_ALTITUDE", "SCAN_LEVELS_M", "THRUST_DATA_MACH", "THRUST_DATA_TOP",
-    "THRUST_MODELS", "UNFLYABLE", "Ceilings", "ClimbPhysics", "Heaviest", "Hottest", "best_speed_ceilings", "bisect_root",
+    "MODEL_TOP_M", "NO_BUFFET_AT_MACH", "NO_COMMON_ALTITUDE", "PROPELLER_DATA_MACH", "SCAN_LEVELS_M",
+    "THRUST_DATA_MACH", "THRUST_DATA_TOP", "THRUST_MODELS", "UNFLYABLE", "Ceilings", "ClimbPhysics", "Heaviest", "Hottest",
+    "best_speed_ceilings", "bisect_root",
     "buffet_ceiling_m", "buffet_cl_at", "buffet_peak_mach", "closed_form_ceilings_m", "fixed_mach_ceilings",
     "golden_max", "mach_grid", "nan_as_lowest", "solve_ceilings", "solve_heaviest", "solve_hottest", "thrust_ceiling_m",
 ]

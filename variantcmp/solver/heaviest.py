@@ -123,7 +123,7 @@ def weights_at_mach(phys: ClimbPhysics, altitude_m, mach, in_range=False):
     flags = np.zeros(np.shape(altitude_m), dtype=np.int32) if in_range else level_flags(cs, altitude_m, mach)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         thrust, q_s, speed_factor = phys.level_terms(altitude_m, mach)
-    flags = thrust_data_flags(flags, thrust)
+    flags = thrust_data_flags(cs, flags, thrust)
     w_thrust = thrust_weight_n(phys, mach, thrust, q_s, speed_factor)
     w_buffet, w_stall = lift_limited_weights_n(cs, altitude_m, mach)
     return buffet_data_flags(cs, flags, w_buffet), w_thrust, w_buffet, w_stall

@@ -101,7 +101,7 @@ def day_free_flags(cases: CaseSet, altitude_m, mach, in_range=False):
     # Thrust data at the Mach: a table's (or a propeller's) Mach range does not depend on the day.
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         thrust = ClimbPhysics(cases).available_thrust_n(altitude_m, mach)
-    return thrust_data_flags(flags, thrust), w_buffet, w_stall
+    return thrust_data_flags(cases, flags, thrust), w_buffet, w_stall
 
 
 def hottest_fixed_mach(cases: CaseSet, altitude_m, mach) -> Hottest:

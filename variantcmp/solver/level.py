@@ -4,8 +4,8 @@ At a pressure altitude h and a Mach M, the limits split three ways:
 
 - weight-free and day-free (:func:`level_flags`): the certified and cabin ceilings, MMO, the
   VMO floor (CAS rises as the pressure does, at a fixed Mach), the thrust data's altitude range;
-  with thrust NaN at the level (a Mach outside the thrust data) and buffet data that stop short of
-  the Mach. Any of them failing: no weight on any day reaches the level at that speed;
+  with thrust NaN at the level (a Mach outside a thrust table or a propeller's efficiency data)
+  and buffet data that stop short of the Mach. Any of them failing: no weight on any day reaches the level at that speed;
 - pressure limits that depend on the weight only (:func:`lift_limited_weights_n`): buffet onset
   and stall. Lift equilibrium n W = (gamma/2) p M^2 S CL (Anderson, *Introduction to Flight*,
   eq. 4.83) gives the heaviest weight each allows as a closed form, the same on every day;
@@ -27,7 +27,9 @@ import numpy as np
 from ..airspeed import cas_to_mach, pressure_for_cas_at_mach_pa
 from ..atmosphere import GAMMA, MODEL_TOP_M, isa_pressure_pa, pressure_altitude_m
 from .limits import buffet_cl_at
-from .results import ABOVE_MMO, BELOW_FLOOR, BELOW_VMO_FLOOR, NO_BUFFET_AT_MACH, THRUST_DATA_MACH, THRUST_DATA_TOP
+from .physics import data_mach_flags
+from .results import (ABOVE_MMO, BELOW_FLOOR, BELOW_VMO_FLOOR, NO_BUFFET_AT_MACH, PROPELLER_DATA_MACH, THRUST_DATA_MACH,
+                      THRUST_DATA_TOP)
 from .thrust_ceiling import cl_max_altitude_m, climbs_above
 
 ABOVE_CERTIFIED = 1 << 10  # the level is above the certified ceiling
@@ -40,7 +42,7 @@ FAILS_AT_COLDEST = 1 << 16  # the level fails even on the coldest day searched
 NOT_MONOTONE = 1 << 17  # a warmer day searched holds again after the first crossing
 #: A level these flags mark cannot be flown at that speed by any weight on any day.
 LEVEL_BLOCKS = (ABOVE_CERTIFIED | ABOVE_CABIN | ABOVE_MMO | BELOW_VMO_FLOOR | BELOW_FLOOR | THRUST_DATA_TOP
-                | THRUST_DATA_MACH | NO_BUFFET_AT_MACH)
+                | THRUST_DATA_MACH | PROPELLER_DATA_MACH | NO_BUFFET_AT_MACH)
 #: Flags that hold at every speed (the search over speeds stops at once).
 EVERY_SPEED = ABOVE_CERTIFIED | ABOVE_CABIN | BELOW_FLOOR | THRUST_DATA_TOP
 CHECK_STEP_M = 1.0  # the climb looked at this far above the level, at an answer
@@ -64,12 +66,13 @@ def level_flags(cases, altitude_m, mach) -> np.ndarray:
     return flags
 
 
-def thrust_data_flags(flags, thrust_n) -> np.ndarray:
-    """``flags`` with THRUST_DATA_MACH where the thrust at the level is NaN inside the thrust
-    data's altitude range (a Mach outside the data: a table's Mach range, a propeller's
-    efficiency data)."""
+def thrust_data_flags(cases, flags, thrust_n) -> np.ndarray:
+    """``flags`` with the model's flag of a Mach outside its data (THRUST_DATA_MACH for a thrust
+    table, PROPELLER_DATA_MACH for a propeller efficiency table:
+    :func:`~variantcmp.solver.physics.data_mach_flags`) where the thrust at the level is NaN inside
+    the thrust data's altitude range."""
     gap = np.isnan(thrust_n) & ~(flags & (THRUST_DATA_TOP | BELOW_FLOOR)).astype(bool)
-    return flags | np.where(gap, THRUST_DATA_MACH, 0).astype(np.int32)
+    return flags | np.where(gap, data_mach_flags(cases.model_code), 0).astype(np.int32)
 
 
 def lift_limited_weights_n(cases, altitude_m, mach):

@@ -3,8 +3,8 @@
 The inverse answers at best speed (the heaviest weight for a level, the warmest day) are the
 best over Mach of their fixed-Mach answers at the level. At a fixed level each objective
 evaluation is cheap (no altitude root), and the objective is smooth between the kinks the data
-put (:mod:`~variantcmp.solver.kinks`: thrust-table Mach columns, the turbofan lapse's branch Mach
-at the level; the buffet boundary's peak, a closed form), with a kink where two limits cross (the
+put (:mod:`~variantcmp.solver.kinks`: thrust-table and propeller-efficiency Mach points, the
+turbofan lapse's branch Mach at the level; the buffet boundary's peak, a closed form), with a kink where two limits cross (the
 coffin corner: thrust against buffet onset). The search is three stages:
 
 1. *Coarse*: GRID_SPEEDS speeds evenly spaced over each case's range and the kink speeds inside
@@ -34,7 +34,7 @@ from __future__ import annotations
 import numpy as np
 
 from .finders import brent_max, nan_as_lowest
-from .kinks import table_machs, turbofan_branch_mach
+from .kinks import mach_kink_groups, turbofan_branch_mach
 from .level import EVERY_SPEED, level_flags, speed_range_at_level
 from .limits import buffet_peak_mach
 from .results import BELOW_VMO_FLOOR
@@ -49,12 +49,13 @@ SCREEN_MARGIN = 1e-9  # a vertex must beat the best value by this share of it (n
 
 def kink_speeds(phys, altitude_m, low, high) -> np.ndarray:
     """Speeds where the objective at the level may have a kink or a peak (cases x kinds, NaN where
-    none or outside (low, high)): each thrust table's Mach columns, the turbofan lapse's branch
-    Mach at the level (:func:`~variantcmp.solver.kinks.turbofan_branch_mach`) and the buffet
+    none or outside (low, high)): the Machs where the thrust data have kinks
+    (:func:`~variantcmp.solver.kinks.mach_kink_groups`: a thrust table's Mach columns, a propeller
+    efficiency table's Machs), the turbofan lapse's branch Mach at the level (:func:`~variantcmp.solver.kinks.turbofan_branch_mach`) and the buffet
     ceiling's own best speed (:func:`~variantcmp.solver.limits.buffet_peak_mach`)."""
     cs = phys.cases
     n = len(cs)
-    tables = table_machs(phys)
+    tables = mach_kink_groups(phys)
     width = max((m.size for m, _ in tables), default=0)
     out = np.full((n, width + 2), np.nan)
     for machs, group in tables:

@@ -37,7 +37,7 @@ HOTTEST_COLUMNS = (
 REASONS = (
     (lv.ABOVE_CERTIFIED, "certified"), (lv.ABOVE_CABIN, "cabin"), (s.THRUST_DATA_TOP, "thrust_table_top"),
     (s.BELOW_FLOOR, "thrust_table_floor"), (s.ABOVE_MMO, "mmo"), (s.BELOW_VMO_FLOOR, "vmo"),
-    (s.THRUST_DATA_MACH, "thrust_data"), (s.NO_BUFFET_AT_MACH, "buffet_data"), (lv.BUFFET_BELOW, "buffet"),
+    (s.THRUST_DATA_MACH, "thrust_data"), (s.PROPELLER_DATA_MACH, "propeller_data"), (s.NO_BUFFET_AT_MACH, "buffet_data"), (lv.BUFFET_BELOW, "buffet"),
     (lv.STALL_BELOW, "stall"), (s.CANNOT_CLIMB, "thrust"), (lv.FAILS_AT_COLDEST, "thrust"),
     (lv.HOLDS_AT_WARMEST, "holds_on_warmest_day"),
 )
@@ -178,7 +178,12 @@ def _level_reasons(cases, i, f, best, mach):
     if f & s.BELOW_FLOOR:
         parts.append(f"below the lowest altitude of the thrust data ({cases.floor_m[i] / FT:,.0f} ft)")
     if f & s.THRUST_DATA_MACH:
-        parts.append("no speed in the thrust data" if best else f"no thrust data at M{mach:.3f}")
+        parts.append("no speed in the thrust table" if best else f"M{mach:.3f} outside the thrust table")
+    if f & s.PROPELLER_DATA_MACH:
+        low, high = cases.propellers[cases.propeller_id[i]].mach_range
+        data = f"efficiency data M{low:.3f}-{high:.3f}"
+        parts.append(f"no speed in the propeller efficiency table ({data})" if best
+                     else f"M{mach:.3f} outside the propeller efficiency table ({data})")
     if f & s.NO_BUFFET_AT_MACH:
         b = cases.buffet_id[i]
         data = f"buffet data M{cases.buffet_low[b]:.3f}-{cases.buffet_high[b]:.3f}"
