@@ -143,12 +143,13 @@ async def _shoot(size: tuple[int, int], out: Path, written: list[Path]) -> None:
         await type_into(pilot, "#field-weight", "100%mtow")
         await settle(app, pilot)
 
-        # Hot-day look-up.
+        # The planner: the heaviest weight on an ISA+15 day and the warmest day at 90 %MTOW for FL370.
         await pilot.press("h")
         await settle(app, pilot)
-        await type_into(pilot, "#lookup-target", "FL350")
+        await type_into(pilot, "#lookup-weight", "90%mtow")
+        await type_into(pilot, "#lookup-target", "FL370")
         await settle(app, pilot)
-        save(app, "hot-day")
+        save(app, "planner")
         await pilot.press("escape")
         await settle(app, pilot)
 

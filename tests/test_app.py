@@ -30,7 +30,7 @@ from variantcmp.app.dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
 from variantcmp.app.open_dialog import OpenDialog
 from variantcmp.app.envelope_screen import EnvelopeScreen
 from variantcmp.app.help import HelpScreen
-from variantcmp.app.hotday import HotDayScreen
+from variantcmp.app.hotday import PlannerScreen
 from variantcmp.app.sweep_screen import SweepScreen
 from variantcmp.app.variant_info import VariantScreen
 from variantcmp.app.view import BASELINE_MARK, ROW_KEY
@@ -301,26 +301,55 @@ def test_baseline_shows_differences():
     run(body)
 
 
-def test_hot_day_lookup():
+def test_planner_gives_the_heaviest_weight_and_the_warmest_day_of_the_commands():
     async def body():
+        from variantcmp.table import heaviest_table, hottest_table
+
         app = VariantCmpApp(None)
         async with app.run_test(size=SIZE) as pilot:
             await settle(app, pilot)
             await press_settle(app, pilot, "h")
             screen = app.screen
-            assert isinstance(screen, HotDayScreen)
+            assert isinstance(screen, PlannerScreen)
             assert screen.query_one("#lookup-isa").value == "ISA+15"
             assert app.focused is screen.query_one("#lookup-target")  # no target yet: type one
+            assert "Type a target flight level" in shown_text(screen.query_one("#lookup-summary"))
             await press_settle(app, pilot, *"FL360", "enter")
-            expected = reference(Conditions(isa_devs_c=(15.0,), target_fl_ft=36000.0))
+            demo = load_catalogue(demo_catalogue_path())
+            cond = Conditions(isa_devs_c=(15.0,), target_fl_ft=36000.0)
+            expected = reference(cond)
+            heavy = {(r["variant"], r["engine"]): r for r in heaviest_table(demo, cond, (36000.0,)).iter_rows(named=True)}
+            hot = {(r["variant"], r["engine"]): r for r in hottest_table(demo, cond, (36000.0,)).iter_rows(named=True)}
             rows = table_rows(screen, "#lookup-table")
             assert len(rows) == expected.height
             by_pair = {(r["variant"], r["engine"]): r for r in expected.iter_rows(named=True)}
+            keys = [c.value for c in screen.query_one("#lookup-table").columns]
+            at = {k: keys.index(k) for k in ("makes", "fl", "heaviest", "heaviest_pct", "weight_limit", "warmest")}
             for shown in rows:
-                row = by_pair[(shown[0], shown[1])]
-                assert shown[2].endswith("yes") == bool(row["reaches_target"])
-                assert shown[4] == format_flight_level(row["max_altitude_ft"])
-                assert shown[5].endswith(row["limit"])
+                pair = (shown[0], shown[1])
+                row, h, d = by_pair[pair], heavy[pair], hot[pair]
+                assert shown[at["makes"]].endswith("yes") == bool(row["reaches_target"])
+                assert shown[at["fl"]] == format_flight_level(row["max_altitude_ft"])
+                if h["max_weight_kg"] is None:
+                    assert shown[at["heaviest"]] == "—" and h["reason"] in shown[at["weight_limit"]].replace(" ", "_")
+                else:
+                    assert shown[at["heaviest"]] == f"{math.floor(round(h['max_weight_kg'], 1) / 100) / 10:,.1f}"
+                    assert shown[at["weight_limit"]].endswith(h["limit"])
+                if d["max_isa_dev_c"] is None:  # why not, in its place
+                    assert shown[at["warmest"]].startswith("✗") or shown[at["warmest"]].startswith("○"), shown
+                    assert d["reason"] is not None
+                else:
+                    assert shown[at["warmest"]] == f"ISA{math.floor(round(d['max_isa_dev_c'], 2) * 10) / 10:+.1f}"
+            # Sorted by the weight to spare, most first; s, S and r move the sort like the compare screen's.
+            def spares(rows):  # (rows without a heaviest weight sort last either way)
+                return [heavy[(r[0], r[1])]["max_weight_kg"] - by_pair[(r[0], r[1])]["weight_kg"] for r in rows
+                        if heavy[(r[0], r[1])]["max_weight_kg"] is not None]
+
+            assert spares(rows) == sorted(spares(rows), reverse=True)
+            await press_settle(app, pilot, "r")
+            assert spares(table_rows(screen, "#lookup-table")) == sorted(spares(table_rows(screen, "#lookup-table")))
+            await press_settle(app, pilot, "s")
+            assert screen.sort_key == "weight_limit"
             made = sum(bool(r["reaches_target"]) for r in by_pair.values())
             assert shown_text(screen.query_one("#lookup-summary")).startswith(f"{made} of {expected.height} make FL360")
             screen.query_one("#lookup-weight").focus()
@@ -478,7 +507,7 @@ def test_help_lists_every_key_and_the_caution():
             assert isinstance(app.screen, HelpScreen)
             shown = shown_text(app.screen.query_one("#help-text"))
             assert " ".join(CAUTION.split()) in " ".join(shown.split())
-            for cls in (VariantCmpApp, CompareScreen, HotDayScreen, EnvelopeScreen, SweepScreen, VariantScreen,
+            for cls in (VariantCmpApp, CompareScreen, PlannerScreen, EnvelopeScreen, SweepScreen, VariantScreen,
                         ProblemsScreen, ExportDialog):
                 for binding in cls.BINDINGS:
                     assert binding.description in shown
@@ -781,7 +810,7 @@ def test_keys_typed_while_a_screen_opens_or_closes_are_not_lost():
             await settle(app, pilot)
             burst(app, "h", *"FL360")  # typed before the hot-day screen has mounted
             await settle(app, pilot)
-            assert isinstance(app.screen, HotDayScreen)
+            assert isinstance(app.screen, PlannerScreen)
             assert app.screen.query_one("#lookup-target").value == "FL360"
             # Leave the field and the screen, then mark two rows, all at once.
             burst(app, "escape", "escape", "m", "down", "m")
@@ -830,14 +859,14 @@ async def mash(app, pilot, keys: list[str], seed: int, stay_on) -> int:
     return strayed
 
 
-@pytest.mark.parametrize("name", ["compare", "hotday", "cruise", "envelope", "sweep", "variant", "help", "open",
+@pytest.mark.parametrize("name", ["compare", "planner", "cruise", "envelope", "sweep", "variant", "help", "open",
                                   "export"])
 def test_mashing_each_screens_keys_raises_nothing(name, tmp_path, monkeypatch: pytest.MonkeyPatch):
     monkeypatch.chdir(tmp_path)  # an export or a picture lands here, not in the project
     always_out = {"q", "f1", "question_mark", "ctrl+p", "ctrl+q", "ctrl+c"}
     screens = {  # how to get there, the screen class, keys of it that leave it
         "compare": ([], CompareScreen, {"h", "f", "i", "v", "w", "e", "o", "enter"}),
-        "hotday": (["h"], HotDayScreen, {"i", "e", "enter", "escape"}),
+        "planner": (["h"], PlannerScreen, {"i", "e", "enter", "escape"}),
         "cruise": (["f"], CruiseScreen, {"escape", "c", "i", "e", "enter"}),
         "envelope": (["v"], EnvelopeScreen, {"escape", "c", "w"}),
         "sweep": (["w"], SweepScreen, {"escape", "c", "v"}),
@@ -1035,7 +1064,7 @@ def test_every_key_is_in_the_footer_or_in_help_and_the_command_palette():
             shown = [key for key in app.screen.query("FooterKey") if key.display and key is not palette_key]
             assert shown and all(key.region.right <= palette_key.region.x for key in shown)
             assert len(shown) < len(app.screen.query("FooterKey")) - 1
-            for path, cls in (([], CompareScreen), (["h"], HotDayScreen), (["f"], CruiseScreen), (["v"], EnvelopeScreen),
+            for path, cls in (([], CompareScreen), (["h"], PlannerScreen), (["f"], CruiseScreen), (["v"], EnvelopeScreen),
                               (["w"], SweepScreen), (["i"], VariantScreen), (["f1"], HelpScreen)):
                 await press_settle(app, pilot, *path)
                 assert isinstance(app.screen, cls)
@@ -1182,7 +1211,7 @@ def test_readme_key_tables_are_true():
         if line.startswith("| `"):
             first = line.split("|")[1]
             named |= {names.get(key, key) for key in re.findall(r"`([^`]+)`", first)}
-    screens = (VariantCmpApp, CompareScreen, HotDayScreen, CruiseScreen, EnvelopeScreen, SweepScreen, VariantScreen,
+    screens = (VariantCmpApp, CompareScreen, PlannerScreen, CruiseScreen, EnvelopeScreen, SweepScreen, VariantScreen,
                HelpScreen, ProblemsScreen, Open, ExportDialog, ConfirmDialog)
     bound = {key.strip() for cls in screens for binding in cls.BINDINGS for key in binding.key.split(",")}
     textual_keys = {"ctrl+p", "enter", "tab", "shift+tab"}  # the command palette, tables and fields

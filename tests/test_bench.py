@@ -23,12 +23,17 @@ def test_bench_small_run_agrees_with_scalar_reference(capsys):
     assert figures["cruise_cases"] == figures["mrc_cases"] == 3000
     assert figures["cruise_found_share"] > 0.9 and figures["mrc_found_share"] > 0.5
     assert figures["turboprop_mrc_found_share"] > 0.5
+    # The inverse answers' figures, and their round trip: the heaviest weight gives the level back.
+    for key in ("heaviest_cases_per_s", "hottest_cases_per_s", "heaviest_best_cases_per_s", "hottest_best_cases_per_s"):
+        assert figures[key] > 0
+    assert figures["heaviest_round_trip_max_ft"] is not None and figures["heaviest_round_trip_max_ft"] < 1.0
 
 
 def test_bench_table_output(capsys):
     assert main(["bench", "--cases", "500", "--best-cases", "50", "--scalar-cases", "20"]) == 0
     out = capsys.readouterr().out
     assert "scalar" in out and "speed-up" in out and "Caution" in out and "turboprops: best speed" in out
+    assert "warmest day for a level" in out
 
 
 def test_bench_rejects_bad_counts(capsys):

@@ -15,7 +15,7 @@ from variantcmp.app.cruise_screen import CruiseScreen
 from variantcmp.catalogue import demo_catalogue_path, load_catalogue
 from variantcmp.table import Conditions
 from variantcmp.table.cruise import cruise_table
-from variantcmp.units import WeightSpec
+from variantcmp.units import WeightSpec, format_flight_level
 
 
 def reference(conditions: Conditions, scheme: str = "2000-east"):
@@ -46,6 +46,7 @@ def test_cruise_view_shows_the_cruise_table_sorts_and_changes_scheme():
                 assert row[0] == ref["variant"] and row[1] == ref["engine"]
                 assert row[level] == f"FL{ref['cruise_fl']:03d}"
                 assert row[sr] == f"{ref['specific_range_nm_per_t']:,.1f}"
+                assert row[opt] == format_flight_level(ref["optimum_altitude_ft"])
             print(f"\ncruise view: solver {screen.compute_ms:.0f} ms")
             # The drawing of the row under the cursor: title, axes, legend, marks.
             text = screen.query_one("#cruise-sketch").plain

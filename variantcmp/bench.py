@@ -12,6 +12,7 @@ doubles as a correctness check.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import resource
 import time
@@ -23,7 +24,8 @@ from .catalogue import Catalogue, Engine, Variant, demo_catalogue_path, load_cat
 from .atmosphere import P0_PA, isa_pressure_pa
 from .cases import FPM, FT, build_cases
 from .bench_cruise import CRUISE_CASES, run_cruise_benchmark
-from .solver import solve_ceilings
+from .solver import solve_ceilings, solve_heaviest, solve_hottest
+from .solver.level import CLIMBS_ABOVE
 from .table import Conditions, ceilings_table
 from .units import WeightSpec
 
@@ -327,10 +329,10 @@ def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases:
     grid_s = time.perf_counter() - t0
 
     fixed_rate = cases / fixed_s
+    inverse = inverse_workloads(cat, cases, best_cases)
     n_cruise = min(cases, CRUISE_CASES) if cruise_cases is None else cruise_cases
     cruise = run_cruise_benchmark(cat, synthetic_cases(cat, n_cruise), props, synthetic_cases(props, n_cruise))
-    return {
-        **cruise,
+    return inverse | cruise | {
         "cases": cases,
         "seconds": fixed_s,
         "cases_per_s": fixed_rate,
@@ -358,3 +360,30 @@ def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases:
         "peak_rss_worker_mb": _peak_rss_mb(resource.RUSAGE_CHILDREN),
         "climb_fpm": 300.0 if fixed.climb_ms.size == 0 else float(fixed.climb_ms[0] / FPM),
     }
+
+
+def inverse_workloads(cat: Catalogue, cases: int, best_cases: int) -> dict:
+    """The inverse answers on the synthetic fleet, each case asking about a seeded level from
+    FL250 to FL410: the heaviest weight and the warmest day at a fixed Mach (``cases`` each),
+    at the best speed (``best_cases``, the warmest day a tenth of them), and a round trip of a
+    sample through ``solve_ceilings`` (the heaviest weight put back gives the level: the largest
+    difference in ft, a correctness check)."""
+    rng = np.random.default_rng(SEED + 3)
+    figures = {}
+    for name, solve, n, mach in (("heaviest", solve_heaviest, cases, "cruise"), ("hottest", solve_hottest, cases, "cruise"),
+                                 ("heaviest_best", solve_heaviest, best_cases, "best"),
+                                 ("hottest_best", solve_hottest, max(1, best_cases // 10), "best")):
+        work = synthetic_cases(cat, n, mach=mach)
+        level_m = rng.uniform(25_000.0, 41_000.0, len(work)) * FT
+        solve(work.take(slice(0, 500)), level_m[:500])  # warm-up
+        t0 = time.perf_counter()
+        res = solve(work, level_m)
+        seconds = time.perf_counter() - t0
+        figures |= {f"{name}_cases": n, f"{name}_seconds": seconds, f"{name}_cases_per_s": n / seconds}
+        if name == "heaviest":  # (where it still climbs above the level, its ceiling is higher: not checked)
+            found = np.flatnonzero(np.isfinite(res.weight_kg) & ~(res.flags & CLIMBS_ABOVE).astype(bool))[:2_000]
+            back = solve_ceilings(dataclasses.replace(work.take(found), weight_kg=res.weight_kg[found]))
+            diff = np.abs(back.max_altitude_m - level_m[found]) / FT
+            figures["heaviest_round_trip_max_ft"] = float(np.max(diff)) if diff.size else None
+    return figures
+

@@ -107,6 +107,19 @@ class CaseSet:
     def with_mach(self, mach) -> "CaseSet":
         return dataclasses.replace(self, mach=np.broadcast_to(np.asarray(mach, dtype=float), self.mach.shape).copy())
 
+    def with_isa_dev(self, isa_dev_c) -> "CaseSet":
+        """The same cases on other days (one deviation per case, or one for all), with what the
+        cases derive from the deviation (the tropopause density)."""
+        dev = np.broadcast_to(np.asarray(isa_dev_c, dtype=float), self.isa_dev_c.shape).copy()
+        return dataclasses.replace(self, isa_dev_c=dev, tropopause_density_kg_m3=tropopause_density_kg_m3(
+            dev, ~np.isnan(self.flat_rate_isa_dev_c)))
+
+
+def tropopause_density_kg_m3(isa_dev_c, flat_rated):
+    """Density at the tropopause's pressure on the day, p_11 / (R (216.65 K + dT)) (ISO 2533); a
+    flat-rated engine's lapse sees ISA there (dT = 0: see :mod:`variantcmp.solver.physics`)."""
+    return LAYER_BASE_P_PA[1] / (R_AIR * (LAYER_BASE_T_K[1] + np.where(flat_rated, 0.0, isa_dev_c)))
+
 
 def per_case_fields() -> tuple[str, ...]:
     return _FLOAT_FIELDS + _INT_FIELDS + ("over_mtow",)
@@ -245,9 +258,7 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
             "lapse_exponent_above": _nan(e.lapse_exponent_above_tropopause),
             "throttle_ratio": e.throttle_ratio,
             "flat_rate_isa_dev_c": _nan(e.flat_rate_isa_dev_c), "hot_day_loss_per_c": e.hot_day_loss_per_c,
-            # Flat-rated engines see ISA density in their lapse (see solver.ClimbPhysics).
-            "tropopause_density_kg_m3": LAYER_BASE_P_PA[1] / (
-                R_AIR * (LAYER_BASE_T_K[1] + (0.0 if e.flat_rate_isa_dev_c is not None else grid[:, 1]))),
+            "tropopause_density_kg_m3": tropopause_density_kg_m3(grid[:, 1], e.flat_rate_isa_dev_c is not None),
             "floor_m": floor_m, "top_m": top_m, "mach_low": m_low, "mach_high": m_high,
             "variant_index": variant_order.index(vid), "engine_index": engine_order.index(eid),
             "model_code": MODEL_CODES[e.model], "table_id": table_ids.get(eid, -1),

@@ -28,7 +28,8 @@ from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
 from .results import export_frame
 from .sketch_view import NO_TABLE, SketchView
-from .view import NONE, Cell, justify, stepped
+from .sorting import SortCycle
+from .view import NONE, Cell, justify
 from .widgets import CautionBanner, FittingFooter
 
 #: The level schemes the l key steps through (the first is the default).
@@ -94,7 +95,7 @@ def computed_view(catalogue, conditions, scheme: str) -> tuple[CruiseView | None
         return None, f"could not compute the cruise table ({type(error).__name__}: {error})", 0.0
 
 
-class CruiseScreen(HoldsKeys, Screen):
+class CruiseScreen(SortCycle, HoldsKeys, Screen):
     """Cruise levels at the compare screen's conditions (weights, ISA deviations, speed, climb)."""
 
     PICTURE_NAME = "cruise"  # in the name of a saved SVG (f2)
@@ -258,12 +259,7 @@ class CruiseScreen(HoldsKeys, Screen):
 
     @on(DataTable.HeaderSelected)
     def header_selected(self, event: DataTable.HeaderSelected) -> None:
-        key = event.column_key.value
-        if key == self.sort_key:
-            self.descending = not self.descending
-        else:
-            self.sort_key, self.descending = key, COLUMNS_BY_KEY[key].high_first
-        self.render_table()
+        self.sort_by(event.column_key.value)
 
     @on(DataTable.RowSelected)
     def row_selected(self) -> None:
@@ -280,24 +276,19 @@ class CruiseScreen(HoldsKeys, Screen):
         if focus is not None:
             focus()
 
-    def _sort_step(self, step: int) -> None:
-        # Specific range first (best on top), then the level and the rest; ends with catalogue order.
+    # Sorting (sorting.SortCycle): specific range first (best on top), then the level and the rest.
+    FIRST_SORT = "sr"
+
+    def sort_columns(self) -> list[CruiseColumn]:
         first = ["sr", "level", "flow", "loss", "opt", "max", "limit"]
-        cycle: list[str | None] = first + [c.key for c in COLUMNS if c.key not in first + ["variant", "engine", "note"]]
-        self.sort_key = stepped(cycle + [None], self.sort_key, step)
-        self.descending = bool(self.sort_key and COLUMNS_BY_KEY[self.sort_key].high_first)
+        rest = [c.key for c in COLUMNS if c.key not in first + ["variant", "engine", "note"]]
+        return [COLUMNS_BY_KEY[key] for key in first + rest]
+
+    def sort_column(self, key: str) -> CruiseColumn:
+        return COLUMNS_BY_KEY[key]
+
+    def render_sorted(self) -> None:
         self.render_table()
-
-    def action_sort_next(self) -> None:
-        self._sort_step(1)
-
-    def action_sort_previous(self) -> None:
-        self._sort_step(-1)
-
-    def action_reverse_sort(self) -> None:
-        if self.sort_key is not None:
-            self.descending = not self.descending
-            self.render_table()
 
     def action_next_scheme(self) -> None:
         self.scheme = SCHEMES[(SCHEMES.index(self.scheme) + 1) % len(SCHEMES)]

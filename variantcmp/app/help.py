@@ -104,7 +104,7 @@ def help_renderable() -> Group:
     from .cruise_screen import CruiseScreen
     from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
     from .envelope_screen import EnvelopeScreen
-    from .hotday import HotDayScreen
+    from .hotday import PlannerScreen
     from .open_dialog import OpenDialog
     from .sweep_screen import SweepScreen
     from .variant_info import VariantScreen
@@ -112,7 +112,7 @@ def help_renderable() -> Group:
     parts = [Text(CAUTION, style="bold"), Text("")]
     for title, cls in (
         ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
-        ("Hot-day check", HotDayScreen), ("Cruise levels", CruiseScreen), ("Envelope view", EnvelopeScreen),
+        ("Planner", PlannerScreen), ("Cruise levels", CruiseScreen), ("Envelope view", EnvelopeScreen),
         ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),

@@ -23,7 +23,7 @@ from .dialogs import ExportDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
 from .help import APP_BINDINGS, HelpScreen, key_commands
 from .envelope_screen import EnvelopeScreen
-from .hotday import HotDayScreen
+from .hotday import PlannerScreen
 from .jobs import LatestJob
 from .keys import KeyHold
 from .open_dialog import OpenDialog
@@ -46,7 +46,7 @@ class VariantCmpApp(KeyHold, App[int]):
     # ctrl+p: every key of the screen on show (and of the app), found by name and run (help.key_commands).
     ENABLE_COMMAND_PALETTE = True
     # Top-level views, each keeping its own state while the user switches between them.
-    MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen,
+    MODES = {"compare": CompareScreen, "planner": PlannerScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen,
              "cruise": CruiseScreen}
     DEFAULT_MODE = "compare"
     compact_rows = var(False)  # a short terminal: one-line caution (widgets.CautionBanner)

@@ -142,13 +142,6 @@ def filter_rows(df: pl.DataFrame, text: str) -> pl.DataFrame:
     return df.filter(condition)
 
 
-def stepped(cycle: list, current, step: int):
-    """The entry ``step`` places after ``current`` in ``cycle``, going round (from the last entry
-    where ``current`` is not in it): the next sort column of a screen's s / S keys."""
-    position = cycle.index(current) if current in cycle else len(cycle) - 1
-    return cycle[(position + step) % len(cycle)]
-
-
 def sort_rows(df: pl.DataFrame, column: Column | None, descending: bool) -> pl.DataFrame:
     """Sort by one column; missing values always last; ties keep catalogue order."""
     if column is None or column.source not in df.columns:

@@ -10,6 +10,11 @@ from . import options, output
 from .output import Column, TextTable
 
 
+INVERSE_ROWS = (("heaviest", "heaviest weight for a level, fixed Mach"), ("hottest", "warmest day for a level, fixed Mach"),
+                ("heaviest_best", "heaviest weight for a level, best speed"),
+                ("hottest_best", "warmest day for a level, best speed"))
+
+
 def _positive_int(text: str) -> int:
     try:
         value = int(text.replace("_", "").replace(",", ""))
@@ -26,7 +31,8 @@ def add(subparsers) -> None:
         description="Time the vectorised ceiling solver on seeded synthetic fleets of jets and of turboprops: "
                     "fixed-Mach and best-speed maximum altitudes, a scalar one-case-at-a-time reference on a "
                     "subsample of each (also a correctness check), the demo fleet's interactive grid, and the "
-                    "cruise solvers (optimum altitude at a fixed Mach, MRC and LRC at a level).")
+                    "heaviest weight and the warmest day for a level at a fixed Mach and at the best speed, and "
+                    "the cruise solvers (optimum altitude at a fixed Mach, MRC and LRC at a level).")
     p.add_argument("--cases", action=options.Once, type=_positive_int, default=1_000_000,
                    help="fixed-Mach cases of each fleet (default 1,000,000)")
     p.add_argument("--best-cases", action=options.Once, type=_positive_int, default=100_000,
@@ -67,7 +73,7 @@ def run(args) -> int:
          f["turboprop_cruise_cases_per_s"]),
         ("turboprops: cruise MRC and LRC (FL170-FL250)", f["mrc_cases"], f["mrc_cases"] / f["turboprop_mrc_cases_per_s"],
          f["turboprop_mrc_cases_per_s"]),
-    ]
+    ] + [(words, f[f"{key}_cases"], f[f"{key}_seconds"], f[f"{key}_cases_per_s"]) for key, words in INVERSE_ROWS]
     columns = [Column("work", "Workload", "left"), Column("cases", "Cases"), Column("s", "Seconds"),
                Column("rate", "Cases/s")]
     cells = {"work": [r[0] for r in rows], "cases": [f"{r[1]:,}" for r in rows],
@@ -79,6 +85,8 @@ def run(args) -> int:
         f"largest vectorised - scalar difference: jets {diff['max_abs_diff_ft']}, turboprops "
         f"{diff['turboprop_max_abs_diff_ft']}; cases where only one finds an altitude: jets "
         f"{f['scalar_mismatched_cases']}, turboprops {f['turboprop_scalar_mismatched_cases']}",
+        "heaviest weight put back into the ceilings solver: largest difference from the level "
+        + ("n/a" if f["heaviest_round_trip_max_ft"] is None else f"{f['heaviest_round_trip_max_ft']:.4f} ft"),
         f"demo grid: {f['grid_ms']:.1f} ms; peak memory {f['peak_rss_mb']:,.0f} MB "
         f"(largest worker process {f['peak_rss_worker_mb']:,.0f} MB)"])
     output.print_caution(stderr=False)

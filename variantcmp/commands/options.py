@@ -19,6 +19,7 @@ from variantcmp.units import (
     OptionError,
     parse_climbs,
     parse_flight_level,
+    parse_flight_levels,
     parse_g_margin,
     parse_isa_devs,
     parse_mach,
@@ -112,6 +113,20 @@ def add_conditions(p, mach_default: str | None = "cruise", mach_help: str | None
                    help="required residual rate of climb: absolute, service, cruise (default) or ft/min")
     p.add_argument("--g-margin", action=Once, default="1.3", metavar="N",
                    help="load factor kept from buffet onset (default: 1.3, common practice)")
+
+
+def add_targets(p, help: str) -> None:
+    """--target LIST: the levels an inverse question asks about (dest ``targets``; required, checked
+    after the other options so that their mistakes are reported first)."""
+    p.add_argument("--target", dest="targets", action="append", metavar="LIST", help=help)
+
+
+def targets_from_args(args) -> list[float]:
+    """The --target levels in ft (OptionError when none is given)."""
+    if not args.targets:
+        raise OptionError("--target: give the flight level(s) to ask about, e.g. --target FL370 or "
+                          "--target FL350,FL370")
+    return parse_flight_levels(joined(args.targets, ""), "--target")
 
 
 def add_format(p, choices=("table", "csv", "json"), default: str = "table", help: str | None = None) -> None:

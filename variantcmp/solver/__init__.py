@@ -26,6 +26,11 @@ The package, one concern per module, each importing only those above it:
 - :mod:`~variantcmp.solver.cruise`, :mod:`~variantcmp.solver.cruise_speed`,
   :mod:`~variantcmp.solver.step_climb`: the cruise answers' stages (optimum altitude and the best
   level of a scheme; MRC and LRC at a level; step climbs).
+- the inverse questions at a target level: :mod:`~variantcmp.solver.level` (what the level allows
+  whatever the weight or the day), :mod:`~variantcmp.solver.speed_search` (the best speed at a
+  fixed level), :mod:`~variantcmp.solver.heaviest` (:func:`solve_heaviest`: the heaviest weight),
+  :mod:`~variantcmp.solver.hottest` (:func:`solve_hottest`: the warmest day), on
+  :mod:`~variantcmp.solver.answers` (per-case records, chunks).
 
 This module gives the names the rest of the package uses.
 """
@@ -35,6 +40,8 @@ from .best_speed import best_speed_ceilings
 from .coarse import BEST_MACH_GRID, mach_grid
 from .finders import bisect_root, golden_max, nan_as_lowest
 from .fixed_mach import fixed_mach_ceilings
+from .heaviest import Heaviest, solve_heaviest
+from .hottest import Hottest, solve_hottest
 from .limits import buffet_ceiling_m, buffet_cl_at, buffet_peak_mach, closed_form_ceilings_m
 from .parallel import solve_ceilings
 from .physics import THRUST_MODELS, ClimbPhysics
@@ -45,8 +52,9 @@ from .thrust_ceiling import SCAN_LEVELS_M, thrust_ceiling_m
 
 __all__ = [
     "ABOVE_MMO", "ABOVE_MODEL_TOP", "BELOW_FLOOR", "BELOW_VMO_FLOOR", "BEST_MACH_GRID", "CANNOT_CLIMB", "LIMITS",
-    "MODEL_TOP_M", "NO_BUFFET_AT_MACH", "NO_COMMON_ALTITUDE", "PROPELLER_DATA_MACH", "SCAN_LEVELS_M", "THRUST_DATA_MACH", "THRUST_DATA_TOP",
-    "THRUST_MODELS", "UNFLYABLE", "Ceilings", "ClimbPhysics", "best_speed_ceilings", "bisect_root",
+    "MODEL_TOP_M", "NO_BUFFET_AT_MACH", "NO_COMMON_ALTITUDE", "PROPELLER_DATA_MACH", "SCAN_LEVELS_M",
+    "THRUST_DATA_MACH", "THRUST_DATA_TOP", "THRUST_MODELS", "UNFLYABLE", "Ceilings", "ClimbPhysics", "Heaviest", "Hottest",
+    "best_speed_ceilings", "bisect_root",
     "buffet_ceiling_m", "buffet_cl_at", "buffet_peak_mach", "closed_form_ceilings_m", "fixed_mach_ceilings",
-    "golden_max", "mach_grid", "nan_as_lowest", "solve_ceilings", "thrust_ceiling_m",
+    "golden_max", "mach_grid", "nan_as_lowest", "solve_ceilings", "solve_heaviest", "solve_hottest", "thrust_ceiling_m",
 ]

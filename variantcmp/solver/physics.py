@@ -51,7 +51,7 @@ from typing import Callable
 
 import numpy as np
 
-from ..aero import energy_share_factor, korn_coefficients, lock_wave_drag
+from ..aero import energy_share_factor, korn_coefficients, lock_wave_drag, pressure_climb_factor
 from ..atmosphere import G0, GAMMA, R_AIR, RHO0_KG_M3, T0_K, isa_state, speed_of_sound_ms
 from ..cases import FT, MODEL_CODES, CaseSet, CaseView
 from ..thrust import (density_lapse_from_logs, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms,
@@ -329,14 +329,16 @@ class ClimbPhysics:
         return thrust
 
     def _drag(self, at: Point):
-        cs, col = self.cases, at.col
-        q_s = col(at.terms["qs_per_p"]) * at.p
-        cl = col(self.w_n) / q_s
+        return self._polar_drag(at.col(at.terms["qs_per_p"]) * at.p, at.m, at.col(self.w_n), at.col)
+
+    def _polar_drag(self, q_s, m, w_n, col):
+        cs = self.cases
+        cl = w_n / q_s
         cd = cl * cl
         cd *= col(cs.k)
         cd += col(cs.cd0)
         if self.has_wave:
-            cd += lock_wave_drag(at.m, col(self.m_crit0) - col(self.m_crit_slope) * cl)
+            cd += lock_wave_drag(m, col(self.m_crit0) - col(self.m_crit_slope) * cl)
         return q_s * cd
 
     def available_thrust_n(self, altitude_m, mach=None):
@@ -352,6 +354,26 @@ class ClimbPhysics:
         """:meth:`drag_n` at a static pressure (Pa; per case, or rows per case) instead of an
         altitude: no atmosphere is evaluated (the cruise solvers search in pressure)."""
         return self._drag(PressurePoint(self, pressure_pa, mach))
+
+    def level_drag_n(self, q_s, mach, weight_n):
+        """Drag (N) in level flight at 1 g at other weights than the cases' own, from q S (N) at
+        each case's point (:meth:`level_terms`): the polar of :meth:`drag_n`. ``q_s`` is (N,) or
+        (N, L) with ``mach`` and ``weight_n`` per case or of its shape."""
+        q_s = np.asarray(q_s, dtype=float)
+        col = _column if q_s.ndim == 2 else _same
+        m, w = (np.asarray(x, dtype=float) for x in (mach, weight_n))
+        return self._polar_drag(q_s, col(m) if m.ndim < q_s.ndim else m, col(w) if w.ndim < q_s.ndim else w, col)
+
+    def level_terms(self, altitude_m, mach=None):
+        """The climb equation's terms that do not depend on the weight, at a point: the thrust
+        F (N), q S (N) and the climb speed factor sf = V (T_ISA/T) f (m/s), so that
+        dh_p/dt = (F - D(W)) sf / W (the equation of :meth:`climb_rate_ms`, with
+        :func:`variantcmp.aero.pressure_climb_factor`). For questions about the weight: the
+        heaviest weight that holds a level."""
+        at = Point(self, altitude_m, mach)
+        q_s = at.col(at.terms["qs_per_p"]) * at.p
+        speed_factor = at.m * speed_of_sound_ms(at.t) * pressure_climb_factor(at.m, at.t, at.t_isa, at.lapse)
+        return self._thrust(at), q_s, speed_factor
 
     def climb_rate_ms(self, altitude_m, mach=None):
         """Residual rate of climb (m/s of pressure altitude) at constant Mach.
