@@ -5,8 +5,8 @@ import numpy as np
 import pytest
 from scipy.optimize import brentq, minimize_scalar
 
-from variantcmp.solver.finders import (BREAK_EPS, Family, bisect_root, brent_max, golden_max, illinois_root,
-                                       newton_secant_root, parabola_peak)
+from variantcmp.solver.finders import (BREAK_EPS, EDGE_BISECT_STEPS, Family, bisect_root, brent_max, edge_root,
+                                       golden_max, illinois_root, newton_secant_root, parabola_peak)
 
 RNG = np.random.default_rng(15)
 N = 200
@@ -100,6 +100,25 @@ def test_bisect_root_against_brentq(rising):
     got = bisect_root(lambda x: sign * (c * x - np.cos(x)), np.zeros(100), np.full(100, 2.0), rising, 50)
     for i in range(100):
         assert got[i] == pytest.approx(brentq(lambda x: c[i] * x - np.cos(x), 0.0, 2.0, xtol=1e-14), abs=1e-12)
+
+
+def test_edge_root_against_brentq_and_where_the_data_end():
+    # Reference: brentq on cos(x) - c x (one root on [0, 2] for c in (0, 1]), searched from 0
+    # (inside, f >= 0) towards an end: 2 (the root between), 0.3 x root (f >= 0 there: the end
+    # itself), or 2 with the function undefined (NaN) beyond a cut below the root, where the edge
+    # is the cut, to the bisection's 2 / 2^22, on its near side (a false position cannot use a
+    # NaN or -inf end).
+    c = RNG.uniform(0.1, 1.0, 90)
+    roots = np.array([brentq(lambda x: c[i] * x - np.cos(x), 0.0, 2.0, xtol=1e-14) for i in range(90)])
+    kind = np.arange(90) % 3
+    cut = np.where(kind == 2, 0.8 * roots, np.inf)
+    f = Family(lambda x, c, cut: np.where(x > cut, np.nan, np.cos(x) - c * x), c, cut)
+    end = np.where(kind == 1, 0.3 * roots, 2.0)
+    got = edge_root(f, np.zeros(90), f(np.zeros(90)), end, 1e-10)
+    expected = np.select([kind == 0, kind == 1], [roots, end], cut)
+    slack = np.where(kind == 2, 2.0 / 2**EDGE_BISECT_STEPS, 1e-9)
+    assert np.all(np.abs(got - expected) <= slack)
+    assert np.all(got[kind == 2] <= cut[kind == 2])  # never where the function has no value
 
 
 def _peaked(x, kind, c, w):

@@ -27,7 +27,7 @@ import numpy as np
 from ..airspeed import cas_to_mach
 from ..atmosphere import G0, GAMMA, isa_pressure_pa
 from .cruise import CANNOT_HOLD_LEVEL, FUEL_DATA_MACH, NO_FUEL_DATA, NO_SPEED, NO_SPEED_IN_BUFFET_MARGIN
-from .finders import bisect_root, golden_max, illinois_root, nan_as_lowest
+from .finders import edge_root, golden_max, illinois_root, nan_as_lowest
 from .fuel_flow import NO_FUEL, CruisePhysics, in_chunks
 from .limits import buffet_cl_at, buffet_peak_mach
 
@@ -39,7 +39,7 @@ SPEED_LIMITS = ("speed range", "stall", "buffet", "MMO", "VMO", "fuel data", "th
 RANGE, STALL, BUFFET, MMO, VMO, FUEL, THRUST = range(len(SPEED_LIMITS))
 MRC_SCAN = 9  # Machs scanned over the range before the golden section
 MRC_STEPS = 20  # golden-section steps: two scan steps (at most 0.125) x 0.618^20, about 8e-6 in Mach
-BISECT_STEPS = 22  # bisection on a Mach range of at most 1: 2.4e-7
+ROOT_TOL_MACH = 1e-8  # the edges of the buffet margin's and thrust's speed bands
 THRUST_PEAK_STEPS = 12  # golden section for a speed inside the thrust band (only needs to be inside)
 LRC_TOL = 1e-8  # Mach
 AT_BOUND = 1e-12  # an answer on an end of the range (Mach) is held there
@@ -64,7 +64,7 @@ class CruiseSpeeds:
 def buffet_mach_band(cases, pressure_pa):
     """Machs at which the buffet margin holds at a pressure: n W <= (gamma/2) p M^2 S CL_b(M)
     (Anderson, *Introduction to Flight*, eq. 4.83), the band around the boundary's peak of
-    M^2 CL_b(M) (:func:`~variantcmp.solver.limits.buffet_peak_mach`), by bisection on each side.
+    M^2 CL_b(M) (:func:`~variantcmp.solver.limits.buffet_peak_mach`), by regula falsi on each side.
     (low, high); -inf, +inf without buffet data; NaN where the margin holds at no speed."""
     n = len(cases)
     low, high = np.full(n, -np.inf), np.full(n, np.inf)
@@ -75,15 +75,29 @@ def buffet_mach_band(cases, pressure_pa):
     data_lo, data_hi = sub.buffet_low[sub.buffet_id], sub.buffet_high[sub.buffet_id]
     need = sub.g_margin * sub.weight_kg * G0 / (0.5 * GAMMA * sub.wing_area_m2 * np.asarray(pressure_pa)[has])
 
-    def capacity(m):
-        return m * m * buffet_cl_at(sub, m) - need
-
+    capacity = _BuffetRoom(sub, need)
     peak = buffet_peak_mach(sub, data_lo, data_hi)
-    holds = capacity(peak) >= 0.0
-    lo = np.where(capacity(data_lo) >= 0.0, data_lo, bisect_root(capacity, data_lo, peak, True, BISECT_STEPS))
-    hi = np.where(capacity(data_hi) >= 0.0, data_hi, bisect_root(capacity, peak, data_hi, False, BISECT_STEPS))
+    at_peak = capacity(peak)
+    holds = at_peak >= 0.0
+    lo = edge_root(capacity, peak, at_peak, data_lo, ROOT_TOL_MACH)
+    hi = edge_root(capacity, peak, at_peak, data_hi, ROOT_TOL_MACH)
     low[has], high[has] = np.where(holds, lo, np.nan), np.where(holds, hi, np.nan)
     return low, high
+
+
+class _BuffetRoom:
+    """M^2 CL_b(M) less what the buffet margin needs, per case, as a function of Mach (a family)."""
+
+    __slots__ = ("cases", "need")
+
+    def __init__(self, cases, need):
+        self.cases, self.need = cases, need
+
+    def __call__(self, mach):
+        return mach * mach * buffet_cl_at(self.cases, mach) - self.need
+
+    def subset(self, keep):
+        return _BuffetRoom(self.cases.take(keep), self.need[keep])
 
 
 def speed_bounds(cruise: CruisePhysics, pressure_pa):
@@ -206,19 +220,31 @@ def thrust_margin_n(cruise: CruisePhysics, pressure_pa, altitude_m, mach):
         return nan_as_lowest(phys.available_thrust_n(altitude_m, mach) - phys.drag_at_pressure_n(pressure_pa, mach))
 
 
+class _ThrustRoom:
+    """Thrust less drag in level flight at fixed pressures, as a function of Mach (a family)."""
+
+    __slots__ = ("cruise", "p", "h")
+
+    def __init__(self, cruise, p, h):
+        self.cruise, self.p, self.h = cruise, p, h
+
+    def __call__(self, mach):
+        return thrust_margin_n(self.cruise, self.p, self.h, mach)
+
+    def subset(self, keep):
+        return _ThrustRoom(self.cruise.subset(keep), self.p[keep], self.h[keep])
+
+
 def thrust_band(cruise: CruisePhysics, pressure_pa, altitude_m, low, high):
     """The Machs in [low, high] at which thrust holds the level (F >= D): (low, high, holds).
 
-    The margin F - D is taken as single-peaked in Mach: its maximum by golden section, then a
-    bisection on each side where the margin is negative at that end."""
-    def margin(m):
-        return thrust_margin_n(cruise, pressure_pa, altitude_m, m)
-
+    The margin F - D is taken as single-peaked in Mach: a speed inside the band by golden section
+    on it, then the band's edge on each side where the margin is negative at that end (regula
+    falsi)."""
+    margin = _ThrustRoom(cruise, pressure_pa, altitude_m)
     peak, best = golden_max(margin, low, high, THRUST_PEAK_STEPS)
-    holds = best >= 0.0
-    lo = np.where(margin(low) >= 0.0, low, bisect_root(margin, low, peak, True, BISECT_STEPS))
-    hi = np.where(margin(high) >= 0.0, high, bisect_root(margin, peak, high, False, BISECT_STEPS))
-    return lo, hi, holds
+    return (edge_root(margin, peak, best, low, ROOT_TOL_MACH), edge_root(margin, peak, best, high, ROOT_TOL_MACH),
+            best >= 0.0)
 
 
 def _speeds_within(cruise, p, h, low, high):

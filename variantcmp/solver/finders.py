@@ -164,6 +164,38 @@ def bisect_root(func, lo, hi, rising, iterations):
     return 0.5 * (lo + hi)
 
 
+#: Bisection steps of :func:`edge_root` where the function has no value at the end (a bracket of
+#: at most 1 in x, e.g. a Mach range: 2.4e-7).
+EDGE_BISECT_STEPS = 22
+
+
+def edge_root(f, inside, f_inside, end, tol):
+    """Per member of the family ``f``, the edge of the region where f >= 0, going from ``inside``
+    (where f >= 0) towards ``end``: ``end`` itself where f >= 0 there too, else the root between
+    them. Guarantees: the result is never beyond ``end``; where f(end) is a number the root is that
+    of :func:`illinois_root` to ``tol``; where f has no value at the end (NaN or -inf: the
+    function's data end there, and a false position cannot use an infinite end) it is a point
+    where f >= 0 within |end - inside| / 2^EDGE_BISECT_STEPS of the edge of the region
+    (bisection, NaN counting as below zero)."""
+    out = np.array(end, dtype=float)
+    inside, f_inside = np.asarray(inside, dtype=float), np.asarray(f_inside, dtype=float)
+    f_end = f(out)
+    todo = (f_inside >= 0.0) & ~(f_end >= 0.0)
+    finite = np.flatnonzero(todo & np.isfinite(f_end))
+    if finite.size:
+        out[finite] = illinois_root(f.subset(finite), inside[finite], out[finite], f_inside[finite], f_end[finite], tol)
+    blank = np.flatnonzero(todo & ~np.isfinite(f_end))
+    if blank.size:  # bisection, ending on the side where f >= 0
+        sub, good, bad = f.subset(blank), inside[blank], out[blank]
+        for _ in range(EDGE_BISECT_STEPS):
+            mid = 0.5 * (good + bad)
+            with np.errstate(invalid="ignore"):
+                up = sub(mid) >= 0.0
+            good, bad = np.where(up, mid, good), np.where(up, bad, mid)
+        out[blank] = good
+    return out
+
+
 def golden_max(func, a, b, iterations):
     """Vectorised golden-section search for the maximum of ``func(x)`` on each [a, b].
 
