@@ -456,3 +456,79 @@ def test_step_climb_properties(demo, heavy_pct, burn_pct, dev, scheme):
         entered = ceilings_table(demo, Conditions(weights=tuple(WeightSpec(w, "kg") for w in group["start_weight_kg"]),
                                                   isa_devs_c=(dev,), variants=(vid,), engines=(eid,)))
         assert np.all(entered["max_altitude_ft"].to_numpy() >= group["flight_level"].to_numpy() * 100 - 0.05)
+
+
+def _turboprop_catalogue(tmp_path):
+    """A catalogue of our own with a turboprop: 2 x 2,400 kW, constant eta 0.85, PSFC 0.28 kg/kWh."""
+    engine = {"id": "tp", "model": "turboprop", "shaft_power_kw": 2400.0, "lapse_exponent": 0.75,
+              "propeller_efficiency": 0.85, "psfc_kg_per_kwh": 0.28}
+    return write_catalogue(tmp_path / "turboprop.toml", [engine],
+                           [variant_spec(engine_options=["tp"], cruise_mach=0.45, mtow_kg=22_000.0)])
+
+
+def test_turboprop_fuel_flow_by_hand(tmp_path):
+    # Hand calculation (ISO 2533 ISA; the issue's model: fuel flow = PSFC x shaft power needed,
+    # shaft power = D V / eta, PSFC = c0 sqrt(theta)) at FL200 ISA, M0.45, 18,000 kg, on the
+    # clean airframe of tests/specs.py (S 80 m2, CD0 0.022, K = 1/(pi 9 0.8)):
+    #   h = 6,096 m, T = 248.526 K, p = 46,563.2 Pa, a = 316.032 m/s, V = 142.214 m/s
+    #   q S = 0.7 p M^2 S = 528,027 N, CL = 0.33430, CD = 0.022 + K CL^2 = 0.026941, D = 14,225 N
+    #   P = D V / 0.85 = 2,380.1 kW; c = 0.28 / 3.6e6 x sqrt(248.526 / 288.15) = 7.2232e-8 kg/(W s)
+    #   fuel flow = c P = 0.17192 kg/s = 618.9 kg/h; SR = V / FF = 446.7 NM/t.
+    cat = _turboprop_catalogue(tmp_path)
+    row = speed_table(cat, Conditions(weights=_kg(18_000.0), mach=0.45), [20_000.0], None).row(0, named=True)
+    assert row["fuel_flow_kg_h"] == pytest.approx(618.9, rel=0.005)
+    assert row["specific_range_nm_per_t"] == pytest.approx(446.7, rel=0.005)
+
+
+def test_turboprop_cruise_answers_end_to_end(tmp_path):
+    # Through the catalogue, the turboprop's cruise answers follow the propeller closed forms
+    # (see the tests above: the optimum in the isothermal layer at CL = sqrt(CD0/K); MRC at
+    # CL = sqrt(CD0/K) with a constant efficiency); at its cruise Mach the cruise level is within
+    # the maximum altitude that ceilings gives (round trip), and the fuel flow there is the
+    # issue's PSFC x D V / eta with PSFC = c0 sqrt(theta) (ambiance for the ICAO atmosphere).
+    cat = _turboprop_catalogue(tmp_path)
+    v = cat.variants["a1"]
+    fast = cruise_table(cat, Conditions(weights=_kg(17_000.0, 20_000.0), isa_devs_c=(0.0, 15.0), mach=0.62), "1000")
+    p_opt = fast["weight_kg"].to_numpy() * G / (0.7 * 0.62**2 * v.wing_area_m2 * math.sqrt(v.cd0 / v.k))
+    expected_ft = Atmosphere.from_pressure(p_opt).H / FT
+    assert np.all((expected_ft > 36_089.0) & (expected_ft < 65_617.0))  # the isothermal layer
+    np.testing.assert_allclose(fast["optimum_altitude_ft"].to_numpy(), expected_ft, atol=25.0)
+    conditions = Conditions(weights=_kg(15_000.0, 17_000.0), isa_devs_c=(0.0, 15.0))  # the cruise Mach, 0.45
+    f, c = cruise_table(cat, conditions, "1000"), ceilings_table(cat, conditions)
+    level_ft = f["cruise_fl"].to_numpy().astype(float) * 100.0
+    assert np.all(np.isfinite(c["max_altitude_ft"].to_numpy())) and np.all(level_ft <= c["max_altitude_ft"].to_numpy())
+    air = Atmosphere.from_pressure(isa_pressure_pa(level_ft * FT))
+    temp_k = air.temperature + f["isa_dev_c"].to_numpy()
+    speed_ms = 0.45 * np.sqrt(1.4 * R * temp_k)
+    qs = 0.7 * air.pressure * 0.45**2 * v.wing_area_m2
+    drag_n = qs * (v.cd0 + v.k * (f["weight_kg"].to_numpy() * G / qs) ** 2)
+    flow_kg_h = 0.28 / 3.6e6 * np.sqrt(temp_k / 288.15) * drag_n * speed_ms / 0.85 * 3600.0
+    np.testing.assert_allclose(f["fuel_flow_kg_h"].to_numpy(), flow_kg_h, rtol=1e-3)
+    speeds = speed_table(cat, Conditions(weights=_kg(17_000.0), mach="cruise"), [18_000.0], "mrc").row(0, named=True)
+    p = isa_pressure_pa(18_000.0 * FT)
+    mrc = math.sqrt(17_000.0 * G / (0.7 * p * v.wing_area_m2 * math.sqrt(v.cd0 / v.k)))
+    assert speeds["mrc_mach"] == pytest.approx(mrc, abs=0.002) and speeds["mach"] == speeds["mrc_mach"]
+
+
+def test_a_mach_asked_at_a_level_where_thrust_cannot_hold_it_says_so(tmp_path):
+    # Hand calculation (ISO 2533 ISA; density lapse F = n F0 sigma, Mattingly et al.; the parabolic
+    # polar) at FL350 ISA, 36,000 kg, on the clean airframe (S 80 m2, CD0 0.022, K = 0.044210), two
+    # engines of 41 kN, MMO 0.78:
+    #   rho = 23,842.3 / (287.053 x 218.808) = 0.37960 kg/m3, sigma = 0.30988, F = 25,410 N
+    #   drag D = q S CD0 + K W^2 / (q S), q S = 0.7 p M^2 S = 1,335,167 M^2 N, W = 353,039 N:
+    #   M0.45: q S = 270,371 N, CL = 1.3058, D = 26,329 N > F: thrust cannot hold the level there;
+    #   M0.70: D = 22,815 N < F; M0.78 (MMO, where MRC and LRC sit): D = 24,654 N < F.
+    # So at M0.45 there is no fuel flow and the note says why; at M0.70 there is one; MRC holds.
+    rho = Atmosphere.from_pressure(isa_pressure_pa(35_000.0 * FT)).density[0]
+    assert 2 * 41_000.0 * rho / 1.225 == pytest.approx(25_410.0, rel=1e-3)  # ambiance: the same density
+    cat = write_catalogue(tmp_path / "thin.toml",
+                          [engine_spec(id="thin", static_thrust_kn=41.0, tsfc_mg_per_ns=15.0)],
+                          [variant_spec(engine_options=["thin"], mmo=0.78)])
+    asked = speed_table(cat, Conditions(weights=_kg(36_000.0), mach=0.45), [35_000.0], None).row(0, named=True)
+    assert asked["fuel_flow_kg_h"] is None and asked["specific_range_nm_per_t"] is None and asked["mach"] is None
+    assert "thrust cannot hold FL350 at M0.450" in asked["note"]
+    held = speed_table(cat, Conditions(weights=_kg(36_000.0), mach=0.7), [35_000.0], None).row(0, named=True)
+    assert held["fuel_flow_kg_h"] > 0 and "thrust cannot hold" not in (held["note"] or "")
+    mrc = speed_table(cat, Conditions(weights=_kg(36_000.0)), [35_000.0], "mrc").row(0, named=True)
+    assert mrc["mrc_mach"] == pytest.approx(0.78, abs=1e-6) and mrc["speed_limit"] == "MMO"
+    assert mrc["fuel_flow_kg_h"] > 0

@@ -13,7 +13,7 @@ from .. import solver as s
 from ..atmosphere import isa_pressure_pa
 from ..cases import FT, CaseIndex
 from ..solver import cruise as cr
-from ..solver.cruise_speed import SPEED_LIMITS, cruise_speeds
+from ..solver.cruise_speed import SPEED_LIMITS, cruise_speeds, thrust_margin_n
 from ..solver.fuel_flow import TSFC_TABLE, CruisePhysics
 from ..units import OptionError, format_flight_level
 from .ceilings import case_notes, empty_weight_floor_kg, feet, solve
@@ -214,7 +214,12 @@ def speed_table(catalogue, conditions: Conditions, levels_ft, speed) -> pl.DataF
     chosen = cases.with_mach(np.where(np.isfinite(mach), mach, cases.mach))
     res = s.solve_ceilings(chosen)
     p = isa_pressure_pa(level_m)
-    inside = (mach >= speeds.low - 1e-9) & (mach <= speeds.high + 1e-9)
+    in_range = (mach >= speeds.low - 1e-9) & (mach <= speeds.high + 1e-9)
+    holds = np.ones(len(cases), dtype=bool)
+    if speed is None:  # a Mach asked for: thrust must hold the level there too (MRC and LRC are solved within)
+        with np.errstate(invalid="ignore"):
+            holds = thrust_margin_n(cruise, p, level_m, mach) >= 0.0
+    inside = in_range & holds
     with np.errstate(invalid="ignore"):
         flow = np.where(inside, cruise.fuel_flow_kg_s(p, mach, level_m), np.nan)
         sr = np.where(inside, cruise.specific_range_m_per_kg(p, mach, level_m), np.nan)
@@ -227,7 +232,9 @@ def speed_table(catalogue, conditions: Conditions, levels_ft, speed) -> pl.DataF
     names = np.array(SPEED_LIMITS + (None,), dtype=object)
     for i in range(len(cases)):
         notes[i] += speed_notes(int(speeds.flags[i]), levels_ft[i % k], mach[i], speeds.low[i], speeds.high[i],
-                                inside[i], speed, names[bound[i]])
+                                in_range[i], speed, names[bound[i]])
+        if not holds[i] and not speeds.flags[i]:
+            notes[i].append(f"thrust cannot hold {format_flight_level(levels_ft[i % k])} at M{mach[i]:.3f}")
         if np.isfinite(max_ft[i]) and max_ft[i] < level_m[i] / FT and np.isfinite(mach[i]):
             notes[i].append(f"{format_flight_level(level_m[i] / FT)} above the maximum altitude at M{mach[i]:.3f} "
                             f"({format_flight_level(max_ft[i])})")
