@@ -1,12 +1,16 @@
 """``variantcmp cruise`` as a user runs it: the three answers, their columns, errors and exit codes."""
 
+import math
 import subprocess
 import sys
 
+import numpy as np
 import polars as pl
 import pytest
+from ambiance import Atmosphere
 
 from test_cli import read_csv, run
+from variantcmp.atmosphere import isa_pressure_pa
 from variantcmp.caution import CAUTION
 from variantcmp.table.cruise import CRUISE_COLUMNS, SPEED_COLUMNS
 from variantcmp.table.step_climb import STEP_COLUMNS
@@ -87,3 +91,37 @@ def test_cruise_runs_as_a_module_without_a_traceback():
                            "--mach", "mrc"], capture_output=True, text=True, timeout=120)
     assert done.returncode == 0, done.stderr
     assert "MRC" in done.stdout and "Traceback" not in done.stderr
+
+
+def test_turboprop_options_of_the_demo_fleet_end_to_end(capsys, demo):
+    # The Tarvane turboprops with their Tavish options, through the command: every row has a
+    # cruise level within the maximum altitude and the fuel flow there is the issue's PSFC x
+    # D V / eta, PSFC = c0 sqrt(theta), written out here: ISA by ambiance (ICAO standard
+    # atmosphere), the parabolic polar with the Korn/Lock wave drag (Malone & Mason 1995), the
+    # propeller efficiency interpolated linearly in the catalogue's Mach table (numpy.interp).
+    status, out, err = run(capsys, "cruise", "--variant", "t72,t78", "--weight", "90%mtow", "--isa=0,15",
+                           "--format", "csv")
+    assert status == 0, err
+    frame = read_csv(out)
+    assert frame.height == 8 and set(frame["engine"]) == {"tavish-20", "tavish-24"}
+    for row in frame.iter_rows(named=True):
+        v, e = demo.variants[row["variant"]], demo.engines[row["engine"]]
+        assert row["cruise_fl"] * 100 <= row["max_altitude_ft"] and row["fuel_flow_kg_h"] > 0
+        air = Atmosphere.from_pressure(isa_pressure_pa(row["cruise_fl"] * 100 * 0.3048))
+        temp_k, m = air.temperature[0] + row["isa_dev_c"], row["mach"]
+        qs = 0.7 * air.pressure[0] * m * m * v.wing_area_m2
+        cl = row["weight_kg"] * 9.80665 / qs
+        cos = math.cos(math.radians(v.sweep_deg))
+        m_crit = v.korn_factor / cos - v.thickness_ratio / cos**2 - cl / (10 * cos**3) - (0.1 / 80) ** (1 / 3)
+        drag_n = qs * (v.cd0 + v.k * cl * cl + 20.0 * max(m - m_crit, 0.0) ** 4)
+        eta = e.propeller_efficiency or np.interp(m, e.propeller_efficiency_mach, e.propeller_efficiency_table)
+        speed_ms = m * math.sqrt(1.4 * 287.05287 * temp_k)
+        flow_kg_h = e.psfc_kg_per_kwh / 3.6e6 * math.sqrt(temp_k / 288.15) * drag_n * speed_ms / eta * 3600.0
+        assert row["fuel_flow_kg_h"] == pytest.approx(flow_kg_h, rel=1e-3)
+        assert row["specific_range_nm_per_t"] == pytest.approx(speed_ms / flow_kg_h * 3.6 / 1.852 * 1000, rel=2e-3)
+    # MRC and LRC at a level, as a table for people.
+    status, out, err = run(capsys, "cruise", "--variant", "t72", "--weight", "21t", "--level", "FL200,FL240",
+                           "--mach", "lrc")
+    assert status == 0, err
+    assert out.count("tavish-") == 4 and "nan" not in out and "inf" not in out
+    assert out.rstrip().endswith(CAUTION)
