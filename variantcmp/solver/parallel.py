@@ -23,6 +23,10 @@ and allocate thousands of chunk-sized temporaries, and glibc gives the top of it
 system whenever enough is free, so each page came back with a fault (about 10,000 a chunk; 600
 with the setting). If a chunk fails, the job is solved again in the calling process, where the
 error shows with its cause. numpy threads were measured and gained nothing here.
+
+:func:`map_chunks` is that machinery for any chunk solver that returns :class:`Ceilings` (one or
+several per chunk): :func:`solve_ceilings` is one, the engine-out ceilings
+(:func:`variantcmp.solver.engine_out.engine_out_ceilings`) another.
 """
 
 from __future__ import annotations
@@ -92,18 +96,33 @@ def solve_ceilings(cases: CaseSet, chunk: int | None = None, processes: int | No
         # A best-speed case is some fifteen fixed-Mach solves: weigh the work, not the count.
         work = n + (BEST_SPEED_WORK - 1) * n_best
         processes = min(MAX_WORKERS, os.cpu_count() or 1) if work >= PARALLEL_MIN_CASES else 1
-    # Chunk bounds from n and chunk alone (a case's answer never depends on the process count),
-    # their number a multiple of the most workers used, so that workers get equal shares.
+    return map_chunks(cases, lambda part: (solve_chunk(part),), 1, chunk, processes)[0]
+
+
+def chunk_bounds(n: int, chunk: int) -> list[tuple[int, int]]:
+    """Chunk bounds from n and chunk alone (a case's answer never depends on the process count),
+    their number a multiple of the most workers used, so that workers get equal shares."""
     count = -(-n // max(1, chunk))
     count = -(-count // MAX_WORKERS) * MAX_WORKERS if count > 1 else 1
-    processes = max(1, min(processes, count))
     size = -(-n // count)
-    bounds = [(start, min(start + size, n)) for start in range(0, n, size)]
+    return [(start, min(start + size, n)) for start in range(0, n, size)]
+
+
+def map_chunks(cases: CaseSet, solve, outputs: int, chunk: int, processes: int) -> list[Ceilings]:
+    """``solve(part)`` (a tuple of ``outputs`` :class:`Ceilings` for the chunk ``part``) over the
+    chunks of :func:`chunk_bounds`, in ``processes`` processes (see :func:`_solve_in_processes`),
+    put together: one :class:`Ceilings` per output for all the cases."""
+    n = len(cases)
+    if n == 0:
+        return [Ceilings.allocate(0) for _ in range(outputs)]
+    bounds = chunk_bounds(n, chunk)
+    processes = max(1, min(processes, len(bounds)))
     if processes > 1 and sys.platform.startswith("linux"):
-        solved = _solve_in_processes(cases, bounds, processes)
+        solved = _solve_in_processes(cases, bounds, processes, solve, outputs)
         if solved is not None:
             return solved
-    return Ceilings.concat([solve_chunk(cases.take(slice(a, b))) for a, b in bounds])
+    parts = [solve(cases.take(slice(a, b))) for a, b in bounds]
+    return [Ceilings.concat([p[k] for p in parts]) for k in range(outputs)]
 
 
 def _shared_array(n: int, dtype) -> np.ndarray:
@@ -112,7 +131,7 @@ def _shared_array(n: int, dtype) -> np.ndarray:
     return np.frombuffer(mmap.mmap(-1, max(1, n * dtype.itemsize)), dtype=dtype, count=n)
 
 
-def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | None:
+def _solve_in_processes(cases: CaseSet, bounds, processes: int, solve, outputs: int) -> list[Ceilings] | None:
     """Chunks shared between this process and ``processes - 1`` forked workers, each taking the
     next chunk as it finishes one.
 
@@ -123,7 +142,7 @@ def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | No
     then solves in this process, where a failure shows with its cause.
     """
     ctx = multiprocessing.get_context("fork")
-    out = Ceilings.allocate(len(cases), _shared_array)
+    out = [Ceilings.allocate(len(cases), _shared_array) for _ in range(outputs)]
     next_chunk = ctx.Value("q", 0)
 
     def work():
@@ -134,7 +153,8 @@ def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | No
             if k >= len(bounds):
                 break
             part = slice(*bounds[k])
-            out.put(part, solve_chunk(cases.take(part)))
+            for target, result in zip(out, solve(cases.take(part))):
+                target.put(part, result)
 
     def child():
         try:
