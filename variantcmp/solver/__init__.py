@@ -18,7 +18,11 @@ The package, one concern per module, each importing only those above it:
 - :mod:`~variantcmp.solver.coarse`, :mod:`~variantcmp.solver.thrust_best`,
   :mod:`~variantcmp.solver.best_speed`: the best-speed search's stages (coarse grid; the thrust
   ceiling's best speed; the combined maximum altitude and the checks);
-- :mod:`~variantcmp.solver.parallel`: :func:`solve_ceilings`, chunks and processes.
+- :mod:`~variantcmp.solver.parallel`: :func:`solve_ceilings`, chunks and processes (:func:`map_chunks`);
+- one engine inoperative, from the pieces above: :mod:`~variantcmp.solver.engine_out` (the derived
+  case sets, the gross and net ceilings), :mod:`~variantcmp.solver.gradient` (the speed window and
+  the best climb gradient at an altitude), :mod:`~variantcmp.solver.gradient_ceiling` (the
+  engine-out ceilings' own search), :mod:`~variantcmp.solver.driftdown` (the drift-down paths).
 
 This module gives the names the rest of the package uses.
 """

@@ -1,0 +1,301 @@
+"""The highest pressure altitude where a case set's best climb gradient is zero: the search for the
+engine-out ceilings.
+
+On an engine-out case set (:func:`variantcmp.solver.engine_out.engine_out_cases`) the gross or the
+net ceiling is the absolute ceiling at the best speed, which the general best-speed search
+(:func:`~variantcmp.solver.parallel.solve_ceilings`) gives. That search is built for all-engines
+cases, where most speeds of a case's range climb somewhere; with one engine out most of them hold
+no altitude at all, and each such speed costs a full altitude scan: on the benchmark's engine-out
+sets it took 0.9 to 1.1 s per 25,000-case chunk, against 0.2 s with all engines (measured). This
+search uses the problem's structure, accepts only what it can check, and hands the rest to the
+general search:
+
+1. *Start* (:func:`start_guess`): the gradient at the minimum-drag speed (CL* = sqrt(CD0/K): a
+   linear drag term does not move it), kept in the speed window, at the altitudes of START_LADDER_M;
+   between the highest one where it is not negative and the next one up, the interpolated zero.
+   It lies below the answer: the best speed does at least as well as the minimum-drag speed.
+   Where no rung holds the level there, :func:`holds_nowhere` decides whether the case holds it
+   anywhere (no: no ceiling, CANNOT_CLIMB, done).
+2. *Joint search* (:func:`joint_gradient_search`): Newton steps in altitude and Mach together, as
+   :func:`variantcmp.solver.thrust_best.joint_search` for the thrust ceiling, here on the gradient
+   (which, unlike the climb rate, does not jump at a layer base): per step the gradient at three
+   speeds JOINT_MACH_STEP apart; the parabola through them gives the best speed at that altitude
+   and the best gradient, whose slope in altitude (the envelope theorem) a secant step uses. The
+   speed window follows the altitude (stall, the case's range, VMO:
+   :func:`~variantcmp.solver.gradient.speed_window` without the buffet band, which step 3 checks).
+   Settled when the speed moves less than JOINT_MACH_TOL and the altitude less than
+   JOINT_ALTITUDE_TOL_M on a slope the search measured, at an interior maximum (a concave
+   parabola) or at an end of the case's own speed range (MMO, the data's range) with the gradient
+   rising outwards. A best speed held by the buffet margin, stall or VMO, which move with the
+   altitude, is left to step 4.
+3. *Check* (:func:`accepted`): a settled case is accepted only where
+
+   - the fixed-Mach answer at its speed (:func:`~variantcmp.solver.fixed_mach.fixed_mach_ceilings`:
+     every limit, the buffet margin included, the thrust root to its full tolerance, the table
+     engines' hump check) has thrust binding, no flags, within ACCEPT_M of the search's altitude;
+   - no speed of CHECK_SPEEDS, evenly over the case's speed range, nor any kink in Mach (the
+     turbofan lapse's branch change, a thrust table's Mach columns: a corner peak there lies
+     beside the parabola's) has a gradient above GRADIENT_SLACK at that ceiling, and no kink
+     lies within two JOINT_MACH_STEP of the speed found (the parabola would straddle it): the
+     speed found is the best at that altitude, not a local peak;
+   - none of them has a positive gradient at the altitudes ABOVE_M above it, nor, for table
+     engines, at the table's altitudes and midpoints above it (up to TABLE_CHECK_PROBES, the
+     hump check's points): no second hump higher up.
+
+   An accepted case's answer is that fixed-Mach answer: solving at its Mach gives it again.
+4. The rest: the general best-speed search, in full (``tests/test_engine_out.py`` checks that the
+   two agree on the benchmark and demo fleets). On the benchmark's 100,000 engine-out cases the
+   search answers all but 0.1 % (gross) and 0.2 % (net), on the regional demo fleet (60-100 %
+   MTOW, ISA-10 to +30) all; on the survey demo fleet, whose gross best speeds the buffet margin
+   mostly holds, 30 % of the gross ceilings and all the net ones.
+
+Like the general search, the checks sample speeds and altitudes: a peak of the gradient narrower
+than the sample spacing, away from the speed found, is not seen.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..atmosphere import MODEL_TOP_M, isa_state, pressure_altitude_m
+from ..cases import FT, MODEL_CODES, CaseSet
+from .fixed_mach import fixed_mach_ceilings
+from .finders import golden_max, nan_as_lowest
+from .gradient import GRADIENT_ITERATIONS, speed_window
+from .kinks import table_machs, turbofan_branch_mach
+from .physics import ClimbPhysics, group_key
+from .results import CANNOT_CLIMB, LIMITS, Ceilings
+from .thrust_ceiling import HUMP_CHECK_HALF_WIDTH_M
+
+#: Altitudes (m) of the start's ladder.
+START_LADDER_M = np.array([-1000.0, 2000.0, 4500.0, 7000.0, 9500.0, 12_000.0, 15_000.0, 19_000.0])  # from the floor
+JOINT_MACH_STEP = 2e-3  # the speeds either side of the current one (central differences)
+JOINT_ITERATIONS = 12  # most settle in five to seven; the rest go to the general search
+JOINT_MACH_TOL = 1e-4  # a speed this still is settled (the gradient is flat at its best speed)
+JOINT_ALTITUDE_TOL_M = 0.05  # the check's fixed-Mach root gives the answer to ROOT_TOL_M
+JOINT_MAX_MACH_STEP = 0.05
+JOINT_MAX_STEP_M = 3000.0
+SLOPE_STEP_M = 50.0  # the first slope in altitude, by a finite difference
+ACCEPT_M = 0.3  # the fixed-Mach root and the search's altitude agree this well (1 ft)
+ACCEPT_HALF_WIDTH_M = 2.0 * HUMP_CHECK_HALF_WIDTH_M  # the fixed-Mach window: wide enough for the hump check
+CHECK_SPEEDS = 7
+GRADIENT_SLACK = 1e-7  # above the best speed's own gradient at the ceiling (0.01 ft of ceiling x 3e-6/m, and rounding)
+ABOVE_M = (300.0, 2000.0)
+TABLE_CHECK_PROBES = 4  # of the hump check's table altitudes and midpoints above the ceiling
+CHUNK = 8192  # cases per chunk: the arrays of one evaluation stay in cache (4,096-16,384 measured alike)
+HUMP_ITERATIONS = 30  # golden section over up to 20 km of altitude: to 0.01 m
+
+
+def start_guess(phys: ClimbPhysics):
+    """Step 1: (altitude, Mach) to start the joint search from, per case, NaN where the ladder
+    shows no zero; and where no rung holds the level at the minimum-drag speed (for
+    :func:`holds_nowhere`)."""
+    cs = phys.cases
+    n, k = len(cs), START_LADDER_M.size
+    top = np.minimum(cs.top_m, MODEL_TOP_M)
+    h, m, g = np.empty((n, k)), np.empty((n, k)), np.empty((n, k))
+    cl_star = np.sqrt(cs.cd0 / cs.k)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        for j, rung in enumerate(START_LADDER_M):  # a loop over the ladder's rungs, all cases at once
+            h[:, j] = np.clip(rung, cs.floor_m, top)
+            lo, hi = speed_window(phys, h[:, j], buffet=False)
+            m_md = np.sqrt(phys.w_n / (phys.qs_per_pm2 * isa_state(h[:, j])[1] * cl_star))
+            m[:, j] = np.clip(m_md, lo, np.fmax(lo, hi))
+            g[:, j] = phys.climb_gradient(h[:, j], m[:, j])
+    ok = g >= 0.0
+    last = k - 1 - np.argmax(ok[:, ::-1], axis=1)
+    found = ok.any(axis=1) & (last < k - 1)
+    j = np.minimum(last, k - 2)
+    r = np.arange(n)
+    ga, gb = g[r, j], g[r, j + 1]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t = np.clip(ga / (ga - gb), 0.0, 1.0)
+    t = np.where(np.isfinite(t), t, 0.0)
+    h0 = h[r, j] + t * (h[r, j + 1] - h[r, j])
+    m0 = m[r, j] + t * (m[r, j + 1] - m[r, j])
+    return np.where(found, h0, np.nan), np.where(found, m0, np.nan), ~ok.any(axis=1)
+
+
+def joint_gradient_search(phys: ClimbPhysics, h0, m0):
+    """Step 2: (altitude, Mach) of the zero of the best gradient per case, NaN where not settled."""
+    cs = phys.cases
+    n = len(cs)
+    h_out, m_out = np.full(n, np.nan), np.full(n, np.nan)
+    idx = np.flatnonzero(np.isfinite(h0) & np.isfinite(m0))
+    sub, h, m = phys.subset(idx), h0[idx], m0[idx]
+    floor, top = cs.floor_m[idx], np.minimum(cs.top_m, MODEL_TOP_M)[idx]
+    range_lo, range_hi = cs.mach_low[idx], cs.mach_high[idx]
+    d = JOINT_MACH_STEP
+    slope, measured = np.full(idx.size, np.nan), np.zeros(idx.size, dtype=bool)
+    m_prev, h_prev, e_prev = np.full(idx.size, np.nan), None, None
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        for _ in range(JOINT_ITERATIONS):
+            if idx.size == 0:
+                break
+            lo, hi = speed_window(sub, h, buffet=False)
+            wide = hi - lo > 4.0 * d
+            x = np.clip(m, lo + d, hi - d)
+            e_lo, e_mid, e_hi = (sub.climb_gradient(h, x + j * d) for j in (-1.0, 0.0, 1.0))
+            grad, curv = (e_hi - e_lo) / (2.0 * d), (e_hi - 2.0 * e_mid + e_lo) / (d * d)
+            step = np.where(curv < 0.0, np.clip(-grad / curv, -JOINT_MAX_MACH_STEP, JOINT_MAX_MACH_STEP),
+                            np.copysign(JOINT_MAX_MACH_STEP, grad))
+            m_new = np.clip(x + step, lo, hi)
+            u = m_new - x
+            e_best = e_mid + grad * u + 0.5 * curv * u * u
+            if h_prev is None:
+                slope = (sub.climb_gradient(h + SLOPE_STEP_M, x) - e_mid) / SLOPE_STEP_M
+            else:
+                secant = (e_best - e_prev) / (h - h_prev)
+                fresh = (np.abs(h - h_prev) > 1e-3) & (secant < 0.0)
+                slope, measured = np.where(fresh, secant, slope), measured | fresh
+            h_new = np.clip(h - np.clip(e_best / slope, -JOINT_MAX_STEP_M, JOINT_MAX_STEP_M), floor, top)
+            at_lo, at_hi = m_new <= lo, m_new >= hi
+            interior = ~at_lo & ~at_hi & (curv < 0.0)
+            # On an end of the case's own range (not stall or VMO, which move with the altitude),
+            # with the gradient still rising outwards: the best speed is that end.
+            on_end = (at_lo & (lo == range_lo) & (grad < 0.0)) | (at_hi & (hi == range_hi) & (grad > 0.0))
+            settled = (measured & (np.abs(m_new - m_prev) < JOINT_MACH_TOL) & (np.abs(h_new - h) < JOINT_ALTITUDE_TOL_M)
+                       & (interior | on_end) & wide)
+            fail = ~np.isfinite(h_new) | ~wide | ~(slope < 0.0) | ((h_new == floor) & (e_best < 0.0))
+            done = np.flatnonzero(settled & ~fail)
+            h_out[idx[done]], m_out[idx[done]] = h_new[done], m_new[done]
+            keep = np.flatnonzero(~settled & ~fail)
+            if keep.size < idx.size:
+                idx, sub = idx[keep], sub.subset(keep)
+                h, h_new, m_new, e_best, slope, measured, floor, top, range_lo, range_hi = (
+                    v[keep] for v in (h, h_new, m_new, e_best, slope, measured, floor, top, range_lo, range_hi))
+            m_prev, h_prev, e_prev, m, h = m_new, h, e_best, m_new, h_new
+    return h_out, m_out
+
+
+def probe_altitudes_m(phys: ClimbPhysics, ceiling_m):
+    """The check's altitudes per case (cases x probes, NaN where none): the ceiling, ABOVE_M above
+    it, and for table engines the table's altitudes and midpoints above it (up to
+    TABLE_CHECK_PROBES); none above the thrust data's top."""
+    cs = phys.cases
+    n = len(cs)
+    out = np.full((n, 1 + len(ABOVE_M) + TABLE_CHECK_PROBES), np.nan)
+    out[:, 0] = ceiling_m
+    out[:, 1:1 + len(ABOVE_M)] = ceiling_m[:, None] + np.asarray(ABOVE_M)[None, :]
+    for code, tid, group in phys.groups:
+        if code != MODEL_CODES["table"]:
+            continue
+        rows = np.arange(n)[group]
+        points = cs.tables[tid].probe_points()[0] * FT
+        pick = np.searchsorted(points, ceiling_m[rows] + 1.0)[:, None] + np.arange(TABLE_CHECK_PROBES)[None, :]
+        out[rows, 1 + len(ABOVE_M):] = np.where(pick < points.size, points[np.minimum(pick, points.size - 1)], np.nan)
+    with np.errstate(invalid="ignore"):
+        out[out > np.minimum(cs.top_m, MODEL_TOP_M)[:, None]] = np.nan
+    if not np.isfinite(out[:, 1 + len(ABOVE_M):]).any():
+        out = out[:, :1 + len(ABOVE_M)]  # no table engine: no table probes
+    return out
+
+
+def accepted(phys: ClimbPhysics, h, m):
+    """Step 3: the fixed-Mach answers at the speeds found, and which of them pass the checks."""
+    cs = phys.cases
+    res = fixed_mach_ceilings(phys, m, h, guess_half_width_m=ACCEPT_HALF_WIDTH_M)
+    with np.errstate(invalid="ignore"):
+        ok = (np.isfinite(res.max_altitude_m) & (res.limit == LIMITS.index("thrust")) & (res.flags == 0)
+              & (np.abs(res.max_altitude_m - h) < ACCEPT_M))
+    rows = np.flatnonzero(ok)
+    if rows.size == 0:
+        return res, ok
+    sub = phys.subset(rows)
+    alt = probe_altitudes_m(sub, res.max_altitude_m[rows])
+    # CHECK_SPEEDS speeds over the case's whole range at every probe altitude (a superset of the
+    # speeds the limits allow there: a speed they forbid may only turn a case down, never pass one).
+    lo, hi = cs.mach_low[rows], cs.mach_high[rows]
+    probe = np.isfinite(alt)
+    alt = np.where(probe, alt, alt[:, :1])  # the atmosphere's fast path wants no NaN
+    bad = np.zeros(rows.size, dtype=bool)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        for f in np.linspace(0.0, 1.0, CHECK_SPEEDS):  # a loop over the check's speeds, all cases at once
+            g = sub.climb_gradient(alt, lo + f * (hi - lo))
+            bad |= g[:, 0] > GRADIENT_SLACK
+            bad |= (probe[:, 1:] & (g[:, 1:] >= 0.0)).any(axis=1)  # NaN (no thrust data there) passes
+        # The kinks in Mach, where a corner peak may lie beside the parabola's: the turbofan lapse's
+        # branch change and the thrust tables' Mach columns, at the ceiling.
+        ceiling = alt[:, 0]
+        kinks = [turbofan_branch_mach(sub, ceiling)]
+        for machs, group in table_machs(sub):
+            for node in machs:
+                at = np.full(rows.size, np.nan)
+                at[group] = node
+                kinks.append(np.where((at > lo) & (at < hi), at, np.nan))
+        found = m[rows]
+        for kink in kinks:
+            there = np.isfinite(kink)
+            if there.any():
+                bad |= there & (sub.climb_gradient(ceiling, np.where(there, kink, lo)) > GRADIENT_SLACK)
+                # A kink inside the search's last three speeds: its parabola does not hold there.
+                bad |= there & (np.abs(found - kink) < 2.0 * JOINT_MACH_STEP)
+    ok[rows[bad]] = False
+    return res, ok
+
+
+def holds_nowhere(phys: ClimbPhysics) -> np.ndarray:
+    """Step 1's other outcome, for cases whose ladder held the level at no rung: whether they hold
+    it nowhere. Yes where the best gradient over the speed window without the buffet band (more
+    speeds than the limits allow: it can only say no more often) is negative at every rung, the
+    floor first, and at the top of the gradient's hump in altitude at each end of the case's
+    speed range (between the floor and where that Mach flies at the minimum-drag CL, above which
+    drag and thrust only get worse). The reason: with the best speed inside the window, the best
+    gradient falls with altitude (the same lift coefficient at a lower altitude and speed has the
+    same drag and no less thrust), so negative at the floor is negative everywhere; a hump comes
+    only where the best speed is held at a fixed Mach, the range's end (a data range, MMO), where
+    the drag falls with altitude until that Mach flies at the minimum-drag CL. Such a case gets no ceiling
+    and the flag CANNOT_CLIMB, as the general search would give it after scanning every speed
+    (about a millisecond a case: most of that search's time on the benchmark's engine-out sets).
+    Test: ``test_cases_that_hold_no_altitude_agree_with_the_general_search``."""
+    cs = phys.cases
+    top = np.minimum(cs.top_m, MODEL_TOP_M)
+    nowhere = np.ones(len(cs), dtype=bool)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        for rung in START_LADDER_M:  # a loop over the ladder's rungs, all cases at once
+            h = np.clip(rung, cs.floor_m, top)
+            low, high = speed_window(phys, h, buffet=False)
+            flyable = low <= high
+            _, g = golden_max(lambda m: nan_as_lowest(phys.climb_gradient(h, m)), np.where(flyable, low, 0.5),
+                              np.where(flyable, high, 0.5), GRADIENT_ITERATIONS)
+            nowhere &= ~(flyable & (g >= 0.0))
+        cl_star = np.sqrt(cs.cd0 / cs.k)
+        for end in (cs.mach_low, cs.mach_high):
+            # The hump of the gradient at that Mach lies below where it flies at the minimum-drag
+            # CL: higher up both the drag and the thrust only get worse.
+            h_md = pressure_altitude_m(phys.w_n / (phys.qs_per_pm2 * end * end * cl_star))
+            hi = np.clip(np.nan_to_num(h_md, nan=0.0, posinf=MODEL_TOP_M, neginf=-np.inf), cs.floor_m, top)
+            _, g = golden_max(lambda h: nan_as_lowest(phys.climb_gradient(h, end)), cs.floor_m, hi, HUMP_ITERATIONS)
+            nowhere &= ~(g >= 0.0)
+    return nowhere
+
+
+def gradient_ceilings(cases: CaseSet):
+    """The zero of the best gradient of every case (see the module docstring), by steps 1-3.
+    Returns (the answers, which cases they answer): the caller solves the others with the
+    general search."""
+    n = len(cases)
+    out = Ceilings.blank(n, np.full(n, np.nan))
+    done = np.zeros(n, dtype=bool)
+    order = np.argsort(group_key(cases), kind="stable")  # each thrust model a slice: views, not gathers
+    h0, m0, none = np.full(n, np.nan), np.full(n, np.nan), np.zeros(n, dtype=bool)
+    chunks = [order[a:a + CHUNK] for a in range(0, n, CHUNK)]
+    for rows in chunks:
+        h0[rows], m0[rows], none[rows] = start_guess(ClimbPhysics(cases.take(rows)))
+    # The cases no rung held, all at once (few, and many calls: one set pays numpy's overhead once).
+    empty = order[none[order]]
+    if empty.size:
+        empty = empty[holds_nowhere(ClimbPhysics(cases.take(empty)))]
+        out.flags[empty] |= CANNOT_CLIMB
+        done[empty] = True
+    for rows in chunks:
+        rows = rows[~done[rows]]
+        phys = ClimbPhysics(cases.take(rows))
+        h, m = joint_gradient_search(phys, h0[rows], m0[rows])
+        found = np.flatnonzero(np.isfinite(h))
+        if found.size:
+            res, ok = accepted(phys.subset(found), h[found], m[found])
+            take = np.flatnonzero(ok)
+            out.put(rows[found[take]], res.take(take))
+            done[rows[found[take]]] = True
+    return out, done
