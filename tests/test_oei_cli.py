@@ -8,9 +8,8 @@ import pytest
 
 from conftest import write_catalogue
 from specs import engine_spec, variant_spec
-from variantcmp.caution import CAUTION
+from variantcmp.caution import CAUTION, ENGINE_OUT_CAUTION
 from variantcmp.cli import main
-from variantcmp.commands.oei import ENGINE_OUT_CAUTION
 
 # The columns the issue asks for, in CSV and JSON.
 REQUIRED = ["variant", "engine", "weight_kg", "isa_dev_c", "mach", "gross_ceiling_ft", "net_ceiling_ft", "limit", "note",

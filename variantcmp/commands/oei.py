@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from variantcmp.caution import ENGINE_OUT_CAUTION
 from variantcmp.units import (
     CLEARANCE_RANGE_FT, TERRAIN_RANGE_FT, OptionError, format_flight_level, format_isa_dev, format_mach,
     parse_flight_level, parse_height_ft,
@@ -23,8 +24,6 @@ mean sea level (QNH 1013.25 hPa assumed), --clearance the margin the net path mu
 
 # Columns dropped, in this order, when the table is wider than the terminal.
 DROP_FOR_WIDTH = ("net_mach", "level_off", "pct_mtow", "time", "mach")
-ENGINE_OUT_CAUTION = ("Engine-out figures are screening figures: the approved flight manual's engine-out data and "
-                      "the operator's en-route procedures govern.")
 
 
 def add(subparsers) -> None:

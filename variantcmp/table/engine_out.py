@@ -41,24 +41,43 @@ class EngineOutOptions:
     clearance_ft: float = DEFAULT_CLEARANCE_FT
 
 
+@dataclass(frozen=True)
+class DriftProfile:
+    """One row's drift-down for a drawing: ``paths`` (columns path "gross" or "net", distance_nm,
+    altitude_ft: the points from the start, none where there is no path) and the row (the table's
+    values by column name), with the obstacle and obstacle + clearance as pressure altitudes on
+    the row's day (ft; None without a terrain)."""
+
+    paths: pl.DataFrame
+    row: dict
+    terrain_pa_ft: float | None
+    required_pa_ft: float | None
+
+
 @dataclass
 class EngineOut:
-    """The table and the solver's paths behind it (row i of ``frame`` is case i of ``drift``)."""
+    """The table and the solver's paths behind it (row i of ``frame`` is case i of ``drift``);
+    ``terrain_pa_m`` and ``required_pa_m``: the obstacle and obstacle + clearance as pressure
+    altitudes on each row's day (None without a terrain)."""
 
     frame: pl.DataFrame
     drift: DriftDown
     options: EngineOutOptions
+    terrain_pa_m: np.ndarray | None = None
+    required_pa_m: np.ndarray | None = None
 
-    def profile(self, row: int) -> pl.DataFrame:
-        """One row's drift-down profile for a drawing: per path ("gross", "net") its points from
-        the start, distance (nm) and pressure altitude (ft); empty where there is no path."""
+    def profile(self, row: int) -> DriftProfile:
+        """Row ``row``'s drift-down profile (see :class:`DriftProfile`)."""
         parts = []
         for name, path in (("gross", self.drift.gross), ("net", self.drift.net)):
             alt, dist = path.altitude_m[row] / FT, path.distance_m[row] / M_PER_NM
             keep = np.isfinite(alt) & np.isfinite(dist)
             parts.append(pl.DataFrame({"path": [name] * int(keep.sum()), "distance_nm": dist[keep],
-                                       "altitude_ft": alt[keep]}))
-        return pl.concat(parts)
+                                       "altitude_ft": alt[keep]},
+                                      schema={"path": pl.String, "distance_nm": pl.Float64, "altitude_ft": pl.Float64}))
+        terrain = None if self.terrain_pa_m is None else float(self.terrain_pa_m[row] / FT)
+        required = None if self.required_pa_m is None else float(self.required_pa_m[row] / FT)
+        return DriftProfile(pl.concat(parts), self.frame.row(row, named=True), terrain, required)
 
 
 def engine_out(catalogue, conditions: Conditions, options: EngineOutOptions = EngineOutOptions()) -> EngineOut:
@@ -71,10 +90,11 @@ def engine_out(catalogue, conditions: Conditions, options: EngineOutOptions = En
     n = len(cases)
     start_m = res.max_altitude_m.copy() if options.start_ft is None else np.full(n, options.start_ft * FT)
     start_m[~terms.answerable] = np.nan
-    required_m = None
+    required_m = terrain_pa_m = None
     if options.terrain_ft is not None:
         required_m = pressure_altitude_on_day_m(np.full(n, (options.terrain_ft + options.clearance_ft) * FT),
                                                 cases.isa_dev_c)
+        terrain_pa_m = pressure_altitude_on_day_m(np.full(n, options.terrain_ft * FT), cases.isa_dev_c)
     drift = drift_down(engine_out_cases(cases, terms), start_m, gross_m, net_m, terms.net_decrement, required_m)
     variants = [catalogue.variants[v] for v in index.variant_ids]
     mtow_kg = np.array([v.mtow_kg for v in variants])[cases.variant_index]
@@ -105,7 +125,7 @@ def engine_out(catalogue, conditions: Conditions, options: EngineOutOptions = En
     }
     if options.terrain_ft is not None:
         data.update(terrain_columns(cases, drift, start_m, net_m, required_m, options))
-    return EngineOut(pl.DataFrame(data, nan_to_null=True), drift, options)
+    return EngineOut(pl.DataFrame(data, nan_to_null=True), drift, options, terrain_pa_m, required_m)
 
 
 def engine_out_table(catalogue, conditions: Conditions, options: EngineOutOptions = EngineOutOptions()) -> pl.DataFrame:
