@@ -102,6 +102,7 @@ def _keys_table(title: str, rows: list[tuple[str, str]]) -> Table:
 def help_renderable() -> Group:
     from .compare import CompareScreen
     from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
+    from .engine_out_screen import OEI_FIELDS, EngineOutScreen
     from .envelope_screen import EnvelopeScreen
     from .hotday import HotDayScreen
     from .open_dialog import OpenDialog
@@ -111,7 +112,8 @@ def help_renderable() -> Group:
     parts = [Text(CAUTION, style="bold"), Text("")]
     for title, cls in (
         ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
-        ("Hot-day check", HotDayScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
+        ("Hot-day check", HotDayScreen), ("Engine-out view", EngineOutScreen), ("Envelope view", EnvelopeScreen),
+        ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),
         ("Export dialog", ExportDialog), ("Overwrite?", ConfirmDialog),
@@ -121,6 +123,7 @@ def help_renderable() -> Group:
     fields = _keys_table("Conditions (any change recomputes at once)",
                          [(f.label, f.help) for f in FIELDS])
     parts += [fields, Text("")]
+    parts += [_keys_table("Engine-out view's fields", [(f.label, f.help) for f in OEI_FIELDS]), Text("")]
     signs = [(f"{LIMIT_GLYPHS[name]} {name}", LIMIT_MEANINGS[name]) for name in LIMIT_GLYPHS]
     signs += [
         (BASELINE_MARK, "rows of the baseline variant x engine option (b); Δ columns show each other row minus "

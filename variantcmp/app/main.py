@@ -21,6 +21,7 @@ from .compare import CompareScreen
 from .dialogs import ExportDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
 from .help import APP_BINDINGS, HelpScreen, key_commands
+from .engine_out_screen import EngineOutScreen
 from .envelope_screen import EnvelopeScreen
 from .hotday import HotDayScreen
 from .jobs import LatestJob
@@ -44,7 +45,8 @@ class VariantCmpApp(KeyHold, App[int]):
     # ctrl+p: every key of the screen on show (and of the app), found by name and run (help.key_commands).
     ENABLE_COMMAND_PALETTE = True
     # Top-level views, each keeping its own state while the user switches between them.
-    MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen}
+    MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen,
+             "engineout": EngineOutScreen}
     DEFAULT_MODE = "compare"
     compact_rows = var(False)  # a short terminal: one-line caution (widgets.CautionBanner)
     BINDINGS = APP_BINDINGS
