@@ -22,8 +22,8 @@ cumulative Simpson (``scipy.integrate.cumulative_simpson``).
 
 Level-off: a path is taken as levelled off LEVEL_OFF_MARGIN_FT above its ceiling: the drift-down
 distance and time are those from the start to that altitude (the rest of the approach to the
-ceiling is an ever slower sink, at about LEVEL_OFF_MARGIN_FT x V x dG/dh ft/min: 5 to 15 ft/min on
-the demo fleets). A start within that margin of the ceiling, or below it, holds its level: no
+ceiling is an ever slower sink, at about LEVEL_OFF_MARGIN_FT x V x dG/dh: 2 to 8 ft/min on the demo
+fleets at ISA-10 to +30). A start within that margin of the ceiling, or below it, holds its level: no
 distance, no time.
 
 Tests: ``tests/test_driftdown.py`` (distance and time against ``scipy.integrate.solve_ivp`` on
