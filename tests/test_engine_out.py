@@ -150,12 +150,14 @@ def test_net_below_gross_both_fall_with_weight_and_heat(tmp_path_factory, w, dw,
     # aircraft needs more thrust for the same gradient and a warmer day gives less thrust at the
     # same pressure altitude (density lapse; a flat-rated engine holds it up to its deviation), so
     # no ceiling rises (physics facts, e.g. Anderson, Aircraft Performance and Design, ch. 5).
+    # No ceiling at all (too heavy or too hot to hold any altitude) counts as the lowest.
     cat = _fleet(tmp_path_factory.mktemp("prop"), 2, flat)
     f = engine_out_table(cat, Conditions(weights=_pct(w, w + dw), isa_devs_c=(dev, dev + ddev)))
-    assert f["gross_ceiling_ft"].is_not_null().all()
-    assert (f["net_ceiling_ft"] < f["gross_ceiling_ft"] - 100.0).all()
+    assert f["gross_ceiling_ft"][0] is not None  # the lightest on the coolest day holds one
+    both = f.filter(pl.col("net_ceiling_ft").is_not_null())
+    assert (both["net_ceiling_ft"] < both["gross_ceiling_ft"] - 100.0).all()
     for col in ("gross_ceiling_ft", "net_ceiling_ft"):
-        grid = f[col].to_numpy().reshape(2, 2)  # weight, then ISA deviation
+        grid = np.nan_to_num(f[col].to_numpy().astype(float), nan=-np.inf).reshape(2, 2)  # weight, then ISA deviation
         assert np.all(grid[1] <= grid[0] + 0.5), col
         assert np.all(grid[:, 1] <= grid[:, 0] + 0.5), col
 
