@@ -6,9 +6,10 @@ net ceiling is the absolute ceiling at the best speed, which the general best-sp
 (:func:`~variantcmp.solver.parallel.solve_ceilings`) gives. That search is built for all-engines
 cases, where most speeds of a case's range climb somewhere; with one engine out most of them hold
 no altitude at all, and each such speed costs a full altitude scan: on the benchmark's engine-out
-sets it took 0.9 to 1.1 s per 25,000-case chunk, against 0.2 s with all engines (measured). This
-search uses the problem's structure, accepts only what it can check, and hands the rest to the
-general search:
+sets it took 0.9 to 1.1 s per 25,000-case chunk, against 0.2 s with all engines (measured); this
+search takes about 0.9 times an all-engines best-speed solve per level (CPU time, measured). It
+uses the problem's structure, accepts only what it can check, and hands the rest to the general
+search:
 
 1. *Start* (:func:`start_guess`): the gradient at the minimum-drag speed (CL* = sqrt(CD0/K): a
    linear drag term does not move it), kept in the speed window, at the altitudes of START_LADDER_M;
@@ -23,31 +24,40 @@ general search:
    and the best gradient, whose slope in altitude (the envelope theorem) a secant step uses. The
    speed window follows the altitude (stall, the case's range, VMO:
    :func:`~variantcmp.solver.gradient.speed_window` without the buffet band, which step 3 checks).
-   Settled when the speed moves less than JOINT_MACH_TOL and the altitude less than
-   JOINT_ALTITUDE_TOL_M on a slope the search measured, at an interior maximum (a concave
-   parabola) or at an end of the case's own speed range (MMO, the data's range) with the gradient
-   rising outwards. A best speed held by the buffet margin, stall or VMO, which move with the
+   Where the turbofan lapse's branch change lies near and the gradient peaks in its corner, the
+   corner is the best speed (:func:`_corner_peaks`). Where the gradient still rises
+   with altitude (below a hump, at a speed held at a fixed Mach) the search steps up
+   UPHILL_STEP_M at a time. Settled when the speed moves less than JOINT_MACH_TOL and the
+   altitude less than JOINT_ALTITUDE_TOL_M on a slope the search measured, at an interior maximum
+   (a concave parabola, or a corner) or at an end of the case's own speed range (MMO, the data's
+   range) with the gradient rising outwards. A best speed held by the buffet margin, stall or VMO, which move with the
    altitude, is left to step 4.
 3. *Check* (:func:`accepted`): a settled case is accepted only where
 
    - the fixed-Mach answer at its speed (:func:`~variantcmp.solver.fixed_mach.fixed_mach_ceilings`:
-     every limit, the buffet margin included, the thrust root to its full tolerance, the table
-     engines' hump check) has thrust binding, no flags, within ACCEPT_M of the search's altitude;
+     every limit, the buffet margin included, the thrust root to its full tolerance in a window of
+     ACCEPT_HALF_WIDTH_M) has thrust binding, no flags, within ACCEPT_M of the search's altitude;
    - no speed of CHECK_SPEEDS, evenly over the case's speed range, nor any kink in Mach (the
      turbofan lapse's branch change, a thrust table's Mach columns: a corner peak there lies
      beside the parabola's) has a gradient above GRADIENT_SLACK at that ceiling, and no kink
      lies within two JOINT_MACH_STEP of the speed found (the parabola would straddle it): the
      speed found is the best at that altitude, not a local peak;
-   - none of them has a positive gradient at the altitudes ABOVE_M above it, nor, for table
-     engines, at the table's altitudes and midpoints above it (up to TABLE_CHECK_PROBES, the
-     hump check's points): no second hump higher up.
+   - none of them, nor the speed found, has a positive gradient at the altitudes ABOVE_M above
+     it, nor, for table engines, at the table's altitudes and midpoints above it (up to
+     TABLE_CHECK_PROBES: the fixed-Mach hump check's points, at every checked speed): no second
+     hump higher up. Not looked at for a density lapse: its
+     thrust falls with altitude at a constant EAS, so the same lift coefficient at a lower
+     altitude and speed has the same drag and more thrust, and its best gradient cannot rise
+     again above the ceiling.
 
    An accepted case's answer is that fixed-Mach answer: solving at its Mach gives it again.
-4. The rest: the general best-speed search, in full (``tests/test_engine_out.py`` checks that the
-   two agree on the benchmark and demo fleets). On the benchmark's 100,000 engine-out cases the
-   search answers all but 0.1 % (gross) and 0.2 % (net), on the regional demo fleet (60-100 %
-   MTOW, ISA-10 to +30) all; on the survey demo fleet, whose gross best speeds the buffet margin
-   mostly holds, 30 % of the gross ceilings and all the net ones.
+4. The rest: the general best-speed search, in full, all of a job's at once
+   (``tests/test_engine_out.py`` checks that the two agree on the benchmark and demo fleets: to
+   0.001 ft but at corners, where the search is higher by up to 1.3 ft on four seeds' 30,000
+   cases, lower by at most 0.07 ft). On the benchmark's seeded cases the search leaves 0.01 to
+   0.2 % (measured, four seeds); on the regional demo fleet (60-100 % MTOW, ISA-10 to +30)
+   none; on the survey demo fleet, whose gross best speeds the buffet margin mostly holds, 70 %
+   of the gross ceilings and none of the net ones.
 
 Like the general search, the checks sample speeds and altitudes: a peak of the gradient narrower
 than the sample spacing, away from the speed found, is not seen.
@@ -65,7 +75,6 @@ from .gradient import GRADIENT_ITERATIONS, speed_window
 from .kinks import table_machs, turbofan_branch_mach
 from .physics import ClimbPhysics, group_key
 from .results import CANNOT_CLIMB, LIMITS, Ceilings
-from .thrust_ceiling import HUMP_CHECK_HALF_WIDTH_M
 
 #: Altitudes (m) of the start's ladder.
 START_LADDER_M = np.array([-1000.0, 2000.0, 4500.0, 7000.0, 9500.0, 12_000.0, 15_000.0, 19_000.0])  # from the floor
@@ -76,11 +85,13 @@ JOINT_ALTITUDE_TOL_M = 0.05  # the check's fixed-Mach root gives the answer to R
 JOINT_MAX_MACH_STEP = 0.05
 JOINT_MAX_STEP_M = 3000.0
 SLOPE_STEP_M = 50.0  # the first slope in altitude, by a finite difference
+UPHILL_STEP_M = 500.0  # a step up where the gradient still rises with altitude (below its hump)
+CORNER_TOL = 1e-4  # a speed this close to a kink is on it (a corner peak: the ceiling then to about 0.1 ft)
 ACCEPT_M = 0.3  # the fixed-Mach root and the search's altitude agree this well (1 ft)
-ACCEPT_HALF_WIDTH_M = 2.0 * HUMP_CHECK_HALF_WIDTH_M  # the fixed-Mach window: wide enough for the hump check
+ACCEPT_HALF_WIDTH_M = 5.0  # the fixed-Mach root's window around the search's altitude
 CHECK_SPEEDS = 7
 GRADIENT_SLACK = 1e-7  # above the best speed's own gradient at the ceiling (0.01 ft of ceiling x 3e-6/m, and rounding)
-ABOVE_M = (300.0, 2000.0)
+ABOVE_M = (1000.0,)
 TABLE_CHECK_PROBES = 4  # of the hump check's table altitudes and midpoints above the ceiling
 CHUNK = 8192  # cases per chunk: the arrays of one evaluation stay in cache (4,096-16,384 measured alike)
 HUMP_ITERATIONS = 30  # golden section over up to 20 km of altitude: to 0.01 m
@@ -142,21 +153,30 @@ def joint_gradient_search(phys: ClimbPhysics, h0, m0):
             m_new = np.clip(x + step, lo, hi)
             u = m_new - x
             e_best = e_mid + grad * u + 0.5 * curv * u * u
+            corner = _corner_peaks(sub, h, x, lo, hi, m_new)
+            if corner is not None:
+                at, m_corner, e_corner = corner
+                m_new[at], e_best[at] = m_corner, e_corner
             if h_prev is None:
                 slope = (sub.climb_gradient(h + SLOPE_STEP_M, x) - e_mid) / SLOPE_STEP_M
             else:
                 secant = (e_best - e_prev) / (h - h_prev)
                 fresh = (np.abs(h - h_prev) > 1e-3) & (secant < 0.0)
                 slope, measured = np.where(fresh, secant, slope), measured | fresh
-            h_new = np.clip(h - np.clip(e_best / slope, -JOINT_MAX_STEP_M, JOINT_MAX_STEP_M), floor, top)
+            # Below a hump of the gradient in altitude (it still rises upwards): climb towards it.
+            uphill = ~(slope < 0.0)
+            h_new = np.clip(np.where(uphill, h + UPHILL_STEP_M,
+                                     h - np.clip(e_best / slope, -JOINT_MAX_STEP_M, JOINT_MAX_STEP_M)), floor, top)
             at_lo, at_hi = m_new <= lo, m_new >= hi
             interior = ~at_lo & ~at_hi & (curv < 0.0)
+            if corner is not None:
+                interior[at] = True
             # On an end of the case's own range (not stall or VMO, which move with the altitude),
             # with the gradient still rising outwards: the best speed is that end.
             on_end = (at_lo & (lo == range_lo) & (grad < 0.0)) | (at_hi & (hi == range_hi) & (grad > 0.0))
             settled = (measured & (np.abs(m_new - m_prev) < JOINT_MACH_TOL) & (np.abs(h_new - h) < JOINT_ALTITUDE_TOL_M)
                        & (interior | on_end) & wide)
-            fail = ~np.isfinite(h_new) | ~wide | ~(slope < 0.0) | ((h_new == floor) & (e_best < 0.0))
+            fail = ~np.isfinite(h_new) | ~wide | (uphill & (h >= top)) | ((h_new == floor) & (e_best < 0.0))
             done = np.flatnonzero(settled & ~fail)
             h_out[idx[done]], m_out[idx[done]] = h_new[done], m_new[done]
             keep = np.flatnonzero(~settled & ~fail)
@@ -168,32 +188,52 @@ def joint_gradient_search(phys: ClimbPhysics, h0, m0):
     return h_out, m_out
 
 
+def _corner_peaks(phys: ClimbPhysics, h, x, lo, hi, m_vertex):
+    """Where the turbofan lapse's branch change lies within JOINT_MAX_MACH_STEP of the speed ``x``,
+    the gradient peaks in the corner there (above its value a JOINT_MACH_STEP either side) and
+    there beats its value at the parabola's best speed ``m_vertex`` (a parabola across a corner
+    overshoots: its own value is not compared): those cases, the corner's Mach and its gradient;
+    None where there are none. The parabola through three speeds does not find a corner, and the
+    corner moves fast with altitude (its Mach, where theta0 = TR, by some 0.01 per 100 m at low
+    Mach): it is looked for at each step's altitude."""
+    d = JOINT_MACH_STEP
+    kink = turbofan_branch_mach(phys, h)
+    with np.errstate(invalid="ignore"):
+        near = np.flatnonzero(np.isfinite(kink) & (np.abs(x - kink) < JOINT_MAX_MACH_STEP) & (kink - d > lo)
+                              & (kink + d < hi))
+    if near.size == 0:
+        return None
+    sub, k, hn = phys.subset(near), kink[near], h[near]
+    e_k, e_l, e_r = (sub.climb_gradient(hn, k + j * d) for j in (0.0, -1.0, 1.0))
+    peak = (e_k >= e_l) & (e_k >= e_r) & (e_k >= sub.climb_gradient(hn, m_vertex[near]))
+    return near[peak], k[peak], e_k[peak]
+
+
 def probe_altitudes_m(phys: ClimbPhysics, ceiling_m):
-    """The check's altitudes per case (cases x probes, NaN where none): the ceiling, ABOVE_M above
-    it, and for table engines the table's altitudes and midpoints above it (up to
-    TABLE_CHECK_PROBES); none above the thrust data's top."""
+    """The check's altitudes above each case's ceiling (cases x probes, NaN where none): ABOVE_M
+    above it and, for table engines, the table's altitudes and midpoints above it (up to
+    TABLE_CHECK_PROBES; no such columns where the set has no table engine); none above the
+    thrust data's top."""
     cs = phys.cases
     n = len(cs)
-    out = np.full((n, 1 + len(ABOVE_M) + TABLE_CHECK_PROBES), np.nan)
-    out[:, 0] = ceiling_m
-    out[:, 1:1 + len(ABOVE_M)] = ceiling_m[:, None] + np.asarray(ABOVE_M)[None, :]
-    for code, tid, group in phys.groups:
-        if code != MODEL_CODES["table"]:
-            continue
+    tables = [(tid, group) for code, tid, group in phys.groups if code == MODEL_CODES["table"]]
+    out = np.full((n, len(ABOVE_M) + (TABLE_CHECK_PROBES if tables else 0)), np.nan)
+    out[:, :len(ABOVE_M)] = ceiling_m[:, None] + np.asarray(ABOVE_M)[None, :]
+    for tid, group in tables:
         rows = np.arange(n)[group]
         points = cs.tables[tid].probe_points()[0] * FT
         pick = np.searchsorted(points, ceiling_m[rows] + 1.0)[:, None] + np.arange(TABLE_CHECK_PROBES)[None, :]
-        out[rows, 1 + len(ABOVE_M):] = np.where(pick < points.size, points[np.minimum(pick, points.size - 1)], np.nan)
+        out[rows, len(ABOVE_M):] = np.where(pick < points.size, points[np.minimum(pick, points.size - 1)], np.nan)
     with np.errstate(invalid="ignore"):
         out[out > np.minimum(cs.top_m, MODEL_TOP_M)[:, None]] = np.nan
-    if not np.isfinite(out[:, 1 + len(ABOVE_M):]).any():
-        out = out[:, :1 + len(ABOVE_M)]  # no table engine: no table probes
     return out
 
 
 def accepted(phys: ClimbPhysics, h, m):
     """Step 3: the fixed-Mach answers at the speeds found, and which of them pass the checks."""
     cs = phys.cases
+    # A narrow window: the root is that close. (It skips the table engines' hump check, whose
+    # probes the check below looks at, at the speed found too.)
     res = fixed_mach_ceilings(phys, m, h, guess_half_width_m=ACCEPT_HALF_WIDTH_M)
     with np.errstate(invalid="ignore"):
         ok = (np.isfinite(res.max_altitude_m) & (res.limit == LIMITS.index("thrust")) & (res.flags == 0)
@@ -202,34 +242,45 @@ def accepted(phys: ClimbPhysics, h, m):
     if rows.size == 0:
         return res, ok
     sub = phys.subset(rows)
-    alt = probe_altitudes_m(sub, res.max_altitude_m[rows])
-    # CHECK_SPEEDS speeds over the case's whole range at every probe altitude (a superset of the
-    # speeds the limits allow there: a speed they forbid may only turn a case down, never pass one).
+    ceiling, found = res.max_altitude_m[rows], m[rows]
+    # CHECK_SPEEDS speeds over the case's whole range (a superset of the speeds the limits allow:
+    # a speed they forbid may only turn a case down, never pass one).
     lo, hi = cs.mach_low[rows], cs.mach_high[rows]
-    probe = np.isfinite(alt)
-    alt = np.where(probe, alt, alt[:, :1])  # the atmosphere's fast path wants no NaN
+    speeds = [lo + f * (hi - lo) for f in np.linspace(0.0, 1.0, CHECK_SPEEDS)]
     bad = np.zeros(rows.size, dtype=bool)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        for f in np.linspace(0.0, 1.0, CHECK_SPEEDS):  # a loop over the check's speeds, all cases at once
-            g = sub.climb_gradient(alt, lo + f * (hi - lo))
-            bad |= g[:, 0] > GRADIENT_SLACK
-            bad |= (probe[:, 1:] & (g[:, 1:] >= 0.0)).any(axis=1)  # NaN (no thrust data there) passes
+        for speed in speeds:  # a loop over the check's speeds, all cases at once
+            bad |= sub.climb_gradient(ceiling, speed) > GRADIENT_SLACK
         # The kinks in Mach, where a corner peak may lie beside the parabola's: the turbofan lapse's
         # branch change and the thrust tables' Mach columns, at the ceiling.
-        ceiling = alt[:, 0]
         kinks = [turbofan_branch_mach(sub, ceiling)]
         for machs, group in table_machs(sub):
             for node in machs:
                 at = np.full(rows.size, np.nan)
                 at[group] = node
                 kinks.append(np.where((at > lo) & (at < hi), at, np.nan))
-        found = m[rows]
         for kink in kinks:
             there = np.isfinite(kink)
             if there.any():
                 bad |= there & (sub.climb_gradient(ceiling, np.where(there, kink, lo)) > GRADIENT_SLACK)
-                # A kink inside the search's last three speeds: its parabola does not hold there.
-                bad |= there & (np.abs(found - kink) < 2.0 * JOINT_MACH_STEP)
+                # A kink inside the search's last three speeds: its parabola does not hold there; a
+                # speed on the kink itself (a corner peak) must beat its neighbours.
+                on = there & (np.abs(found - kink) < CORNER_TOL)
+                bad |= there & ~on & (np.abs(found - kink) < 2.0 * JOINT_MACH_STEP)
+                for side in (-0.5, 0.5):
+                    bad |= on & (sub.climb_gradient(ceiling, found + side * JOINT_MACH_STEP) > GRADIENT_SLACK)
+        # Above the ceiling, for the models whose thrust along a constant EAS need not fall with
+        # altitude (a density lapse's does: the same CL at a lower altitude and speed has the same
+        # drag and more thrust, so its best gradient cannot rise again).
+        up = np.flatnonzero(sub.cases.model_code != MODEL_CODES["density-lapse"])
+        if up.size:
+            upper = sub.subset(up)
+            alt = probe_altitudes_m(upper, ceiling[up])
+            probe = np.isfinite(alt)
+            alt = np.where(probe, alt, ceiling[up][:, None])  # the atmosphere's fast path wants no NaN
+            for speed in speeds + [found]:
+                g = upper.climb_gradient(alt, speed[up])
+                bad[up] |= (probe & (g >= 0.0)).any(axis=1)  # NaN (no thrust data there) passes
     ok[rows[bad]] = False
     return res, ok
 
@@ -273,7 +324,7 @@ def holds_nowhere(phys: ClimbPhysics) -> np.ndarray:
 def gradient_ceilings(cases: CaseSet):
     """The zero of the best gradient of every case (see the module docstring), by steps 1-3.
     Returns (the answers, which cases they answer): the caller solves the others with the
-    general search."""
+    general search. A case answered has a ceiling or a flag; one left is blank (neither)."""
     n = len(cases)
     out = Ceilings.blank(n, np.full(n, np.nan))
     done = np.zeros(n, dtype=bool)
