@@ -17,7 +17,7 @@ from ..constants import M_PER_NM
 from ..solver.driftdown import DriftDown, drift_down
 from ..solver.engine_out import EngineOutCeilings, engine_out_cases, engine_out_ceilings, engine_out_terms
 from ..solver.fixed_mach import CO_LIMIT_M
-from .ceilings import empty_weight_floor_kg, feet, solve
+from .ceilings import empty_weight_floor_kg, feet, solve, weight_note
 from .conditions import Conditions
 
 #: Columns of the engine-out table, in order (the terrain columns follow when a terrain is given).
@@ -229,10 +229,6 @@ def engine_out_notes(cases, res, oei: EngineOutCeilings, drift: DriftDown, start
                 and cases.mach_low[i] > BEST_MACH_LOW + 1e-9]
         if held:
             parts.append(f"{' and '.join(held)} speed held at M{cases.mach_low[i]:.3f}, the data's lowest Mach")
-        if cases.over_mtow[i]:
-            parts.append("above MTOW")
-        elif cases.weight_kg[i] < floor_kg[i]:
-            parts.append(f"below the empty weight ({floor_kg[i]:,.0f} kg, {100.0 * floor_kg[i] / mtow_kg[i]:.0f} % of "
-                         "MTOW): check the weight")
+        parts += weight_note(cases, i, mtow_kg, floor_kg)
         notes.append("; ".join(parts))
     return notes
