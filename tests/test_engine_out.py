@@ -99,12 +99,17 @@ def test_a_single_engine_variant_has_no_engine_out_answer(tmp_path):
 
 def _engine_out_catalogue(cat) -> Catalogue:
     """The catalogue of the same fleet with one engine out, written as ordinary records: each
-    engine's thrust x (n - 1)/n x its MCT ratio (every variant here a twin), CD0 + the increment, no
-    certified or cabin ceiling."""
+    engine's thrust (a turboprop's shaft power) x (n - 1)/n x its MCT ratio (every variant here a
+    twin), CD0 + the increment, no certified or cabin ceiling."""
     counts = {v.engine_count for v in cat.variants.values()}
     assert counts == {2}
-    engines = {k: dataclasses.replace(e, static_thrust_kn=e.static_thrust_kn * 0.5 * e.mct_thrust_ratio)
-               for k, e in cat.engines.items()}
+
+    def one_left(e):
+        if e.model == "turboprop":
+            return dataclasses.replace(e, shaft_power_kw=e.shaft_power_kw * 0.5 * e.mct_thrust_ratio)
+        return dataclasses.replace(e, static_thrust_kn=e.static_thrust_kn * 0.5 * e.mct_thrust_ratio)
+
+    engines = {k: one_left(e) for k, e in cat.engines.items()}
     variants = {k: dataclasses.replace(v, cd0=v.cd0 + v.oei_cd0, max_altitude_ft=None, max_cabin_dp_kpa=None,
                                        cabin_altitude_ft=None) for k, v in cat.variants.items()}
     return dataclasses.replace(cat, engines=engines, variants=variants)
@@ -125,7 +130,10 @@ def test_round_trip_the_absolute_ceiling_of_the_engine_out_aircraft_is_the_gross
     cases, _, _ = solve(demo, conditions)
     phys = ClimbPhysics(engine_out_cases(cases, engine_out_terms(demo, cases)))
     _, at_gross = best_gradient(phys, oei["gross_ceiling_ft"].to_numpy() * FT)
-    _, at_net = best_gradient(phys, oei["net_ceiling_ft"].to_numpy() * FT)
+    net_ft = oei["net_ceiling_ft"].to_numpy()
+    has_net = np.isfinite(net_ft)  # the heavy turboprop on the warm day holds no altitude on the net path
+    assert has_net.mean() > 0.9
+    _, at_net = best_gradient(phys.subset(np.flatnonzero(has_net)), net_ft[has_net] * FT)
     np.testing.assert_allclose(at_gross, 0.0, atol=2e-6)  # 0.01 ft of ceiling x dG/dh ~ 1e-9 (solver tolerance)
     np.testing.assert_allclose(at_net, 0.011, atol=2e-6)
 
@@ -182,7 +190,8 @@ def test_the_polars_linear_term_is_a_drag_of_c_times_the_weight(demo):
     # net decrement enters the climb equation as a drag of d W at every speed and altitude.
     cases, _, _ = solve(demo, Conditions(isa_devs_c=(0.0, 20.0)))
     rng = np.random.default_rng(3)
-    h, m = rng.uniform(0.0, 11_000.0, len(cases)), rng.uniform(0.3, 0.8, len(cases))
+    # (Machs inside every engine's data, the turboprops' efficiency tables included: M0.15 to 0.65)
+    h, m = rng.uniform(0.0, 11_000.0, len(cases)), rng.uniform(0.3, 0.6, len(cases))
     plain = ClimbPhysics(cases)
     linear = ClimbPhysics(dataclasses.replace(cases, cd_per_cl=np.full(len(cases), 0.016)))
     np.testing.assert_allclose(linear.drag_n(h, m) - plain.drag_n(h, m), 0.016 * cases.weight_kg * G0, rtol=1e-9)

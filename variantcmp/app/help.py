@@ -104,7 +104,7 @@ def help_renderable() -> Group:
     from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
     from .engine_out_screen import OEI_FIELDS, EngineOutScreen
     from .envelope_screen import EnvelopeScreen
-    from .hotday import HotDayScreen
+    from .hotday import PlannerScreen
     from .open_dialog import OpenDialog
     from .sweep_screen import SweepScreen
     from .variant_info import VariantScreen
@@ -112,7 +112,7 @@ def help_renderable() -> Group:
     parts = [Text(CAUTION, style="bold"), Text("")]
     for title, cls in (
         ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
-        ("Hot-day check", HotDayScreen), ("Engine-out view", EngineOutScreen), ("Envelope view", EnvelopeScreen),
+        ("Planner", PlannerScreen), ("Engine-out view", EngineOutScreen), ("Envelope view", EnvelopeScreen),
         ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),

@@ -38,7 +38,8 @@ search:
      every limit, the buffet margin included, the thrust root to its full tolerance in a window of
      ACCEPT_HALF_WIDTH_M) has thrust binding, no flags, within ACCEPT_M of the search's altitude;
    - no speed of CHECK_SPEEDS, evenly over the case's speed range, nor any kink in Mach (the
-     turbofan lapse's branch change, a thrust table's Mach columns: a corner peak there lies
+     turbofan lapse's branch change, a thrust table's Mach columns, a propeller efficiency table's
+     Machs: a corner peak there lies
      beside the parabola's) has a gradient above GRADIENT_SLACK at that ceiling, and no kink
      lies within two JOINT_MACH_STEP of the speed found (the parabola would straddle it): the
      speed found is the best at that altitude, not a local peak;
@@ -72,7 +73,7 @@ from ..cases import FT, MODEL_CODES, CaseSet
 from .fixed_mach import fixed_mach_ceilings
 from .finders import golden_max, nan_as_lowest
 from .gradient import GRADIENT_ITERATIONS, speed_window
-from .kinks import table_machs, turbofan_branch_mach
+from .kinks import mach_kink_groups, turbofan_branch_mach
 from .physics import ClimbPhysics, group_key
 from .results import CANNOT_CLIMB, LIMITS, Ceilings
 
@@ -252,9 +253,10 @@ def accepted(phys: ClimbPhysics, h, m):
         for speed in speeds:  # a loop over the check's speeds, all cases at once
             bad |= sub.climb_gradient(ceiling, speed) > GRADIENT_SLACK
         # The kinks in Mach, where a corner peak may lie beside the parabola's: the turbofan lapse's
-        # branch change and the thrust tables' Mach columns, at the ceiling.
+        # branch change, a thrust table's Mach columns and a propeller efficiency table's Machs, at
+        # the ceiling.
         kinks = [turbofan_branch_mach(sub, ceiling)]
-        for machs, group in table_machs(sub):
+        for machs, group in mach_kink_groups(sub):
             for node in machs:
                 at = np.full(rows.size, np.nan)
                 at[group] = node

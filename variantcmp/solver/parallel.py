@@ -99,50 +99,61 @@ def solve_ceilings(cases: CaseSet, chunk: int | None = None, processes: int | No
     return map_chunks(cases, lambda part: (solve_chunk(part),), 1, chunk, processes)[0]
 
 
-def chunk_bounds(n: int, chunk: int) -> list[tuple[int, int]]:
-    """Chunk bounds from n and chunk alone (a case's answer never depends on the process count),
-    their number a multiple of the most workers used, so that workers get equal shares."""
-    count = -(-n // max(1, chunk))
-    count = -(-count // MAX_WORKERS) * MAX_WORKERS if count > 1 else 1
-    size = -(-n // count)
-    return [(start, min(start + size, n)) for start in range(0, n, size)]
-
-
 def map_chunks(cases: CaseSet, solve, outputs: int, chunk: int, processes: int) -> list[Ceilings]:
     """``solve(part)`` (a tuple of ``outputs`` :class:`Ceilings` for the chunk ``part``) over the
-    chunks of :func:`chunk_bounds`, in ``processes`` processes (see :func:`_solve_in_processes`),
-    put together: one :class:`Ceilings` per output for all the cases."""
+    chunks of :func:`chunk_bounds`, in ``processes`` processes (:func:`in_processes`), put
+    together: one :class:`Ceilings` per output for all the cases."""
     n = len(cases)
     if n == 0:
         return [Ceilings.allocate(0) for _ in range(outputs)]
     bounds = chunk_bounds(n, chunk)
     processes = max(1, min(processes, len(bounds)))
     if processes > 1 and sys.platform.startswith("linux"):
-        solved = _solve_in_processes(cases, bounds, processes, solve, outputs)
-        if solved is not None:
-            return solved
+        out = _Outputs(Ceilings.allocate(n, shared_array) for _ in range(outputs))
+        if in_processes(bounds, processes, out, lambda part: solve(cases.take(part))):
+            return list(out)
     parts = [solve(cases.take(slice(a, b))) for a, b in bounds]
     return [Ceilings.concat([p[k] for p in parts]) for k in range(outputs)]
 
 
-def _shared_array(n: int, dtype) -> np.ndarray:
+class _Outputs(tuple):
+    """Several :class:`Ceilings` filled chunk by chunk together (the ``out`` of :func:`in_processes`)."""
+
+    def put(self, part, results) -> None:
+        for target, result in zip(self, results):
+            target.put(part, result)
+
+
+def chunk_bounds(n: int, chunk: int) -> list[tuple[int, int]]:
+    """(start, stop) of each chunk of about ``chunk`` cases: from n and chunk alone (a case's answer
+    never depends on the process count), their number a multiple of the most workers used, so
+    that workers get equal shares."""
+    if n == 0:
+        return []
+    count = -(-n // max(1, chunk))
+    count = -(-count // MAX_WORKERS) * MAX_WORKERS if count > 1 else 1
+    size = -(-n // count)
+    return [(start, min(start + size, n)) for start in range(0, n, size)]
+
+
+def shared_array(n: int, dtype) -> np.ndarray:
     """An array on anonymous shared memory: what a forked child writes there, the parent sees."""
     dtype = np.dtype(dtype)
     return np.frombuffer(mmap.mmap(-1, max(1, n * dtype.itemsize)), dtype=dtype, count=n)
 
 
-def _solve_in_processes(cases: CaseSet, bounds, processes: int, solve, outputs: int) -> list[Ceilings] | None:
-    """Chunks shared between this process and ``processes - 1`` forked workers, each taking the
-    next chunk as it finishes one.
+def in_processes(bounds, processes: int, out, solve) -> bool:
+    """``out.put(part, solve(part))`` for every chunk ``part`` (a slice of ``bounds``), shared
+    between this process and ``processes - 1`` forked workers, each taking the next chunk as it
+    finishes one; ``out``'s arrays on shared memory (:func:`shared_array`).
 
     fork: the workers read the parent's case arrays in place and write their results straight
     into shared memory, so nothing is pickled either way (a process pool sending results back
     lost most of the second core, measured). This process works too: it is warm where a new
-    worker first pays for its memory, and one fork fewer. None if a chunk failed: the caller
+    worker first pays for its memory, and one fork fewer. False if a chunk failed: the caller
     then solves in this process, where a failure shows with its cause.
     """
     ctx = multiprocessing.get_context("fork")
-    out = [Ceilings.allocate(len(cases), _shared_array) for _ in range(outputs)]
     next_chunk = ctx.Value("q", 0)
 
     def work():
@@ -153,8 +164,7 @@ def _solve_in_processes(cases: CaseSet, bounds, processes: int, solve, outputs: 
             if k >= len(bounds):
                 break
             part = slice(*bounds[k])
-            for target, result in zip(out, solve(cases.take(part))):
-                target.put(part, result)
+            out.put(part, solve(part))
 
     def child():
         try:
@@ -179,7 +189,7 @@ def _solve_in_processes(cases: CaseSet, bounds, processes: int, solve, outputs: 
     finally:
         for w in workers:
             w.join()
-    return None if failed or any(w.exitcode != 0 for w in workers) else out
+    return not failed and all(w.exitcode == 0 for w in workers)
 
 
 def _keep_freed_memory():
