@@ -212,9 +212,10 @@ def test_the_engine_out_search_agrees_with_the_general_search(fleet):
     # the best speed is a corner at the turbofan lapse's branch change, which the search solves
     # on the corner and the general search beside it: there the search may be higher (by up to
     # 1.3 ft on the benchmark's seeds), never lower by more than 0.1 ft (the corner's tolerance).
-    # It answers nearly every case where the best speed is free, on a corner or on a fixed end
-    # of the speed range (the benchmark, the regional fleet); where the buffet margin holds the
-    # best speed (the survey type, slow and high) it leaves most to the general search.
+    # It answers nearly every case: where the best speed is free, on a corner or on a fixed end
+    # of the speed range (the benchmark, the regional fleet's jets), and where the buffet margin
+    # holds it at the slowest speed allowed (the regional fleet's turboprops, the survey type,
+    # slow and high: the slowest-speed stage, within 0.1 ft of the general search's corner).
     from variantcmp import bench
     from variantcmp.catalogue import bundled_fleet_dir, load_catalogue
     from variantcmp.solver.gradient_ceiling import gradient_ceilings
@@ -230,7 +231,7 @@ def test_the_engine_out_search_agrees_with_the_general_search(fleet):
         derived = engine_out_cases(cases, terms, decrement)
         fast, done = gradient_ceilings(derived)
         ref = _general(derived)
-        assert done.mean() > (0.3 if fleet == "tallon-fells-survey" else 0.95)
+        assert done.mean() > 0.95
         both = done & np.isfinite(ref.max_altitude_m)
         diff_ft = (fast.max_altitude_m[both] - ref.max_altitude_m[both]) / FT
         assert np.all(diff_ft > -0.1) and np.all(diff_ft < 2.0)

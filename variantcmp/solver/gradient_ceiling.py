@@ -39,8 +39,7 @@ search:
      ACCEPT_HALF_WIDTH_M) has thrust binding, no flags, within ACCEPT_M of the search's altitude;
    - no speed of CHECK_SPEEDS, evenly over the case's speed range, nor any kink in Mach (the
      turbofan lapse's branch change, a thrust table's Mach columns, a propeller efficiency table's
-     Machs: a corner peak there lies
-     beside the parabola's) has a gradient above GRADIENT_SLACK at that ceiling, and no kink
+     Machs: a corner peak there lies beside the parabola's) has a gradient above GRADIENT_SLACK at that ceiling, and no kink
      lies within two JOINT_MACH_STEP of the speed found (the parabola would straddle it): the
      speed found is the best at that altitude, not a local peak;
    - none of them, nor the speed found, has a positive gradient at the altitudes ABOVE_M above
@@ -52,13 +51,24 @@ search:
      again above the ceiling.
 
    An accepted case's answer is that fixed-Mach answer: solving at its Mach gives it again.
+   *Held at the slowest speed* (:func:`low_edge_search`): where the best speed is the slowest the
+   buffet margin or the stall allows (a propeller aircraft's, mostly: its best gradient at the
+   ceiling lies near the minimum-power speed, CL = sqrt(3 CD0/K), a lift coefficient the buffet
+   margin seldom allows), the case left by step 3 is solved again along that edge: the zero in
+   altitude of the gradient at the window's lowest Mach (a ladder as in step 1, then
+   :func:`~variantcmp.solver.finders.illinois_root`), the speed the edge has LOW_EDGE_MARGIN_M
+   above it (there the thrust ceiling, falling with Mach, binds rather than the margin's), and the
+   check of step 3 over the speeds from there up (the slower ones the margin forbids).
 4. The rest: the general best-speed search, in full, all of a job's at once
    (``tests/test_engine_out.py`` checks that the two agree on the benchmark and demo fleets: to
    0.001 ft but at corners, where the search is higher by up to 1.3 ft on four seeds' 30,000
    cases, lower by at most 0.07 ft). On the benchmark's seeded cases the search leaves 0.01 to
-   0.2 % (measured, four seeds); on the regional demo fleet (60-100 % MTOW, ISA-10 to +30)
-   none; on the survey demo fleet, whose gross best speeds the buffet margin mostly holds, 70 %
-   of the gross ceilings and none of the net ones.
+   0.2 % (measured, four seeds); on the demo fleets (60-110 % MTOW, ISA-15 to +35) none: the
+   regional fleet's turboprops and the survey type, whose best speeds the buffet margin mostly
+   holds, are answered by the slowest-speed stage (before it, steps 2-3 left 92 % of the
+   turboprops' gross ceilings and 30 % of the survey type's; measured). At the margin's edge
+   the search lies within 0.07 ft of the general search's corner (both stop a few cm short of
+   the crossing).
 
 Like the general search, the checks sample speeds and altitudes: a peak of the gradient narrower
 than the sample spacing, away from the speed found, is not seen.
@@ -71,7 +81,7 @@ import numpy as np
 from ..atmosphere import MODEL_TOP_M, isa_state, pressure_altitude_m
 from ..cases import FT, MODEL_CODES, CaseSet
 from .fixed_mach import fixed_mach_ceilings
-from .finders import golden_max, nan_as_lowest
+from .finders import golden_max, illinois_root, nan_as_lowest
 from .gradient import GRADIENT_ITERATIONS, speed_window
 from .kinks import mach_kink_groups, turbofan_branch_mach
 from .physics import ClimbPhysics, group_key
@@ -96,6 +106,8 @@ ABOVE_M = (1000.0,)
 TABLE_CHECK_PROBES = 4  # of the hump check's table altitudes and midpoints above the ceiling
 CHUNK = 8192  # cases per chunk: the arrays of one evaluation stay in cache (4,096-16,384 measured alike)
 HUMP_ITERATIONS = 30  # golden section over up to 20 km of altitude: to 0.01 m
+LOW_EDGE_TOL_M = 0.002  # the root in altitude along the slowest speed
+LOW_EDGE_MARGIN_M = 0.01  # the speed taken is the slowest this much above the root (so the margin's ceiling)
 
 
 def start_guess(phys: ClimbPhysics):
@@ -230,8 +242,10 @@ def probe_altitudes_m(phys: ClimbPhysics, ceiling_m):
     return out
 
 
-def accepted(phys: ClimbPhysics, h, m):
-    """Step 3: the fixed-Mach answers at the speeds found, and which of them pass the checks."""
+def accepted(phys: ClimbPhysics, h, m, edge: bool = False):
+    """Step 3: the fixed-Mach answers at the speeds found, and which of them pass the checks.
+    ``edge``: the speeds found are the slowest allowed (:func:`low_edge_search`), not a parabola's
+    vertex: the speeds checked start there, and the kink rules about the vertex do not apply."""
     cs = phys.cases
     # A narrow window: the root is that close. (It skips the table engines' hump check, whose
     # probes the check below looks at, at the speed found too.)
@@ -247,6 +261,8 @@ def accepted(phys: ClimbPhysics, h, m):
     # CHECK_SPEEDS speeds over the case's whole range (a superset of the speeds the limits allow:
     # a speed they forbid may only turn a case down, never pass one).
     lo, hi = cs.mach_low[rows], cs.mach_high[rows]
+    if edge:
+        lo = np.fmax(lo, found)
     speeds = [lo + f * (hi - lo) for f in np.linspace(0.0, 1.0, CHECK_SPEEDS)]
     bad = np.zeros(rows.size, dtype=bool)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
@@ -264,7 +280,11 @@ def accepted(phys: ClimbPhysics, h, m):
         for kink in kinks:
             there = np.isfinite(kink)
             if there.any():
+                if edge:
+                    there &= kink > lo
                 bad |= there & (sub.climb_gradient(ceiling, np.where(there, kink, lo)) > GRADIENT_SLACK)
+                if edge:
+                    continue
                 # A kink inside the search's last three speeds: its parabola does not hold there; a
                 # speed on the kink itself (a corner peak) must beat its neighbours.
                 on = there & (np.abs(found - kink) < CORNER_TOL)
@@ -287,6 +307,57 @@ def accepted(phys: ClimbPhysics, h, m):
     return res, ok
 
 
+class _GradientAtSlowest:
+    """``f(altitude)``: the climb gradient at the slowest Mach the window allows there (stall, the
+    buffet margin, the case's range), per case; -inf where no speed is allowed (the root finder's
+    family: :func:`~variantcmp.solver.finders.illinois_root`)."""
+
+    __slots__ = ("phys",)
+
+    def __init__(self, phys: ClimbPhysics):
+        self.phys = phys
+
+    def slowest(self, altitude_m):
+        low, high = speed_window(self.phys, altitude_m)
+        with np.errstate(invalid="ignore"):
+            return np.where(low <= high, low, np.nan)
+
+    def __call__(self, altitude_m):
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            m = self.slowest(altitude_m)
+            g = self.phys.climb_gradient(altitude_m, np.where(np.isfinite(m), m, 0.5))
+        return np.where(np.isfinite(m) & np.isfinite(g), g, -np.inf)
+
+    def subset(self, keep) -> "_GradientAtSlowest":
+        return _GradientAtSlowest(self.phys.subset(keep))
+
+
+def low_edge_search(phys: ClimbPhysics):
+    """Step 3's other way (see the module docstring): (altitude, Mach) per case where the gradient
+    at the slowest allowed speed crosses zero between two rungs of START_LADDER_M (the highest such
+    pair), NaN elsewhere. Only the caller's check (:func:`accepted` with ``edge``) says whether the
+    slowest speed is the best one there."""
+    cs = phys.cases
+    n = len(cs)
+    f = _GradientAtSlowest(phys)
+    top = np.minimum(cs.top_m, MODEL_TOP_M)
+    rungs = np.stack([np.clip(rung, cs.floor_m, top) for rung in START_LADDER_M], axis=1)
+    g = np.stack([f(rungs[:, j]) for j in range(rungs.shape[1])], axis=1)  # a loop over the rungs
+    ok = g >= 0.0
+    k = rungs.shape[1]
+    last = k - 1 - np.argmax(ok[:, ::-1], axis=1)
+    found = np.flatnonzero(ok.any(axis=1) & (last < k - 1) & (rungs[np.arange(n), np.minimum(last + 1, k - 1)]
+                                                              > rungs[np.arange(n), last]))
+    h_out, m_out = np.full(n, np.nan), np.full(n, np.nan)
+    if found.size:
+        a, b = rungs[found, last[found]], rungs[found, last[found] + 1]
+        with np.errstate(invalid="ignore"):
+            h = illinois_root(f.subset(found), a, b, g[found, last[found]], g[found, last[found] + 1], LOW_EDGE_TOL_M)
+        h_out[found] = h
+        m_out[found] = f.subset(found).slowest(h + LOW_EDGE_MARGIN_M)
+    return h_out, m_out
+
+
 def holds_nowhere(phys: ClimbPhysics) -> np.ndarray:
     """Step 1's other outcome, for cases whose ladder held the level at no rung: whether they hold
     it nowhere. Yes where the best gradient over the speed window without the buffet band (more
@@ -295,7 +366,9 @@ def holds_nowhere(phys: ClimbPhysics) -> np.ndarray:
     speed range (between the floor and where that Mach flies at the minimum-drag CL, above which
     drag and thrust only get worse). The reason: with the best speed inside the window, the best
     gradient falls with altitude (the same lift coefficient at a lower altitude and speed has the
-    same drag and no less thrust), so negative at the floor is negative everywhere; a hump comes
+    same drag and no less thrust; a propeller's eta P / V there goes as eta(M) rho^(m + 1/2), which
+    falls only with an efficiency rising with Mach faster than M^(2m + 1), steeper than any
+    propeller's), so negative at the floor is negative everywhere; a hump comes
     only where the best speed is held at a fixed Mach, the range's end (a data range, MMO), where
     the drag falls with altitude until that Mach flies at the minimum-drag CL. Such a case gets no ceiling
     and the flag CANNOT_CLIMB, as the general search would give it after scanning every speed
@@ -348,6 +421,18 @@ def gradient_ceilings(cases: CaseSet):
         found = np.flatnonzero(np.isfinite(h))
         if found.size:
             res, ok = accepted(phys.subset(found), h[found], m[found])
+            take = np.flatnonzero(ok)
+            out.put(rows[found[take]], res.take(take))
+            done[rows[found[take]]] = True
+    # What steps 2-3 left, where the variant has buffet data: held at the slowest speed?
+    left = order[~done[order] & (cases.buffet_id[order] >= 0)]
+    for start in range(0, left.size, CHUNK):
+        rows = left[start:start + CHUNK]
+        phys = ClimbPhysics(cases.take(rows))
+        h, m = low_edge_search(phys)
+        found = np.flatnonzero(np.isfinite(h) & np.isfinite(m))
+        if found.size:
+            res, ok = accepted(phys.subset(found), h[found], m[found], edge=True)
             take = np.flatnonzero(ok)
             out.put(rows[found[take]], res.take(take))
             done[rows[found[take]]] = True
