@@ -240,6 +240,25 @@ def test_the_engine_out_search_agrees_with_the_general_search(fleet):
         np.testing.assert_array_equal(np.isnan(fast.max_altitude_m[done]), np.isnan(ref.max_altitude_m[done]))
 
 
+def test_engine_out_answers_do_not_depend_on_the_chunks_or_the_processes(monkeypatch):
+    # The job's chunk size (JOB_CHUNK, a tuning constant: 50,000 cases) and the process count
+    # change only how the work is shared: the same answers bit for bit, one chunk in this process
+    # or many chunks over two processes (definition of the machinery, solver.parallel).
+    from variantcmp import bench
+    from variantcmp.solver import engine_out as eo
+
+    cat = bench.synthetic_fleet()
+    cases = bench.synthetic_cases(cat, 1200, mach="best")
+    terms = engine_out_terms(cat, cases)
+    whole = eo.engine_out_ceilings(cases, terms, processes=1)
+    monkeypatch.setattr(eo, "JOB_CHUNK", 150)
+    shared = eo.engine_out_ceilings(cases, terms, processes=2)
+    for a, b in ((whole.gross, shared.gross), (whole.net, shared.net)):
+        for name in ("max_altitude_m", "mach", "limit", "co_limit", "flags"):
+            np.testing.assert_array_equal(getattr(a, name), getattr(b, name), err_msg=name)
+    assert np.isfinite(whole.net.max_altitude_m).mean() > 0.5
+
+
 def test_cases_that_hold_no_altitude_agree_with_the_general_search():
     # Heavy and hot with one engine out, many benchmark cases hold no altitude on the net path:
     # the search says so (no ceiling, CANNOT_CLIMB) without scanning every speed, and the general
