@@ -10,7 +10,8 @@ def test_bench_small_run_agrees_with_scalar_reference(capsys):
     figures = json.loads(capsys.readouterr().out)
     for key in ("cases", "seconds", "cases_per_s", "best_speed_cases_per_s", "oei_cases_per_s", "scalar_cases_per_s",
                 "speedup", "max_abs_diff_ft", "grid_ms", "peak_rss_mb", "turboprop_cases_per_s",
-                "turboprop_best_cases_per_s", "turboprop_scalar_cases_per_s", "turboprop_max_abs_diff_ft"):
+                "turboprop_best_cases_per_s", "turboprop_scalar_cases_per_s", "turboprop_max_abs_diff_ft",
+                "turboprop_oei_cases_per_s"):
         assert key in figures
     assert figures["cases"] == figures["turboprop_cases"] == 3000
     # Independent scalar method (floats, math, brentq; propeller thrust eta P / V): agreement

@@ -30,8 +30,9 @@ def add(subparsers) -> None:
         subparsers, "bench", help="time the ceiling solver on a synthetic fleet grid",
         description="Time the vectorised ceiling solver on seeded synthetic fleets of jets and of turboprops: "
                     "fixed-Mach and best-speed maximum altitudes, a scalar one-case-at-a-time reference on a "
-                    "subsample of each (also a correctness check), one-engine-out gross and net ceilings of the "
-                    "jets, the demo fleet's interactive grid, and the heaviest weight and the warmest day for a level at a fixed Mach and at the best speed.")
+                    "subsample of each (also a correctness check), one-engine-out gross and net ceilings of "
+                    "each, the demo fleet's interactive grid, and the heaviest weight and the warmest day for a "
+                    "level at a fixed Mach and at the best speed.")
     p.add_argument("--cases", action=options.Once, type=_positive_int, default=1_000_000,
                    help="fixed-Mach cases of each fleet (default 1,000,000)")
     p.add_argument("--best-cases", action=options.Once, type=_positive_int, default=100_000,
@@ -60,6 +61,8 @@ def run(args) -> int:
          f["turboprop_best_cases_per_s"]),
         ("jets: scalar reference (floats, math, brentq per case)", f["scalar_cases"],
          f["scalar_cases"] / f["scalar_cases_per_s"], f["scalar_cases_per_s"]),
+        ("turboprops: one engine out", f["turboprop_oei_cases"], f["turboprop_oei_seconds"],
+         f["turboprop_oei_cases_per_s"]),
         ("turboprops: scalar reference", f["turboprop_scalar_cases"],
          f["turboprop_scalar_cases"] / f["turboprop_scalar_cases_per_s"], f["turboprop_scalar_cases_per_s"]),
         ("demo fleet interactive grid (9 weights x 7 days x 3 climbs)", f["grid_cases"], f["grid_ms"] / 1000,
