@@ -152,6 +152,12 @@ async def _shoot(size: tuple[int, int], out: Path, written: list[Path]) -> None:
         await pilot.press("p")
         await settle(app, pilot)
         save(app, "engine-out-profile")
+        # A turboprop's drift-down (the T72 with its PT-24), its best speed held at the buffet margin.
+        await pilot.press("p", *["down"] * 7)
+        await settle(app, pilot)
+        await pilot.press("p")
+        await settle(app, pilot)
+        save(app, "engine-out-turboprop")
         await pilot.press("p", "escape")
         await settle(app, pilot)
 
