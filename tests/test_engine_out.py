@@ -204,7 +204,7 @@ def _general(cases):
     return solve_ceilings(cases, processes=1)
 
 
-@pytest.mark.parametrize("fleet", ["benchmark", "fernholt-regional", "tallon-fells-survey"])
+@pytest.mark.parametrize("fleet", ["benchmark", "benchmark-turboprops", "fernholt-regional", "tallon-fells-survey"])
 def test_the_engine_out_search_agrees_with_the_general_search(fleet):
     # The search built for the engine-out ceilings (variantcmp.solver.gradient_ceiling) against
     # the general best-speed search on the same derived sets (gross and net): where it answers,
@@ -215,13 +215,14 @@ def test_the_engine_out_search_agrees_with_the_general_search(fleet):
     # It answers nearly every case: where the best speed is free, on a corner or on a fixed end
     # of the speed range (the benchmark, the regional fleet's jets), and where the buffet margin
     # holds it at the slowest speed allowed (the regional fleet's turboprops, the survey type,
-    # slow and high: the slowest-speed stage, within 0.1 ft of the general search's corner).
+    # slow and high: the slowest-speed stage, within 0.1 ft of the general search's corner), and
+    # on a propeller efficiency table's kink (the benchmark's turboprops: a corner peak).
     from variantcmp import bench
     from variantcmp.catalogue import bundled_fleet_dir, load_catalogue
     from variantcmp.solver.gradient_ceiling import gradient_ceilings
 
-    if fleet == "benchmark":
-        cat = bench.synthetic_fleet()
+    if fleet.startswith("benchmark"):
+        cat = bench.synthetic_fleet() if fleet == "benchmark" else bench.synthetic_turboprop_fleet()
         cases = bench.synthetic_cases(cat, 1500, mach="best")
     else:
         cat = load_catalogue(f"{bundled_fleet_dir()}/{fleet}.toml")
@@ -234,8 +235,13 @@ def test_the_engine_out_search_agrees_with_the_general_search(fleet):
         assert done.mean() > 0.95
         both = done & np.isfinite(ref.max_altitude_m)
         diff_ft = (fast.max_altitude_m[both] - ref.max_altitude_m[both]) / FT
-        assert np.all(diff_ft > -0.1) and np.all(diff_ft < 2.0)
-        assert np.mean(np.abs(diff_ft) < 0.05) > 0.98
+        # (Higher by up to 3.1 ft on a propeller efficiency table's kink, the benchmark turboprops'
+        # net set: a dense scan of 4,001 Machs gives this search's answer, to 0.001 ft; measured.)
+        assert np.all(diff_ft > -0.1) and np.all(diff_ft < 4.0)
+        assert np.mean(np.abs(diff_ft) < 0.05) > 0.95
+        # At a speed held at the slowest edge (stall or buffet margin) both stop short of the
+        # crossing, the general search 5 cm (CORNER_MARGIN_M), this one 1 cm: higher by up to 0.15 ft.
+        assert np.mean((diff_ft > -0.05) & (diff_ft < 0.2)) > 0.98
         assert np.mean(np.abs(fast.mach[both] - ref.mach[both]) < 2e-3) > 0.98
         np.testing.assert_array_equal(np.isnan(fast.max_altitude_m[done]), np.isnan(ref.max_altitude_m[done]))
 

@@ -31,10 +31,12 @@ GRADIENT_ITERATIONS = 22  # golden section in Mach: a range of 0.6 to 1e-5
 BUFFET_EDGE_ITERATIONS = 30  # bisection for the buffet band's ends: 0.5 Mach / 2^30
 
 
-def speed_window(phys: ClimbPhysics, altitude_m, buffet: bool = True):
+def speed_window(phys: ClimbPhysics, altitude_m, buffet: bool = True, high_end: bool = True):
     """The lowest and highest Mach each case may fly at an altitude (pressure altitude, m): stall,
     the case's speed range (MMO), VMO and (``buffet``) the buffet margin; see the module
-    docstring. low > high (or NaN) where no speed is allowed."""
+    docstring. low > high (or NaN) where no speed is allowed. ``high_end`` False: the buffet
+    band's upper end is not solved (high is then the other limits' alone), for a caller that
+    wants the lowest speed only (half the bisections)."""
     cs = phys.cases
     _, p, _ = isa_state(altitude_m)
     qs_per_m2 = phys.qs_per_pm2 * p  # q S = (gamma/2) p M^2 S (Anderson, Introduction to Flight, eq. 4.83)
@@ -54,9 +56,12 @@ def speed_window(phys: ClimbPhysics, altitude_m, buffet: bool = True):
             peak = buffet_peak_mach(sub, lo, np.fmax(lo, hi))
             ok = capacity(peak) >= 0.0
             rise = bisect_root(capacity, lo, np.where(ok, peak, lo), True, BUFFET_EDGE_ITERATIONS)
-            fall = bisect_root(capacity, np.where(ok, peak, hi), hi, False, BUFFET_EDGE_ITERATIONS)
             low[buffeted] = np.where(ok, np.where(capacity(lo) >= 0.0, lo, rise), np.nan)
-            high[buffeted] = np.where(ok, np.where(capacity(hi) >= 0.0, hi, fall), np.nan)
+            if high_end:
+                fall = bisect_root(capacity, np.where(ok, peak, hi), hi, False, BUFFET_EDGE_ITERATIONS)
+                high[buffeted] = np.where(ok, np.where(capacity(hi) >= 0.0, hi, fall), np.nan)
+            else:
+                high[buffeted] = np.where(ok, hi, np.nan)
     return low, high
 
 

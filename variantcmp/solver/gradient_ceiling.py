@@ -24,8 +24,9 @@ search:
    and the best gradient, whose slope in altitude (the envelope theorem) a secant step uses. The
    speed window follows the altitude (stall, the case's range, VMO:
    :func:`~variantcmp.solver.gradient.speed_window` without the buffet band, which step 3 checks).
-   Where the turbofan lapse's branch change lies near and the gradient peaks in its corner, the
-   corner is the best speed (:func:`_corner_peaks`). Where the gradient still rises
+   Where a kink in Mach lies near (the turbofan lapse's branch change, a thrust or propeller
+   efficiency table's Mach) and the gradient peaks in its corner, the corner is the best speed
+   (:func:`_corner_peaks`). Where the gradient still rises
    with altitude (below a hump, at a speed held at a fixed Mach) the search steps up
    UPHILL_STEP_M at a time. Settled when the speed moves less than JOINT_MACH_TOL and the
    altitude less than JOINT_ALTITUDE_TOL_M on a slope the search measured, at an interior maximum
@@ -83,7 +84,7 @@ from ..cases import FT, MODEL_CODES, CaseSet
 from .fixed_mach import fixed_mach_ceilings
 from .finders import golden_max, illinois_root, nan_as_lowest
 from .gradient import GRADIENT_ITERATIONS, speed_window
-from .kinks import mach_kink_groups, turbofan_branch_mach
+from .kinks import mach_kink_groups, nearest_kink_mach, turbofan_branch_mach
 from .physics import ClimbPhysics, group_key
 from .results import CANNOT_CLIMB, LIMITS, Ceilings
 
@@ -202,24 +203,38 @@ def joint_gradient_search(phys: ClimbPhysics, h0, m0):
 
 
 def _corner_peaks(phys: ClimbPhysics, h, x, lo, hi, m_vertex):
-    """Where the turbofan lapse's branch change lies within JOINT_MAX_MACH_STEP of the speed ``x``,
-    the gradient peaks in the corner there (above its value a JOINT_MACH_STEP either side) and
-    there beats its value at the parabola's best speed ``m_vertex`` (a parabola across a corner
-    overshoots: its own value is not compared): those cases, the corner's Mach and its gradient;
-    None where there are none. The parabola through three speeds does not find a corner, and the
-    corner moves fast with altitude (its Mach, where theta0 = TR, by some 0.01 per 100 m at low
-    Mach): it is looked for at each step's altitude."""
+    """Where a kink in Mach lies within JOINT_MAX_MACH_STEP of the speed ``x`` (the turbofan lapse's
+    branch change; the kink Mach nearest ``x`` of a thrust table or a propeller efficiency table,
+    :func:`~variantcmp.solver.kinks.nearest_kink_mach`), the gradient peaks in the corner there
+    (above its value a JOINT_MACH_STEP either side) and there beats its value at the parabola's
+    best speed ``m_vertex`` (a parabola across a corner overshoots: its own value is not
+    compared): those cases, the corner's Mach and its gradient; None where there are none. The
+    parabola through three speeds does not find a corner, and the turbofan's corner moves fast
+    with altitude (its Mach, where theta0 = TR, by some 0.01 per 100 m at low Mach): it is looked
+    for at each step's altitude. A propeller's efficiency table puts its corner peaks where the
+    efficiency's slope drops (the benchmark's turboprops' best gradient mostly sits on one)."""
     d = JOINT_MACH_STEP
-    kink = turbofan_branch_mach(phys, h)
-    with np.errstate(invalid="ignore"):
-        near = np.flatnonzero(np.isfinite(kink) & (np.abs(x - kink) < JOINT_MAX_MACH_STEP) & (kink - d > lo)
-                              & (kink + d < hi))
-    if near.size == 0:
+    found_at, found_m, found_e = [], [], []
+    for kink in (turbofan_branch_mach(phys, h), nearest_kink_mach(phys, x)):
+        with np.errstate(invalid="ignore"):
+            near = np.flatnonzero(np.isfinite(kink) & (np.abs(x - kink) < JOINT_MAX_MACH_STEP) & (kink - d > lo)
+                                  & (kink + d < hi))
+        if near.size == 0:
+            continue
+        sub, k, hn = phys.subset(near), kink[near], h[near]
+        e_k, e_l, e_r = (sub.climb_gradient(hn, k + j * d) for j in (0.0, -1.0, 1.0))
+        peak = (e_k >= e_l) & (e_k >= e_r) & (e_k >= sub.climb_gradient(hn, m_vertex[near]))
+        found_at.append(near[peak]), found_m.append(k[peak]), found_e.append(e_k[peak])
+    if not found_at:
         return None
-    sub, k, hn = phys.subset(near), kink[near], h[near]
-    e_k, e_l, e_r = (sub.climb_gradient(hn, k + j * d) for j in (0.0, -1.0, 1.0))
-    peak = (e_k >= e_l) & (e_k >= e_r) & (e_k >= sub.climb_gradient(hn, m_vertex[near]))
-    return near[peak], k[peak], e_k[peak]
+    # A case with corners of both kinds (a turbofan with a thrust table has none): the higher.
+    at, m, e = (np.concatenate(v) for v in (found_at, found_m, found_e))
+    if at.size == 0:
+        return None
+    order = np.lexsort((-e, at))
+    first = np.concatenate([[True], at[order][1:] != at[order][:-1]])
+    pick = order[first]
+    return at[pick], m[pick], e[pick]
 
 
 def probe_altitudes_m(phys: ClimbPhysics, ceiling_m):
@@ -318,7 +333,7 @@ class _GradientAtSlowest:
         self.phys = phys
 
     def slowest(self, altitude_m):
-        low, high = speed_window(self.phys, altitude_m)
+        low, high = speed_window(self.phys, altitude_m, high_end=False)
         with np.errstate(invalid="ignore"):
             return np.where(low <= high, low, np.nan)
 
@@ -424,8 +439,8 @@ def gradient_ceilings(cases: CaseSet):
             take = np.flatnonzero(ok)
             out.put(rows[found[take]], res.take(take))
             done[rows[found[take]]] = True
-    # What steps 2-3 left, where the variant has buffet data: held at the slowest speed?
-    left = order[~done[order] & (cases.buffet_id[order] >= 0)]
+    # What steps 2-3 left: held at the slowest speed (the buffet margin's, or the stall's)?
+    left = order[~done[order]]
     for start in range(0, left.size, CHUNK):
         rows = left[start:start + CHUNK]
         phys = ClimbPhysics(cases.take(rows))
