@@ -22,7 +22,7 @@ The weight is not capped at MTOW: above it, the level is reached at every weight
 DROP_FOR_WIDTH = ("stall", "buffet", "thrust", "mach", "pct")
 FOOTER = ("Weights in t, rounded down; — = no weight reaches the level (see the note). * above MTOW: the "
           "level is reached at every weight up to MTOW. Thrust, Buffet, Stall: the weight each limit allows "
-          "at the Mach shown.")
+          "at the Mach shown (— where it sets none: a variant without buffet data).")
 
 
 def add(subparsers) -> None:
