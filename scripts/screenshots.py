@@ -153,6 +153,26 @@ async def _shoot(size: tuple[int, int], out: Path, written: list[Path]) -> None:
         await pilot.press("escape")
         await settle(app, pilot)
 
+        # Engine-out view: ceilings, drift-down and the profile of a row, with a terrain check.
+        await pilot.press("g")
+        await settle(app, pilot)
+        await type_into(pilot, "#oei-terrain", "14000")
+        await settle(app, pilot)
+        await pilot.press("down", "down")
+        await settle(app, pilot)
+        save(app, "engine-out")
+        await pilot.press("p")
+        await settle(app, pilot)
+        save(app, "engine-out-profile")
+        # A turboprop's drift-down (the T72 with its PT-24), its best speed held at the buffet margin.
+        await pilot.press("p", *["down"] * 7)
+        await settle(app, pilot)
+        await pilot.press("p")
+        await settle(app, pilot)
+        save(app, "engine-out-turboprop")
+        await pilot.press("p", "escape")
+        await settle(app, pilot)
+
         await pilot.press("i")
         await settle(app, pilot)
         save(app, "variant")

@@ -94,3 +94,23 @@ def test_temperature_deviation_keeps_pressure(h, dev):
     assert p == pytest.approx(atm.isa_pressure_pa(h))
     assert t == pytest.approx(atm.isa_temperature_k(h) + dev)
     assert rho == pytest.approx(p / (287.05287 * t))
+
+
+@pytest.mark.parametrize("dev", [-20.0, 0.0, 15.0, 35.0])
+def test_height_on_the_day_is_the_hypsometric_integral(dev):
+    # Hypsometric equation (hydrostatic with the ideal-gas law; e.g. Wallace & Hobbs, Atmospheric
+    # Science, 2nd ed., sec. 3.2): dz/dh_p = T/T_ISA at a pressure altitude, integrated by scipy's
+    # quad with fluids' USSA 1976 standard temperature (geometric height converted, eq. 18); the
+    # inverse returns the pressure altitude. Rule of thumb (common practice, no source): about 4 %
+    # of the height per 10 degrees C below 11 km.
+    from scipy.integrate import quad
+
+    def t_std(h):
+        return ATMOSPHERE_1976(R0_EARTH_M * h / (R0_EARTH_M - h)).T
+
+    for h in (-500.0, 3000.0, 9000.0, 11_000.0, 15_000.0):
+        expected = quad(lambda x: (t_std(x) + dev) / t_std(x), 0.0, h, epsabs=1e-7, points=[11_000.0])[0]
+        z = float(atm.height_on_day_m(h, dev))
+        assert z == pytest.approx(expected, abs=0.01)
+        assert float(atm.pressure_altitude_on_day_m(z, dev)) == pytest.approx(h, abs=1e-6)
+    assert float(atm.height_on_day_m(3000.0, dev)) / 3000.0 - 1.0 == pytest.approx(0.0036 * dev, abs=0.0006 * abs(dev) + 1e-9)

@@ -8,9 +8,10 @@ from variantcmp.cli import main
 def test_bench_small_run_agrees_with_scalar_reference(capsys):
     assert main(["bench", "--cases", "3000", "--best-cases", "200", "--scalar-cases", "150", "--format", "json"]) == 0
     figures = json.loads(capsys.readouterr().out)
-    for key in ("cases", "seconds", "cases_per_s", "best_speed_cases_per_s", "scalar_cases_per_s", "speedup",
-                "max_abs_diff_ft", "grid_ms", "peak_rss_mb", "turboprop_cases_per_s", "turboprop_best_cases_per_s",
-                "turboprop_scalar_cases_per_s", "turboprop_max_abs_diff_ft", "cruise_cases_per_s", "mrc_cases_per_s",
+    for key in ("cases", "seconds", "cases_per_s", "best_speed_cases_per_s", "oei_cases_per_s", "scalar_cases_per_s",
+                "speedup", "max_abs_diff_ft", "grid_ms", "peak_rss_mb", "turboprop_cases_per_s",
+                "turboprop_best_cases_per_s", "turboprop_scalar_cases_per_s", "turboprop_max_abs_diff_ft",
+                "turboprop_oei_cases_per_s", "cruise_cases_per_s", "mrc_cases_per_s",
                 "turboprop_cruise_cases_per_s", "turboprop_mrc_cases_per_s"):
         assert key in figures
     assert figures["cases"] == figures["turboprop_cases"] == 3000

@@ -246,3 +246,20 @@ def test_bare_thousands_are_refused_as_ambiguous():
     assert parse_flight_level("350") == 35000.0
     assert parse_flight_level("35000") == 35000.0
     assert parse_flight_level("3500ft") == 3500.0
+
+
+@pytest.mark.parametrize("text, feet", [("12000", 12000.0), ("12,000 ft", 12000.0), ("12000ft", 12000.0),
+                                        ("3658m", 3658 / 0.3048), ("-100", -100.0)])
+def test_heights_in_feet_or_metres(text, feet):
+    # International foot, 0.3048 m exactly (1959 agreement).
+    from variantcmp.units import TERRAIN_RANGE_FT, parse_height_ft
+
+    assert parse_height_ft(text, "--terrain", TERRAIN_RANGE_FT) == pytest.approx(feet)
+
+
+@pytest.mark.parametrize("text", ["x", "", "40000", "12000kg", "nan"])
+def test_bad_heights_are_refused(text):
+    from variantcmp.units import TERRAIN_RANGE_FT, OptionError, parse_height_ft
+
+    with pytest.raises(OptionError, match="--terrain"):
+        parse_height_ft(text, "--terrain", TERRAIN_RANGE_FT)

@@ -164,6 +164,50 @@ def pressure_altitude_m(pressure_pa):
     return np.where(p < MODEL_TOP_P_PA, np.inf, np.where(h < MODEL_BOTTOM_M, -np.inf, h))
 
 
+def _layer_integrals():
+    """The integral of dh / T_ISA(h) from sea level to each layer base (1/K x m)."""
+    out = np.zeros(LAYER_BASE_M.size)
+    for i in range(1, LAYER_BASE_M.size):
+        lapse, t_b, dh = LAYER_LAPSE_K_PER_M[i - 1], LAYER_BASE_T_K[i - 1], LAYER_BASE_M[i] - LAYER_BASE_M[i - 1]
+        out[i] = out[i - 1] + (dh / t_b if lapse == 0.0 else np.log1p(lapse * dh / t_b) / lapse)
+    return out
+
+
+_INV_T_INTEGRAL = _layer_integrals()
+
+
+def height_on_day_m(pressure_altitude_m, isa_dev_c):
+    """Height above mean sea level (geopotential, m) of a pressure altitude on a day ISA + dev,
+    with the standard pressure at mean sea level (QNH 1013.25 hPa).
+
+    Source: the hypsometric equation, the hydrostatic equation with the ideal-gas law,
+    dz = -(R T / g0) dp / p (e.g. Wallace & Hobbs, *Atmospheric Science*, 2nd ed., sec. 3.2);
+    pressure altitude is the same with T_ISA (ISO 2533), so dz / dh_p = T / T_ISA and
+    z = h_p + dev x integral of dh / T_ISA from sea level, layer by layer. A warm day lifts a
+    pressure altitude above its number, a cold day lowers it (the basis of altimeter temperature
+    corrections).
+    """
+    h = np.asarray(pressure_altitude_m, dtype=float)
+    i = _layer_index(h)
+    lapse, t_b = LAYER_LAPSE_K_PER_M[i], LAYER_BASE_T_K[i]
+    dh = h - LAYER_BASE_M[i]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        part = np.where(lapse == 0.0, dh / t_b, np.log1p(lapse * dh / t_b) / np.where(lapse == 0.0, 1.0, lapse))
+    return h + np.asarray(isa_dev_c, dtype=float) * (_INV_T_INTEGRAL[i] + part)
+
+
+def pressure_altitude_on_day_m(height_m, isa_dev_c, iterations: int = 8):
+    """The pressure altitude (m) at a height above mean sea level on a day ISA + dev: the inverse
+    of :func:`height_on_day_m` (same source), by Newton steps with dz / dh_p = T / T_ISA."""
+    z = np.asarray(height_m, dtype=float)
+    dev = np.asarray(isa_dev_c, dtype=float)
+    h = z.copy()
+    for _ in range(iterations):
+        t_isa = isa_temperature_k(h)
+        h = h - (height_on_day_m(h, dev) - z) * t_isa / (t_isa + dev)
+    return h
+
+
 def density_kg_m3(pressure_pa, temperature_k):
     """Air density from the ideal-gas law rho = p / (R T) (ISO 2533)."""
     return np.asarray(pressure_pa) / (R_AIR * np.asarray(temperature_k))

@@ -26,6 +26,7 @@ from .cases import FPM, FT, build_cases
 from .bench_cruise import CRUISE_CASES, run_cruise_benchmark
 from .solver import solve_ceilings, solve_heaviest, solve_hottest
 from .solver.level import CLIMBS_ABOVE
+from .solver.engine_out import engine_out_ceilings, engine_out_terms
 from .table import Conditions, ceilings_table
 from .units import WeightSpec
 
@@ -50,13 +51,14 @@ data of every jet kind (the TSFC formula, a TSFC table)."""
     engines = {
         "syn-dl": Engine("syn-dl", "synthetic density lapse", "density-lapse", 70.0, 0.95,
                          flat_rate_isa_dev_c=15.0, hot_day_loss_per_c=0.008, lapse_exponent=1.1,
-                         lapse_exponent_above_tropopause=1.0, tsfc_mg_per_ns=10.5, tsfc_mach_slope=9.0),
+                         lapse_exponent_above_tropopause=1.0, tsfc_mg_per_ns=10.5, tsfc_mach_slope=9.0,
+                         mct_thrust_ratio=0.95),
         "syn-tf": Engine("syn-tf", "synthetic turbofan", "turbofan", 80.0, 0.93, throttle_ratio=1.05,
-                         tsfc_mg_per_ns=9.6, tsfc_mach_slope=10.8),
+                         tsfc_mg_per_ns=9.6, tsfc_mach_slope=10.8, mct_thrust_ratio=0.94),
         "syn-tb": Engine("syn-tb", "synthetic table", "table", 75.0, 0.95, flat_rate_isa_dev_c=15.0,
                          hot_day_loss_per_c=0.007, table_altitude_ft=_TABLE_ALT_FT, table_mach=_TABLE_MACH,
                          table_thrust_fraction=fraction, tsfc_table_altitude_ft=_TABLE_ALT_FT,
-                         tsfc_table_mach=_TABLE_MACH, tsfc_table_mg_per_ns=tsfc),
+                         tsfc_table_mach=_TABLE_MACH, tsfc_table_mg_per_ns=tsfc, mct_thrust_ratio=0.96),
     }
     variants = _synthetic_variants(
         "syn-", "synthetic", engines, rng, 6, wing_m2=(70, 110), aspect=(8, 10), oswald=(0.76, 0.84), cd0=(0.019, 0.024),
@@ -301,11 +303,19 @@ def _timed_solve(cases):
     return res, time.perf_counter() - t0
 
 
+def _timed_engine_out(cat: Catalogue, n: int) -> float:
+    best = synthetic_cases(cat, n, mach="best")
+    terms = engine_out_terms(cat, best)
+    t0 = time.perf_counter()
+    engine_out_ceilings(best, terms)
+    return time.perf_counter() - t0
+
+
 def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases: int = 100_000,
                   cruise_cases: int | None = None) -> dict:
-    """Time the workloads (jets and turboprops: fixed Mach and best speed; the demo grid; the cruise
-    solvers on ``cruise_cases``, by default --cases up to CRUISE_CASES) and compare vectorised with
-    scalar answers on each fleet; returns the figures."""
+    """Time the workloads (jets and turboprops: fixed Mach and best speed; one engine out; the demo
+    grid; the cruise solvers on ``cruise_cases``, by default --cases up to CRUISE_CASES) and compare
+    vectorised with scalar answers on each fleet; returns the figures."""
     cat, props = synthetic_fleet(), synthetic_turboprop_fleet()
     solve_ceilings(synthetic_cases(cat, 2_000))  # warm-up: imports, first allocations
     solve_ceilings(synthetic_cases(props, 2_000))
@@ -316,6 +326,9 @@ def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases:
     prop_fixed = synthetic_cases(props, cases)
     prop_res, prop_fixed_s = _timed_solve(prop_fixed)
     prop_best_s = _timed_solve(synthetic_cases(props, best_cases, mach="best"))[1]
+
+    # One engine out: the gross and net ceilings of the best-speed cases (two best-speed solves each).
+    oei_s, prop_oei_s = (_timed_engine_out(fleet, best_cases) for fleet in (cat, props))
 
     jets = _scalar_check(cat, fixed, res, scalar_cases)
     turboprops = _scalar_check(props, prop_fixed, prop_res, scalar_cases)
@@ -339,6 +352,12 @@ def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases:
         "best_speed_cases": best_cases,
         "best_speed_seconds": best_s,
         "best_speed_cases_per_s": best_cases / best_s,
+        "oei_cases": best_cases,
+        "oei_seconds": oei_s,
+        "oei_cases_per_s": best_cases / oei_s,
+        "turboprop_oei_cases": best_cases,
+        "turboprop_oei_seconds": prop_oei_s,
+        "turboprop_oei_cases_per_s": best_cases / prop_oei_s,
         "turboprop_cases": cases,
         "turboprop_seconds": prop_fixed_s,
         "turboprop_cases_per_s": cases / prop_fixed_s,

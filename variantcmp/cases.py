@@ -27,7 +27,7 @@ BEST_MACH_HIGH_DEFAULT = 0.95
 # Per-case float arrays, in SI units. NaN marks "not given in the catalogue".
 _FLOAT_FIELDS = (
     "weight_kg", "isa_dev_c", "mach", "climb_ms", "g_margin",
-    "wing_area_m2", "k", "cd0", "cl_max", "certified_m", "mmo", "vmo_ms",
+    "wing_area_m2", "k", "cd0", "cd_per_cl", "cl_max", "certified_m", "mmo", "vmo_ms",
     "sweep_deg", "thickness_ratio", "korn_factor", "cabin_m",
     "thrust_sls_n", "lapse_exponent", "lapse_exponent_above", "throttle_ratio",
     "flat_rate_isa_dev_c", "hot_day_loss_per_c", "tropopause_density_kg_m3",
@@ -48,6 +48,7 @@ class CaseSet:
     wing_area_m2: np.ndarray
     k: np.ndarray
     cd0: np.ndarray
+    cd_per_cl: np.ndarray  # c of a drag term c CL in the polar (0 but for derived sets: ClimbPhysics.drag_n)
     cl_max: np.ndarray
     certified_m: np.ndarray  # +inf: no certified ceiling given
     mmo: np.ndarray
@@ -248,7 +249,7 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
         per = {
             "weight_kg": grid[:, 0], "isa_dev_c": grid[:, 1], "climb_ms": grid[:, 2] * FPM,
             "mach": m, "g_margin": g_margin,
-            "wing_area_m2": v.wing_area_m2, "k": v.k, "cd0": v.cd0, "cl_max": v.cl_max,
+            "wing_area_m2": v.wing_area_m2, "k": v.k, "cd0": v.cd0, "cd_per_cl": 0.0, "cl_max": v.cl_max,
             "certified_m": np.inf if v.max_altitude_ft is None else v.max_altitude_ft * FT,
             "mmo": _nan(v.mmo), "vmo_ms": np.nan if v.vmo_kt is None else v.vmo_kt * KT,
             "sweep_deg": _nan(v.sweep_deg), "thickness_ratio": _nan(v.thickness_ratio),

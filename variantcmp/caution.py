@@ -11,3 +11,9 @@ CAUTION_SHORT = (
     "Screening tool only, not approved flight-planning or dispatch data: "
     "the approved flight manual and operator's procedures govern."
 )
+
+# Under every engine-out answer (the oei command, the engine-out view), beside the caution above.
+ENGINE_OUT_CAUTION = (
+    "Engine-out figures are screening figures: the approved flight manual's engine-out data and "
+    "the operator's en-route procedures govern."
+)

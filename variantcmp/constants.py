@@ -5,6 +5,7 @@ Sources: the international foot (0.3048 m, 1959 agreement), the international na
 """
 
 M_PER_FT = 0.3048
-MS_PER_KT = 1852.0 / 3600.0
+M_PER_NM = 1852.0
+MS_PER_KT = M_PER_NM / 3600.0
 MS_PER_FPM = M_PER_FT / 60.0
 KG_PER_LB = 0.45359237

@@ -33,6 +33,8 @@ ISA_DEV_RANGE_C = (-80.0, 70.0)
 MAX_CLIMB_FPM = 10000.0
 ALTITUDE_RANGE_FT = (-2000.0, 154000.0)  # model atmosphere spans -2,000 ft to about 47 km
 G_MARGIN_RANGE = (1.0, 2.5)
+TERRAIN_RANGE_FT = (-1500.0, 30000.0)  # the lowest dry land to above the highest summit (from memory)
+CLEARANCE_RANGE_FT = (0.0, 10000.0)
 
 _NUMBER = r"[+-]?(?:\d+(?:_\d+)*(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 
@@ -349,6 +351,26 @@ def format_altitude_ft(altitude_ft: float | None) -> str:
     if altitude_ft is None or not math.isfinite(altitude_ft):
         return "—"
     return f"{math.floor(round(altitude_ft, ALTITUDE_DECIMALS)):,d}"
+
+
+def parse_height_ft(text: str, option: str, limits: tuple[float, float]) -> float:
+    """A height or elevation in ft from "12000", "12,000 ft", "12000ft" or "3658m" (a bare
+    number is feet), within ``limits`` (ft)."""
+    raw = str(text).strip()
+    compact = re.sub(r"[\s,]+", "", raw).lower()
+    scale = 1.0
+    if compact.endswith("ft"):
+        compact = compact[:-2]
+    elif compact.endswith("m"):
+        compact, scale = compact[:-1], FT_PER_M
+    value = _number(compact)
+    low, high = limits
+    if value is None:
+        raise _fail(option, raw, "a height in ft such as 12000, 12,000ft or 3658m")
+    value *= scale
+    if not low <= value <= high:
+        raise _fail(option, raw, f"a height from {low:,.0f} to {high:,.0f} ft")
+    return value + 0.0
 
 
 # --- load factor --------------------------------------------------------------------

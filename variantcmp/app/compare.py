@@ -57,6 +57,9 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
                 tooltip="speed-altitude envelope of the marked rows, else of the row under the cursor"),
         Binding("w", "sweeps", "Sweeps", group=_DRAW,
                 tooltip="max altitude against weight, ISA deviation or Mach for the marked rows, else the rows shown"),
+        Binding("g", "engine_out", "Engine out", group=_DRAW,
+                tooltip="one engine inoperative: gross and net ceilings, the drift-down and its profile, a terrain "
+                "check, at these weights and days"),
         Binding("e", "export", "Export", show=False),
         Binding("o", "open", "Open", show=False),
         Binding("l", "reload", "Reload", show=False),
@@ -366,6 +369,9 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
 
     def action_cruise(self) -> None:
         self.app.switch_mode("cruise")
+
+    def action_engine_out(self) -> None:
+        self.app.switch_mode("engineout")
 
     def action_export(self) -> None:
         if self.view_df is not None:

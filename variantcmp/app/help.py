@@ -103,6 +103,7 @@ def help_renderable() -> Group:
     from .compare import CompareScreen
     from .cruise_screen import CruiseScreen
     from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
+    from .engine_out_screen import OEI_FIELDS, EngineOutScreen
     from .envelope_screen import EnvelopeScreen
     from .hotday import PlannerScreen
     from .open_dialog import OpenDialog
@@ -112,7 +113,8 @@ def help_renderable() -> Group:
     parts = [Text(CAUTION, style="bold"), Text("")]
     for title, cls in (
         ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
-        ("Planner", PlannerScreen), ("Cruise levels", CruiseScreen), ("Envelope view", EnvelopeScreen),
+        ("Planner", PlannerScreen), ("Cruise levels", CruiseScreen), ("Engine-out view", EngineOutScreen),
+        ("Envelope view", EnvelopeScreen),
         ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),
@@ -123,6 +125,7 @@ def help_renderable() -> Group:
     fields = _keys_table("Conditions (any change recomputes at once)",
                          [(f.label, f.help) for f in FIELDS])
     parts += [fields, Text("")]
+    parts += [_keys_table("Engine-out view's fields", [(f.label, f.help) for f in OEI_FIELDS]), Text("")]
     signs = [(f"{LIMIT_GLYPHS[name]} {name}", LIMIT_MEANINGS[name]) for name in LIMIT_GLYPHS]
     signs += [
         (BASELINE_MARK, "rows of the baseline variant x engine option (b); Δ columns show each other row minus "

@@ -22,6 +22,7 @@ from .cruise_screen import CruiseScreen
 from .dialogs import ExportDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
 from .help import APP_BINDINGS, HelpScreen, key_commands
+from .engine_out_screen import EngineOutScreen
 from .envelope_screen import EnvelopeScreen
 from .hotday import PlannerScreen
 from .jobs import LatestJob
@@ -47,7 +48,7 @@ class VariantCmpApp(KeyHold, App[int]):
     ENABLE_COMMAND_PALETTE = True
     # Top-level views, each keeping its own state while the user switches between them.
     MODES = {"compare": CompareScreen, "planner": PlannerScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen,
-             "cruise": CruiseScreen}
+             "cruise": CruiseScreen, "engineout": EngineOutScreen}
     DEFAULT_MODE = "compare"
     compact_rows = var(False)  # a short terminal: one-line caution (widgets.CautionBanner)
     BINDINGS = APP_BINDINGS

@@ -30,13 +30,14 @@ def add(subparsers) -> None:
         subparsers, "bench", help="time the ceiling and cruise solvers on synthetic fleet grids",
         description="Time the vectorised ceiling solver on seeded synthetic fleets of jets and of turboprops: "
                     "fixed-Mach and best-speed maximum altitudes, a scalar one-case-at-a-time reference on a "
-                    "subsample of each (also a correctness check), the demo fleet's interactive grid, and the "
-                    "heaviest weight and the warmest day for a level at a fixed Mach and at the best speed, and "
-                    "the cruise solvers (optimum altitude at a fixed Mach, MRC and LRC at a level).")
+                    "subsample of each (also a correctness check), one-engine-out gross and net ceilings of "
+                    "each, the demo fleet's interactive grid, the heaviest weight and the warmest day for a "
+                    "level at a fixed Mach and at the best speed, and the cruise solvers (optimum altitude at a "
+                    "fixed Mach, MRC and LRC at a level).")
     p.add_argument("--cases", action=options.Once, type=_positive_int, default=1_000_000,
                    help="fixed-Mach cases of each fleet (default 1,000,000)")
     p.add_argument("--best-cases", action=options.Once, type=_positive_int, default=100_000,
-                   help="best-speed cases of each fleet (default 100,000)")
+                   help="best-speed cases of each fleet, and engine-out cases (default 100,000)")
     p.add_argument("--scalar-cases", action=options.Once, type=_positive_int, default=2_000,
                    help="cases of each fleet solved one by one by the scalar reference (default 2,000)")
     p.add_argument("--cruise-cases", action=options.Once, type=_positive_int, default=None,
@@ -57,11 +58,15 @@ def run(args) -> int:
         ("jets: fixed Mach (thrust 300 ft/min, buffet 1.3 g, stall, certified)", f["cases"], f["seconds"],
          f["cases_per_s"]),
         ("jets: best speed", f["best_speed_cases"], f["best_speed_seconds"], f["best_speed_cases_per_s"]),
+        ("jets: one engine out (gross + net ceilings, best speed)", f["oei_cases"], f["oei_seconds"],
+         f["oei_cases_per_s"]),
         ("turboprops: fixed Mach", f["turboprop_cases"], f["turboprop_seconds"], f["turboprop_cases_per_s"]),
         ("turboprops: best speed", f["turboprop_best_cases"], f["turboprop_best_seconds"],
          f["turboprop_best_cases_per_s"]),
         ("jets: scalar reference (floats, math, brentq per case)", f["scalar_cases"],
          f["scalar_cases"] / f["scalar_cases_per_s"], f["scalar_cases_per_s"]),
+        ("turboprops: one engine out", f["turboprop_oei_cases"], f["turboprop_oei_seconds"],
+         f["turboprop_oei_cases_per_s"]),
         ("turboprops: scalar reference", f["turboprop_scalar_cases"],
          f["turboprop_scalar_cases"] / f["turboprop_scalar_cases_per_s"], f["turboprop_scalar_cases_per_s"]),
         ("demo fleet interactive grid (9 weights x 7 days x 3 climbs)", f["grid_cases"], f["grid_ms"] / 1000,

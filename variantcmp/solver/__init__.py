@@ -19,18 +19,22 @@ The package, one concern per module, each importing only those above it:
   :mod:`~variantcmp.solver.corner`, :mod:`~variantcmp.solver.best_speed`: the best-speed search's
   stages (coarse grid; the thrust ceiling's best speed; the crossing of thrust and buffet or
   stall at a coffin corner; the combined maximum altitude and the checks);
-- :mod:`~variantcmp.solver.parallel`: :func:`solve_ceilings`, chunks and processes;
+- :mod:`~variantcmp.solver.parallel`: :func:`solve_ceilings`, chunks and processes (:func:`map_chunks`);
 - :mod:`~variantcmp.solver.fuel_flow`: fuel flow and specific range in level flight
   (:class:`~variantcmp.solver.fuel_flow.CruisePhysics`, one entry per kind of fuel data in
   ``FUEL_MODELS``), chunks sorted by kind;
 - :mod:`~variantcmp.solver.cruise`, :mod:`~variantcmp.solver.cruise_speed`,
   :mod:`~variantcmp.solver.step_climb`: the cruise answers' stages (optimum altitude and the best
-  level of a scheme; MRC and LRC at a level; step climbs).
+  level of a scheme; MRC and LRC at a level; step climbs);
 - the inverse questions at a target level: :mod:`~variantcmp.solver.level` (what the level allows
   whatever the weight or the day), :mod:`~variantcmp.solver.speed_search` (the best speed at a
   fixed level), :mod:`~variantcmp.solver.heaviest` (:func:`solve_heaviest`: the heaviest weight),
   :mod:`~variantcmp.solver.hottest` (:func:`solve_hottest`: the warmest day), on
-  :mod:`~variantcmp.solver.answers` (per-case records, chunks).
+  :mod:`~variantcmp.solver.answers` (per-case records, chunks);
+- one engine inoperative, from the pieces above: :mod:`~variantcmp.solver.engine_out` (the derived
+  case sets, the gross and net ceilings), :mod:`~variantcmp.solver.gradient` (the speed window and
+  the best climb gradient at an altitude), :mod:`~variantcmp.solver.gradient_ceiling` (the
+  engine-out ceilings' own search), :mod:`~variantcmp.solver.driftdown` (the drift-down paths).
 
 This module gives the names the rest of the package uses.
 """

@@ -23,6 +23,10 @@ and allocate thousands of chunk-sized temporaries, and glibc gives the top of it
 system whenever enough is free, so each page came back with a fault (about 10,000 a chunk; 600
 with the setting). If a chunk fails, the job is solved again in the calling process, where the
 error shows with its cause. numpy threads were measured and gained nothing here.
+
+:func:`map_chunks` is that machinery for any chunk solver that returns :class:`Ceilings` (one or
+several per chunk): :func:`solve_ceilings` is one, the engine-out ceilings
+(:func:`variantcmp.solver.engine_out.engine_out_ceilings`) another.
 """
 
 from __future__ import annotations
@@ -92,13 +96,32 @@ def solve_ceilings(cases: CaseSet, chunk: int | None = None, processes: int | No
         # A best-speed case is some fifteen fixed-Mach solves: weigh the work, not the count.
         work = n + (BEST_SPEED_WORK - 1) * n_best
         processes = min(MAX_WORKERS, os.cpu_count() or 1) if work >= PARALLEL_MIN_CASES else 1
+    return map_chunks(cases, lambda part: (solve_chunk(part),), 1, chunk, processes)[0]
+
+
+def map_chunks(cases: CaseSet, solve, outputs: int, chunk: int, processes: int) -> list[Ceilings]:
+    """``solve(part)`` (a tuple of ``outputs`` :class:`Ceilings` for the chunk ``part``) over the
+    chunks of :func:`chunk_bounds`, in ``processes`` processes (:func:`in_processes`), put
+    together: one :class:`Ceilings` per output for all the cases."""
+    n = len(cases)
+    if n == 0:
+        return [Ceilings.allocate(0) for _ in range(outputs)]
     bounds = chunk_bounds(n, chunk)
     processes = max(1, min(processes, len(bounds)))
     if processes > 1 and sys.platform.startswith("linux"):
-        solved = _solve_in_processes(cases, bounds, processes)
-        if solved is not None:
-            return solved
-    return Ceilings.concat([solve_chunk(cases.take(slice(a, b))) for a, b in bounds])
+        out = _Outputs(Ceilings.allocate(n, shared_array) for _ in range(outputs))
+        if in_processes(bounds, processes, out, lambda part: solve(cases.take(part))):
+            return list(out)
+    parts = [solve(cases.take(slice(a, b))) for a, b in bounds]
+    return [Ceilings.concat([p[k] for p in parts]) for k in range(outputs)]
+
+
+class _Outputs(tuple):
+    """Several :class:`Ceilings` filled chunk by chunk together (the ``out`` of :func:`in_processes`)."""
+
+    def put(self, part, results) -> None:
+        for target, result in zip(self, results):
+            target.put(part, result)
 
 
 def chunk_bounds(n: int, chunk: int) -> list[tuple[int, int]]:
@@ -117,12 +140,6 @@ def shared_array(n: int, dtype) -> np.ndarray:
     """An array on anonymous shared memory: what a forked child writes there, the parent sees."""
     dtype = np.dtype(dtype)
     return np.frombuffer(mmap.mmap(-1, max(1, n * dtype.itemsize)), dtype=dtype, count=n)
-
-
-def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | None:
-    """:func:`in_processes` for the ceilings; None if a chunk failed."""
-    out = Ceilings.allocate(len(cases), shared_array)
-    return out if in_processes(bounds, processes, out, lambda part: solve_chunk(cases.take(part))) else None
 
 
 def in_processes(bounds, processes: int, out, solve) -> bool:

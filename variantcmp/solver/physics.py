@@ -4,7 +4,10 @@
 a pressure altitude and a Mach per case (or a row of altitudes per case):
 
 - ``available_thrust_n``: the engines' thrust after lapse and flat rating;
-- ``drag_n``: q S (CD0 + K CL^2 + CDw), q S = (gamma/2) p M^2 S, with the Korn/Lock wave drag;
+- ``drag_n``: q S (CD0 + c CL + K CL^2 + CDw), q S = (gamma/2) p M^2 S, with the Korn/Lock wave
+  drag; the term c CL (``CaseSet.cd_per_cl``, zero in a catalogue's cases) is a drag of c times
+  the weight at 1 g, which is how a derived set asks for a climb gradient c instead of zero;
+- ``climb_gradient``: the steady flight-path gradient (F - D) / W;
 - ``climb_rate_ms``: dh_p/dt = (F - D) V / W x (T_ISA/T) x f (the total-energy equation at
   constant Mach, :func:`variantcmp.aero.energy_share_factor`), and ``excess``, that rate less
   the case's required residual climb.
@@ -248,7 +251,7 @@ class ClimbPhysics:
             new._groups()
         for name in self._DERIVED:
             setattr(new, name, getattr(self, name)[index])
-        new.has_wave = self.has_wave
+        new.has_wave, new.has_linear = self.has_wave, self.has_linear
         new._terms = None
         # The parent's Mach terms, taken along when the subset is asked for the same speeds.
         new._parent_terms = None if self._terms is None else (self._terms[1], index)
@@ -283,6 +286,7 @@ class ClimbPhysics:
         self.thrust_n /= static
         self.m_crit0, self.m_crit_slope = korn_coefficients(cs.thickness_ratio, cs.sweep_deg, cs.korn_factor)
         self.has_wave = bool(np.isfinite(self.m_crit0).any())
+        self.has_linear = bool(np.any(cs.cd_per_cl != 0.0))
         # Density lapse above the tropopause: the exponent's change there, and ln(rho_11/rho0).
         above = cs.lapse_exponent_above
         self.lapse_change = np.where(np.isnan(above), 0.0, above - cs.lapse_exponent)
@@ -337,6 +341,8 @@ class ClimbPhysics:
         cd = cl * cl
         cd *= col(cs.k)
         cd += col(cs.cd0)
+        if self.has_linear:
+            cd += col(cs.cd_per_cl) * cl
         if self.has_wave:
             cd += lock_wave_drag(m, col(self.m_crit0) - col(self.m_crit_slope) * cl)
         return q_s * cd
@@ -346,14 +352,30 @@ class ClimbPhysics:
         return self._thrust(Point(self, altitude_m, mach))
 
     def drag_n(self, altitude_m, mach=None):
-        """Drag (N) in level flight at 1 g: q S (CD0 + K CL^2 + CDw), CL = W / (q S) (Anderson,
-        *Aircraft Performance and Design*, eq. 2.47 polar; Korn/Lock wave drag, :mod:`variantcmp.aero`)."""
+        """Drag (N) in level flight at 1 g: q S (CD0 + c CL + K CL^2 + CDw), CL = W / (q S) (Anderson,
+        *Aircraft Performance and Design*, eq. 2.47 polar; Korn/Lock wave drag, :mod:`variantcmp.aero`).
+
+        c = ``cases.cd_per_cl`` (zero for a catalogue's cases): q S c CL = c W, a drag of c times the
+        weight at any speed and altitude, so that F - D = 0 with it is (F - D0) / W = c without it.
+        It must not be negative: screens that leave drag terms out to bound the climb rate from
+        above (:func:`variantcmp.solver.thrust_ceiling.climbs_above`) rely on every term adding drag.
+        """
         return self._drag(Point(self, altitude_m, mach))
 
     def drag_at_pressure_n(self, pressure_pa, mach=None):
         """:meth:`drag_n` at a static pressure (Pa; per case, or rows per case) instead of an
         altitude: no atmosphere is evaluated (the cruise solvers search in pressure)."""
         return self._drag(PressurePoint(self, pressure_pa, mach))
+
+    def climb_gradient(self, altitude_m, mach=None):
+        """Steady flight-path gradient sin(gamma) = (F - D) / W at 1 g (the steady climb of Anderson,
+        *Aircraft Performance and Design*, ch. 5: no acceleration along the path); negative in a
+        descent. Same shapes as :meth:`climb_rate_ms`."""
+        at = Point(self, altitude_m, mach)
+        gradient = self._thrust(at)
+        gradient -= self._drag(at)
+        gradient /= at.col(self.w_n)
+        return gradient
 
     def level_drag_n(self, q_s, mach, weight_n):
         """Drag (N) in level flight at 1 g at other weights than the cases' own, from q S (N) at

@@ -88,13 +88,19 @@ def case_notes(cases, res, climb_fpm, mtow_kg, floor_kg) -> list[str]:
             parts.append("no limit binds below the model top")
         if res.co_limit[i] >= 0 and res.limit[i] >= 0:
             parts.append(f"{s.LIMITS[res.limit[i]]} and {s.LIMITS[res.co_limit[i]]} bind together")
-        if cases.over_mtow[i]:
-            parts.append("above MTOW")
-        elif cases.weight_kg[i] < floor_kg[i]:
-            parts.append(f"below the empty weight ({floor_kg[i]:,.0f} kg, {100.0 * floor_kg[i] / mtow_kg[i]:.0f} % of MTOW): "
-                         "check the weight")
+        parts += weight_note(cases, i, mtow_kg, floor_kg)
         notes.append("; ".join(parts))
     return notes
+
+
+def weight_note(cases, i, mtow_kg, floor_kg) -> list[str]:
+    """Case ``i``'s weight flagged in words: above MTOW, or below the empty weight (none else)."""
+    if cases.over_mtow[i]:
+        return ["above MTOW"]
+    if cases.weight_kg[i] < floor_kg[i]:
+        return [f"below the empty weight ({floor_kg[i]:,.0f} kg, {100.0 * floor_kg[i] / mtow_kg[i]:.0f} % of MTOW): "
+                "check the weight"]
+    return []
 
 
 def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
