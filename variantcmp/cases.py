@@ -98,6 +98,14 @@ class CaseSet:
     def with_mach(self, mach) -> "CaseSet":
         return dataclasses.replace(self, mach=np.broadcast_to(np.asarray(mach, dtype=float), self.mach.shape).copy())
 
+    def with_isa_dev(self, isa_dev_c) -> "CaseSet":
+        """The same cases on other days: the ISA deviation (deg C, one per case or one for all) and
+        every field :func:`build_cases` derives from it (the tropopause density an engine's lapse
+        sees), so that the result is the case set ``build_cases`` gives for those days."""
+        dev = np.broadcast_to(np.asarray(isa_dev_c, dtype=float), self.isa_dev_c.shape).copy()
+        return dataclasses.replace(self, isa_dev_c=dev, tropopause_density_kg_m3=lapse_tropopause_density_kg_m3(
+            dev, ~np.isnan(self.flat_rate_isa_dev_c)))
+
 
 def per_case_fields() -> tuple[str, ...]:
     return _FLOAT_FIELDS + _INT_FIELDS + ("over_mtow",)
@@ -147,6 +155,14 @@ class CaseIndex:
     mach_request: np.ndarray  # the Mach asked for (NaN for best speed)
 
 
+def lapse_tropopause_density_kg_m3(isa_dev_c, flat_rated) -> np.ndarray:
+    """Density at the tropopause (11 km) that an engine's density lapse sees on a day, kg/m3: the
+    ISA pressure there over R (216.65 K + the deviation) (ISO 2533). A flat-rated engine's lapse
+    sees ISA density (see :class:`variantcmp.solver.ClimbPhysics`), so its deviation counts as 0."""
+    dev = np.where(flat_rated, 0.0, np.asarray(isa_dev_c, dtype=float))
+    return LAYER_BASE_P_PA[1] / (R_AIR * (LAYER_BASE_T_K[1] + dev))
+
+
 def _nan(value) -> float:
     return np.nan if value is None else float(value)
 
@@ -180,7 +196,6 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
     variant_order = list(variants)
     engine_order = list(engines)
     dev = np.asarray(isa_devs_c, dtype=float)
-    # Tropopause density on each day: p at 11 km, T = 216.65 K + deviation.
     for vid, eid in pairs:
         v, e = variants[vid], engines[eid]
         weights = np.asarray(weights_kg_per_variant(v), dtype=float)
@@ -221,9 +236,7 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
             "lapse_exponent_above": _nan(e.lapse_exponent_above_tropopause),
             "throttle_ratio": e.throttle_ratio,
             "flat_rate_isa_dev_c": _nan(e.flat_rate_isa_dev_c), "hot_day_loss_per_c": e.hot_day_loss_per_c,
-            # Flat-rated engines see ISA density in their lapse (see solver.ClimbPhysics).
-            "tropopause_density_kg_m3": LAYER_BASE_P_PA[1] / (
-                R_AIR * (LAYER_BASE_T_K[1] + (0.0 if e.flat_rate_isa_dev_c is not None else grid[:, 1]))),
+            "tropopause_density_kg_m3": lapse_tropopause_density_kg_m3(grid[:, 1], e.flat_rate_isa_dev_c is not None),
             "floor_m": floor_m, "top_m": top_m, "mach_low": m_low, "mach_high": m_high,
             "variant_index": variant_order.index(vid), "engine_index": engine_order.index(eid),
             "model_code": MODEL_CODES[e.model], "table_id": table_ids.get(eid, -1),
