@@ -6,10 +6,11 @@ from variantcmp.cli import main
 
 
 def test_bench_small_run_agrees_with_scalar_reference(capsys):
-    assert main(["bench", "--cases", "3000", "--best-cases", "200", "--scalar-cases", "150", "--format", "json"]) == 0
+    assert main(["bench", "--cases", "3000", "--best-cases", "200", "--scalar-cases", "150", "--spread-samples", "10",
+                 "--format", "json"]) == 0
     figures = json.loads(capsys.readouterr().out)
     for key in ("cases", "seconds", "cases_per_s", "best_speed_cases_per_s", "scalar_cases_per_s", "speedup",
-                "max_abs_diff_ft", "grid_ms", "peak_rss_mb"):
+                "max_abs_diff_ft", "grid_ms", "spread_demo_s", "peak_rss_mb"):
         assert key in figures
     assert figures["cases"] == 3000
     # Independent scalar method (floats, math, brentq): agreement within 1 ft is the target.
@@ -18,7 +19,7 @@ def test_bench_small_run_agrees_with_scalar_reference(capsys):
 
 
 def test_bench_table_output(capsys):
-    assert main(["bench", "--cases", "500", "--best-cases", "50", "--scalar-cases", "20"]) == 0
+    assert main(["bench", "--cases", "500", "--best-cases", "50", "--scalar-cases", "20", "--spread-samples", "10"]) == 0
     out = capsys.readouterr().out
     assert "scalar" in out and "speed-up" in out and "Caution" in out
 
