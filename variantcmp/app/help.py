@@ -105,6 +105,7 @@ def help_renderable() -> Group:
     from .envelope_screen import EnvelopeScreen
     from .hotday import HotDayScreen
     from .open_dialog import OpenDialog
+    from .screening_screen import ScreeningScreen
     from .sweep_screen import SweepScreen
     from .variant_info import VariantScreen
 
@@ -112,6 +113,7 @@ def help_renderable() -> Group:
     for title, cls in (
         ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
         ("Hot-day check", HotDayScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
+        ("Screening view", ScreeningScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),
         ("Export dialog", ExportDialog), ("Overwrite?", ConfirmDialog),

@@ -1,0 +1,206 @@
+"""The screening view: every engine option of each variant against a baseline option over the
+weight x ISA grid, one matrix per option, sortable, the baseline picked with a key.
+
+The ceilings of the grid are solved once per catalogue and conditions (in a worker); a new
+baseline or sort order is a polars join and a redraw on the UI thread (no solver call).
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from functools import partial
+from time import perf_counter
+
+import polars as pl
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import ProgressBar, Static
+
+from variantcmp.table import ceilings_table
+from variantcmp.table.screening import baseline_candidates, compare_options, screening_grid, screening_summary
+from variantcmp.units import OptionError, format_isa_dev
+
+from .jobs import LatestJob
+from .keys import HoldsKeys, focus_now
+from .screening_view import SORTS, block, legend, sorted_options
+from .widgets import CautionBanner, FittingFooter
+
+
+def grid_ceilings(catalogue, conditions) -> tuple[pl.DataFrame | None, str | None, float]:
+    """The ceilings of the screening grid (in the worker): (table, error message, ms)."""
+    started = perf_counter()
+    try:
+        return ceilings_table(catalogue, conditions), None, (perf_counter() - started) * 1000.0
+    except OptionError as exc:
+        return None, str(exc), 0.0
+    except Exception as exc:  # the app must not die: say what went wrong in place
+        return None, f"could not compute the screening grid ({type(exc).__name__}: {exc})", 0.0
+
+
+class ScreeningScreen(HoldsKeys, Screen):
+    PICTURE_NAME = "screening"  # in the name of a saved SVG (f2)
+    BINDINGS = [
+        Binding("escape", "compare", "Back", tooltip="to the compare screen"),
+        Binding("b", "baseline(1)", "Baseline", tooltip="the next engine option as the baseline"),
+        Binding("B", "baseline(-1)", "Previous baseline", show=False),
+        Binding("s", "sort", "Sort", tooltip="options by mean, worst or best difference, share of grid points "
+                "gained, or catalogue order, in turn"),
+        Binding("r", "reverse", "Reverse sort", show=False),
+        Binding("c", "conditions", "Conditions", tooltip="to the compare screen's condition fields (a comma list "
+                "of weights or ISA deviations gives the grid)"),
+        Binding("e", "export", "Export", show=False, tooltip="the screening rows: CSV, Parquet or JSON"),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.baseline: str | None = None
+        self.sort, self.descending = 1, True  # mean difference, best first
+        self.ceilings: pl.DataFrame | None = None  # the grid's ceilings table
+        self.rows: pl.DataFrame | None = None  # the screening rows against the baseline
+        self.conditions = None  # of the grid on show
+        self.error: str | None = None
+        self._key = None  # (catalogue, grid conditions) computed or on its way
+        self._generation = 0
+        self._job = LatestJob(self, "screening")
+        self.compute_ms = 0.0
+        self.render_ms = 0.0  # the last redraw: join, summary, text, ms
+
+    def compose(self) -> ComposeResult:
+        yield CautionBanner(id="caution")
+        with Horizontal(id="screen-status-row"):
+            yield Static("", id="screen-status")
+            yield ProgressBar(total=None, show_eta=False, show_percentage=False, id="screen-busy")
+        yield Static(legend(), id="screen-legend")
+        with VerticalScroll(id="screen-body"):
+            yield Static("", id="matrix")
+        yield FittingFooter()
+
+    def on_mount(self) -> None:
+        self.app.results_signal.subscribe(self, lambda _: self.update_view())
+        self.update_view()
+        focus_now(self.query_one(VerticalScroll))
+
+    def on_screen_resume(self) -> None:
+        if self.is_mounted:
+            self.update_view()
+
+    # --- compute ---------------------------------------------------------------------
+
+    def update_view(self) -> None:
+        """Solve the grid when the catalogue or the conditions changed, else just redraw."""
+        app = self.app
+        if app.catalogue is None or app.conditions is None:
+            self.show_message("No catalogue loaded: open one on the compare screen (esc, then o).")
+            return
+        grid = replace(screening_grid(app.conditions), engines=(), target_fl_ft=None)
+        key = (id(app.catalogue), grid)
+        if key == self._key:
+            if self.ceilings is not None and self.adopt_baseline():
+                self.render_matrix()
+            return
+        self._key = key
+        self._generation += 1
+        self.query_one("#screen-busy", ProgressBar).set_class(True, "-shown")
+        self.set_status("solving the grid …")
+        self._job.request(partial(grid_ceilings, app.catalogue, grid),
+                          partial(self._deliver, self._generation, app.catalogue, grid))
+
+    def _deliver(self, generation: int, catalogue, grid, outcome) -> None:
+        if generation != self._generation or not self.is_attached:
+            return
+        frame, error, ms = outcome
+        self.query_one("#screen-busy", ProgressBar).set_class(False, "-shown")
+        if error is not None:
+            self._key = None
+            self.show_message(f"✗ {error}")
+            return
+        self.ceilings, self.conditions, self.compute_ms = frame, grid, ms
+        self.adopt_baseline()
+        self.render_matrix()
+
+    def adopt_baseline(self) -> bool:
+        """Take the compare screen's pinned engine option as the baseline (once, when it hands one
+        over), else keep the one on show, else the first candidate; whether it changed."""
+        candidates, before = self.candidates(), self.baseline
+        handed, self.app.screening_baseline = self.app.screening_baseline, None
+        if handed in candidates:
+            self.baseline = handed
+        elif self.baseline not in candidates:
+            self.baseline = candidates[0] if candidates else None
+        return self.baseline != before
+
+    def candidates(self) -> list[str]:
+        return baseline_candidates(self.app.catalogue, self.conditions.variants) if self.conditions else []
+
+    # --- draw ------------------------------------------------------------------------
+
+    def render_matrix(self) -> None:
+        """Join the grid's ceilings against the baseline, sort the options, draw them."""
+        if self.ceilings is None:
+            return
+        started = perf_counter()
+        if self.baseline is None:
+            self.show_message("No variant offers two engine options: nothing to compare.")
+            return
+        self.rows = compare_options(self.ceilings, self.baseline)
+        summary = screening_summary(self.rows)
+        options = sorted_options(self.rows, summary, self.sort, self.descending)
+        by_pct = not all(w.unit == "kg" for w in self.conditions.weights)
+        text = Text()
+        for option in options:
+            text.append_text(block(option, by_pct, colour=not self.app.no_color))
+            text.append("\n")
+        self.query_one("#matrix", Static).update(text)
+        self.render_ms = (perf_counter() - started) * 1000.0
+        _, words, _ = SORTS[self.sort]
+        order = "" if SORTS[self.sort][0] is None and not self.descending else (" ▼" if self.descending else " ▲")
+        c = self.conditions
+        speed = "cruise Mach" if c.mach == "cruise" else "best Mach" if c.mach == "best" else f"M{c.mach:.2f}"
+        weights = [w.value for w in c.weights]
+        unit = "%MTOW" if by_pct else "kg"
+        self.set_status(f"◆ {self.baseline} baseline (b/B: {len(self.candidates())}) · {len(options)} options · "
+                        f"by {words}{order} · solved {self.compute_ms:.0f} ms, drawn {self.render_ms:.0f} ms · "
+                        f"{min(weights):g}-{max(weights):g} {unit} x {format_isa_dev(min(c.isa_devs_c))} to "
+                        f"{format_isa_dev(max(c.isa_devs_c))} · {speed}, climb {c.climb_fpm[0]:g} ft/min")
+
+    def show_message(self, text: str) -> None:
+        self.query_one("#matrix", Static).update(text)
+        self.set_status(text)
+
+    def set_status(self, text: str) -> None:
+        self.query_one("#screen-status", Static).update(Text(text, no_wrap=True, overflow="ellipsis"))
+
+    # --- actions ---------------------------------------------------------------------
+
+    def action_compare(self) -> None:
+        self.app.switch_mode("compare")
+
+    def action_conditions(self) -> None:
+        self.app.switch_mode("compare")
+        focus = getattr(self.app.screen, "action_focus_conditions", None)
+        if focus is not None:
+            focus()
+
+    def action_baseline(self, step: int) -> None:
+        candidates = self.candidates()
+        if not candidates or self.ceilings is None:
+            return
+        at = candidates.index(self.baseline) if self.baseline in candidates else -step
+        self.baseline = candidates[(at + step) % len(candidates)]
+        self.render_matrix()
+
+    def action_sort(self) -> None:
+        self.sort = (self.sort + 1) % len(SORTS)
+        self.descending = SORTS[self.sort][2]
+        self.render_matrix()
+
+    def action_reverse(self) -> None:
+        self.descending = not self.descending
+        self.render_matrix()
+
+    def action_export(self) -> None:
+        if self.rows is not None:
+            self.app.export_table(self.rows, f"variantcmp-screening-{self.baseline}")
