@@ -240,3 +240,32 @@ def test_mach_sweep_peaks_at_the_best_speed(fleet):
     assert peak <= best_ft + 20.0
     assert peak >= best_ft - 150.0  # a 41-point grid lands within a few hundred ft of the optimum
     assert set(sw.frame["limit"].drop_nulls()) <= {"thrust", "buffet", "stall", "certified", "cabin", "none"}
+
+
+def test_a_top_on_the_certified_ceiling_is_that_ceiling_exactly(demo):
+    # One rounding rule for flight levels everywhere (the tool's contract, no external source): a
+    # case that `ceilings` gives as FL410 at 41,000 ft certified must not be FL409 (40,999 ft) in
+    # the envelope, whose top is found by bisection.
+    from variantcmp.envelope import EnvelopeCase, compute_envelopes
+    from variantcmp.table import Conditions, ceilings_table
+    from variantcmp.units import WeightSpec, flight_level_number, format_flight_level
+
+    weight = 0.8 * demo.variants["v70"].mtow_kg
+    env = compute_envelopes(demo, [EnvelopeCase("v70", "brannick-74", weight, 0.0, 300.0)])
+    top = env.summary.row(0, named=True)
+    row = ceilings_table(demo, Conditions(weights=(WeightSpec(weight, "kg"),), mach="best", variants=("v70",),
+                                          engines=("brannick-74",))).row(0, named=True)
+    assert row["limit"] == top["top_limit"] == "certified"
+    assert top["top_ft"] == row["max_altitude_ft"] == 41_000.0
+    assert top["top_flight_level"] == row["flight_level"] == 410
+    assert format_flight_level(40_999.999) == "FL410" and int(flight_level_number(40_999.99)) == 409
+
+
+def test_sweep_series_are_labelled_as_people_write_them(demo):
+    from variantcmp.sweeps import sweep
+    from variantcmp.table import Conditions
+
+    result = sweep(demo, Conditions(isa_devs_c=(0.0, 15.0), climb_fpm=(0.0, 300.0), variants=("v88",)), "weight", 5)
+    labels = set(result.frame["series"])
+    assert "v88/ossel-78 ISA+15 300 ft/min" in labels and "v88/ossel-78 ISA 0 ft/min" in labels
+    assert not any("+0.0" in label or ".0fpm" in label for label in labels)

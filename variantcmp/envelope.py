@@ -38,7 +38,7 @@ from .atmosphere import G0, MODEL_TOP_M, isa_state, pressure_altitude_m, speed_o
 from .cases import FT, KT, build_cases
 from .sweeps import DEFAULT_ISA_RANGE_C, DEFAULT_LOW_WEIGHT_PCT_MTOW, SWEEP_COLUMNS, SWEEP_OVER, Sweep, sweep
 from .table import Conditions, check_selection, selected_pairs
-from .units import OptionError
+from .units import OptionError, flight_level_number
 
 __all__ = [  # the envelopes, and the sweeps' names (from variantcmp.sweeps) for the callers of this module
     "BOUNDARIES", "BOUNDARY_LIMIT", "EXTRA_LINES", "MAX_ENVELOPE_CASES", "Envelope", "EnvelopeCase",
@@ -73,6 +73,7 @@ ROOT_ITERATIONS = 30  # bisection in Mach: 0.93 / 2^30, about 1e-9
 # The excess climb rate is flat at its peak: a Mach error of 1e-4 changes it by ~1e-6 m/s.
 THRUST_PEAK_ITERATIONS = 14
 TOP_TOL_M = 0.005  # bisection in altitude down to 5 mm
+EXACT_LIMIT_M = 0.05  # a top this close to the certified or cabin ceiling is that ceiling
 DISPLAY_LEVELS = 100
 REFINE_LEVELS = 8  # extra levels in each grid interval where the band's binding boundary changes
 TOP_LEVELS = 16  # extra levels in the last 8 % below the top, where the band closes
@@ -395,7 +396,7 @@ def compute_envelopes(catalogue, specs: list[EnvelopeCase], mach="cruise") -> En
         "variant": [specs[i].variant for i in idx],
         "engine": [specs[i].engine for i in idx],
         "altitude_ft": alt_ft,
-        "flight_level": np.floor(alt_ft / 100.0),
+        "flight_level": flight_level_number(alt_ft),
         "open": first["open"],
     }
     for name in list(BOUNDARIES) + list(EXTRA_LINES):
@@ -420,13 +421,20 @@ def _summary(cs, specs, top_m, marked_m) -> pl.DataFrame:
     t_isa, p, _ = isa_state(h_top)
     a = speed_of_sound_ms(t_isa + cs.isa_dev_c)
     _, _, cabin, _ = s.closed_form_ceilings_m(cs, cs.mach)
+    # A top on the certified or cabin ceiling is that ceiling, exactly (the bisection stops a few
+    # millimetres short): the same number and flight level as the ceilings answer gives.
+    on_certified = np.abs(top_m - cs.certified_m) < EXACT_LIMIT_M
+    on_cabin = ~on_certified & (np.abs(top_m - cabin) < EXACT_LIMIT_M)
+    top_m = np.where(on_certified, cs.certified_m, np.where(on_cabin, cabin, top_m))
+    for fixed in (cs.certified_m, cabin):
+        marked_m = np.where(np.abs(marked_m - fixed) < EXACT_LIMIT_M, fixed, marked_m)
     limits = []
     for i in range(n):  # names only: the numbers are computed above, vectorised
         if not finite[i]:
             limits.append(None)
-        elif abs(top_m[i] - cs.certified_m[i]) < 0.05:
+        elif on_certified[i]:
             limits.append("certified")
-        elif abs(top_m[i] - cabin[i]) < 0.05:
+        elif on_cabin[i]:
             limits.append("cabin")
         else:
             lo, hi = BOUNDARY_LIMIT.get(at["band_low_by"][i]), BOUNDARY_LIMIT.get(at["band_high_by"][i])
@@ -463,14 +471,14 @@ def _summary(cs, specs, top_m, marked_m) -> pl.DataFrame:
         "climb_fpm": [float(c.climb_fpm) for c in specs],
         "g_margin": cs.g_margin,
         "top_ft": ft(top_m),
-        "top_flight_level": np.floor(ft(top_m) / 100.0),
+        "top_flight_level": flight_level_number(ft(top_m)),
         "top_mach": top_mach,
         "top_tas_kt": top_mach * a / KT,
         "top_cas_kt": mach_to_cas(top_mach, p) / KT,
         "top_limit": pl.Series(limits, dtype=pl.String),
         "marked_mach": cs.mach,
         "marked_top_ft": ft(marked_m),
-        "marked_flight_level": np.floor(ft(marked_m) / 100.0),
+        "marked_flight_level": flight_level_number(ft(marked_m)),
         "marked_limit": pl.Series(marked_limit, dtype=pl.String),
         "vmo_mmo_crossover_ft": ft(crossover),
         "certified_ft": ft(cs.certified_m),

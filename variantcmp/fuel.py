@@ -19,7 +19,7 @@ def tsfc_kg_per_ns(mach, temperature_k, tsfc_mg_per_ns, tsfc_mach_slope=0.0):
     """Thrust-specific fuel consumption c = (a + b M) sqrt(theta), theta = T / 288.15 K, in
     kg/(N s) from a and b in mg/(N s).
 
-    Source: the TSFC form of Mattingly, Heiser & Pratt, *Aircraft Engine Design*, 2nd ed., AIAA
+    Source: the TSFC form of Mattingly et al., *Aircraft Engine Design*, 2nd ed., AIAA
     2002, ch. 3 (installed TSFC of a high-bypass turbofan; from memory).
     """
     a = np.asarray(tsfc_mg_per_ns, dtype=float)

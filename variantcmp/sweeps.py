@@ -16,7 +16,7 @@ import polars as pl
 from . import solver as s
 from .cases import FPM, FT, build_cases
 from .table import Conditions, ceilings_table, check_selection, selected_pairs
-from .units import OptionError, WeightSpec
+from .units import OptionError, WeightSpec, flight_level_number, format_isa_dev
 
 SWEEP_OVER = {"weight": "weight_kg", "isa": "isa_dev_c", "mach": "mach"}
 SWEEP_COLUMNS = ("series", "variant", "engine", "weight_kg", "isa_dev_c", "climb_fpm", "mach",
@@ -37,14 +37,15 @@ class Sweep:
 
 
 def _series_labels(frame: pl.DataFrame, over: str, conditions: Conditions) -> pl.DataFrame:
+    """A label per series as people write it: "v88/ossel-78 42.9t ISA+15 300 ft/min"."""
     parts = [pl.col("variant"), pl.lit("/"), pl.col("engine")]
     if over != "weight" and len(conditions.weights) > 1:
-        parts += [pl.lit(" "), (pl.col("weight_kg") / 1000).round(1).cast(pl.String), pl.lit("t")]
+        parts += [pl.lit(" "), (pl.col("weight_kg") / 1000).round(1).map_elements(lambda t: f"{t:g}t",
+                                                                                   return_dtype=pl.String)]
     if over != "isa" and len(conditions.isa_devs_c) > 1:
-        parts += [pl.lit(" ISA"), pl.when(pl.col("isa_dev_c") >= 0).then(pl.lit("+")).otherwise(pl.lit("")),
-                  pl.col("isa_dev_c").cast(pl.String)]
+        parts += [pl.lit(" "), pl.col("isa_dev_c").map_elements(format_isa_dev, return_dtype=pl.String)]
     if len(conditions.climb_fpm) > 1:
-        parts += [pl.lit(" "), pl.col("climb_fpm").cast(pl.String), pl.lit("fpm")]
+        parts += [pl.lit(" "), pl.col("climb_fpm").map_elements(lambda c: f"{c:g} ft/min", return_dtype=pl.String)]
     return frame.with_columns(series=pl.concat_str(parts))
 
 
@@ -124,7 +125,7 @@ def _mach_sweep(catalogue, conditions, pairs, frac, value_range) -> pl.DataFrame
         "climb_fpm": rep.climb_ms / FPM,
         "mach": rep.mach,
         "max_altitude_ft": np.where(has, max_ft, np.nan),
-        "flight_level": np.where(has, np.floor(np.where(has, max_ft, 0.0) / 100.0), np.nan),
+        "flight_level": np.where(has, flight_level_number(np.where(has, max_ft, 0.0)), np.nan),
         "limit": pl.Series(limit.tolist(), dtype=pl.String),
         "note": notes.tolist(),
     }, nan_to_null=True).with_columns(pl.col("flight_level").cast(pl.Int64),

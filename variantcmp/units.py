@@ -309,11 +309,25 @@ def parse_flight_level(text: str, option: str = "--target") -> float:
     return altitude_ft + 0.0
 
 
+#: Altitudes are first rounded to this many decimals of a foot (the export precision), then
+#: rounded down: the one rule for feet and flight levels everywhere, so that 40,999.999 ft
+#: (a ceiling solved to a hundredth of a foot) is FL410 and 41,000 ft like the exported value.
+ALTITUDE_DECIMALS = 2
+
+
+def flight_level_number(altitude_ft):
+    """Flight level of pressure altitudes in ft (scalar or array): hundreds of ft, rounded down
+    after rounding to ALTITUDE_DECIMALS (NaN stays NaN)."""
+    import numpy as np
+
+    return np.floor(np.round(np.asarray(altitude_ft, dtype=float), ALTITUDE_DECIMALS) / 100.0)
+
+
 def format_flight_level(altitude_ft: float | None) -> str:
-    """37120 -> "FL371" (floor of ft/100, three digits); None/nan -> "—"."""
+    """37120 -> "FL371" (see :func:`flight_level_number`, three digits); None/nan -> "—"."""
     if altitude_ft is None or not math.isfinite(altitude_ft):
         return "—"
-    level = math.floor(altitude_ft / 100.0)
+    level = int(flight_level_number(altitude_ft))
     if level < 0:
         return f"FL-{-level:03d}"
     return f"FL{level:03d}"
@@ -323,7 +337,7 @@ def format_altitude_ft(altitude_ft: float | None) -> str:
     """37120.4 -> "37,120"; None/nan -> "—". Rounded down so it never overstates a ceiling."""
     if altitude_ft is None or not math.isfinite(altitude_ft):
         return "—"
-    return f"{math.floor(altitude_ft):,d}"
+    return f"{math.floor(round(altitude_ft, ALTITUDE_DECIMALS)):,d}"
 
 
 # --- load factor --------------------------------------------------------------------

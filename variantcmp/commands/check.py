@@ -42,7 +42,7 @@ def run(args) -> int:
     if out.is_terminal:
         out.print(f"[bold green]OK[/]{status[2:]}", highlight=False, soft_wrap=True)
     else:
-        print(status)
+        print(textwrap.fill(status, out.width, break_long_words=False, break_on_hyphens=False))
     output.print_caution(stderr=False)
     return options.EXIT_OK
 

@@ -9,6 +9,7 @@ import polars as pl
 from .. import solver as s
 from ..atmosphere import MODEL_TOP_M
 from ..cases import FT, build_cases
+from ..units import flight_level_number
 from .conditions import Conditions, selected_pairs
 
 #: Columns of a ceilings table, in order (the target columns are added when a target is set).
@@ -124,7 +125,7 @@ def ceilings_frame(catalogue, conditions: Conditions, cases, index, res) -> pl.D
         "certified_ceiling_ft": feet(res.certified_m),
         "cabin_ceiling_ft": feet(res.cabin_m),
         "max_altitude_ft": max_ft,
-        "flight_level": np.where(has_alt, np.floor(np.where(has_alt, max_ft, 0.0) / 100.0), np.nan),
+        "flight_level": np.where(has_alt, flight_level_number(np.where(has_alt, max_ft, 0.0)), np.nan),
         "limit": pl.Series(limit.tolist(), dtype=pl.String),
         "note": case_notes(cases, res, climb_fpm, mtow_kg, floor_kg),
         "over_mtow": cases.over_mtow,
