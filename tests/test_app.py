@@ -27,6 +27,7 @@ from variantcmp.app.compare import CompareScreen
 from variantcmp.app import envelope_screen
 from variantcmp.app.dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
 from variantcmp.app.open_dialog import OpenDialog
+from variantcmp.app.screening_screen import ScreeningScreen
 from variantcmp.app.envelope_screen import EnvelopeScreen
 from variantcmp.app.help import HelpScreen
 from variantcmp.app.hotday import HotDayScreen
@@ -827,15 +828,17 @@ async def mash(app, pilot, keys: list[str], seed: int, stay_on) -> int:
     return strayed
 
 
-@pytest.mark.parametrize("name", ["compare", "hotday", "envelope", "sweep", "variant", "help", "open", "export"])
+@pytest.mark.parametrize("name", ["compare", "hotday", "envelope", "sweep", "screening", "variant", "help", "open",
+                                  "export"])
 def test_mashing_each_screens_keys_raises_nothing(name, tmp_path, monkeypatch: pytest.MonkeyPatch):
     monkeypatch.chdir(tmp_path)  # an export or a picture lands here, not in the project
     always_out = {"q", "f1", "question_mark", "ctrl+p", "ctrl+q", "ctrl+c"}
     screens = {  # how to get there, the screen class, keys of it that leave it
-        "compare": ([], CompareScreen, {"h", "i", "v", "w", "e", "o", "enter"}),
+        "compare": ([], CompareScreen, {"h", "i", "v", "w", "d", "e", "o", "enter"}),
         "hotday": (["h"], HotDayScreen, {"i", "e", "enter", "escape"}),
         "envelope": (["v"], EnvelopeScreen, {"escape", "c", "w"}),
         "sweep": (["w"], SweepScreen, {"escape", "c", "v"}),
+        "screening": (["d"], ScreeningScreen, {"escape", "c", "e"}),
         "variant": (["i"], VariantScreen, {"escape"}),
         "help": (["f1"], HelpScreen, {"escape", "f1", "question_mark"}),
         "open": (["o"], OpenDialog, {"escape", "enter"}),
@@ -1031,7 +1034,8 @@ def test_every_key_is_in_the_footer_or_in_help_and_the_command_palette():
             assert shown and all(key.region.right <= palette_key.region.x for key in shown)
             assert len(shown) < len(app.screen.query("FooterKey")) - 1
             for path, cls in (([], CompareScreen), (["h"], HotDayScreen), (["v"], EnvelopeScreen),
-                              (["w"], SweepScreen), (["i"], VariantScreen), (["f1"], HelpScreen)):
+                              (["w"], SweepScreen), (["d"], ScreeningScreen), (["i"], VariantScreen),
+                              (["f1"], HelpScreen)):
                 await press_settle(app, pilot, *path)
                 assert isinstance(app.screen, cls)
                 titles = " | ".join(command.title for command in key_commands(app, app.screen))
@@ -1177,8 +1181,8 @@ def test_readme_key_tables_are_true():
         if line.startswith("| `"):
             first = line.split("|")[1]
             named |= {names.get(key, key) for key in re.findall(r"`([^`]+)`", first)}
-    screens = (VariantCmpApp, CompareScreen, HotDayScreen, EnvelopeScreen, SweepScreen, VariantScreen, HelpScreen,
-               ProblemsScreen, Open, ExportDialog, ConfirmDialog)
+    screens = (VariantCmpApp, CompareScreen, HotDayScreen, EnvelopeScreen, SweepScreen, ScreeningScreen, VariantScreen,
+               HelpScreen, ProblemsScreen, Open, ExportDialog, ConfirmDialog)
     bound = {key.strip() for cls in screens for binding in cls.BINDINGS for key in binding.key.split(",")}
     textual_keys = {"ctrl+p", "enter", "tab", "shift+tab"}  # the command palette, tables and fields
     assert named - bound - textual_keys == set()

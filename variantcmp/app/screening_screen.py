@@ -67,6 +67,7 @@ class ScreeningScreen(HoldsKeys, Screen):
         self._job = LatestJob(self, "screening")
         self.compute_ms = 0.0
         self.render_ms = 0.0  # the last redraw: join, summary, text, ms
+        self.redraw_ms = 0.0  # the last redraw from its key to the screen painted, ms
 
     def compose(self) -> ComposeResult:
         yield CautionBanner(id="caution")
@@ -155,6 +156,7 @@ class ScreeningScreen(HoldsKeys, Screen):
             text.append("\n")
         self.query_one("#matrix", Static).update(text)
         self.render_ms = (perf_counter() - started) * 1000.0
+        self.call_after_refresh(self._painted, started)
         _, words, _ = SORTS[self.sort]
         order = "" if SORTS[self.sort][0] is None and not self.descending else (" ▼" if self.descending else " ▲")
         c = self.conditions
@@ -165,6 +167,9 @@ class ScreeningScreen(HoldsKeys, Screen):
                         f"by {words}{order} · solved {self.compute_ms:.0f} ms, drawn {self.render_ms:.0f} ms · "
                         f"{min(weights):g}-{max(weights):g} {unit} x {format_isa_dev(min(c.isa_devs_c))} to "
                         f"{format_isa_dev(max(c.isa_devs_c))} · {speed}, climb {c.climb_fpm[0]:g} ft/min")
+
+    def _painted(self, started: float) -> None:
+        self.redraw_ms = (perf_counter() - started) * 1000.0
 
     def show_message(self, text: str) -> None:
         self.query_one("#matrix", Static).update(text)

@@ -96,9 +96,10 @@ def block(option: Option, by_pct: bool, colour: bool = True) -> Text:
     s, rows = option.summary, option.rows
     text = Text()
     text.append(f"{s['variant']} · {s['engine']}", style="bold")
-    text.append(f" vs ◆ {s['baseline']}  Δ mean {_signed(s['mean_delta_ft'])}, worst {_signed(s['worst_delta_ft'])}, "
-                f"best {_signed(s['best_delta_ft'])} ft · gains/ties/loses {_pct(s['gains_pct'])}/{_pct(s['ties_pct'])}/"
-                f"{_pct(s['loses_pct'])} %\n")
+    text.append(f" vs ◆ {s['baseline']}\n")
+    text.append(f"  mean Δ {_signed(s['mean_delta_ft'])} ft, worst {_signed(s['worst_delta_ft'])}, best "
+                f"{_signed(s['best_delta_ft'])} · gains {_pct(s['gains_pct'])} %, ties {_pct(s['ties_pct'])} %, "
+                f"loses {_pct(s['loses_pct'])} %\n")
     days = sorted(set(rows["isa_dev_c"].to_list()))
     label = "%MTOW" if by_pct else "W t"
     text.append(f"{label:>6} " + GAP.join(f"{format_isa_dev(d):>{CELL_WIDTH}}" for d in days) + "\n", style="dim")

@@ -101,13 +101,13 @@ def with_spread(df: pl.DataFrame, spread: Spread | None, ascii: bool) -> pl.Data
 
 
 def note(spread: Spread | None, pending: bool, ascii: bool) -> str:
-    """The line above the table that says what the bars show."""
-    start, mid, end, line, _ = GLYPHS[ascii]
-    head = f"Bars {start}{line}{mid}{line}{end}: P10, P50, P90 of the maximum altitude under uncertain data"
+    """The line above the table that says what the bars show, the most needed first."""
+    start, mid, end, _, _ = GLYPHS[ascii]
+    head = f"{start} P10 {mid} P50 {end} P90 of the maximum altitude"
     sigmas = f"σ {format_variations(DEFAULT_VARY)}"
     if spread is None or spread.frame is None:
-        return f"{head} ({sigmas}): " + (f"✗ {spread.error}" if spread is not None and spread.error else "computing …")
+        return f"{head} · {sigmas} · " + (f"✗ {spread.error}" if spread is not None and spread.error else "computing …")
     ends = scale(spread.frame)
     where = "" if ends is None else f", {format_flight_level(ends[0])} to {format_flight_level(ends[1])}"
     tail = "recomputing …" if pending else f"{spread.compute_ms:.0f} ms"
-    return f"{head}{where} ({sigmas}; {spread.samples:,} samples, seed {SEED}) · {tail} · u hides"
+    return f"{head}{where} · {sigmas} · {spread.samples:,} samples, seed {SEED} · {tail} · u hides"

@@ -1,0 +1,141 @@
+"""The screening view and the P10-P90 bars driven with real keys through Textual's test pilot.
+
+What the app shows is checked against the result layer (`screening_table`, `spread_table`), the
+same code as `variantcmp screen` and `variantcmp spread`. The screening view's redraw time after
+a key press is printed (run with -s), never asserted.
+"""
+
+from __future__ import annotations
+
+import re
+import time
+
+import polars as pl
+
+from test_app import SIZE, column_index, press_settle, run, settle, table_rows
+from variantcmp.app import VariantCmpApp
+from variantcmp.app.compare import CompareScreen
+from variantcmp.app.screening_screen import ScreeningScreen
+from variantcmp.app.screening_view import TIE_MARK, hundreds
+from variantcmp.app.spread_bars import SEED, samples_for
+from variantcmp.caution import CAUTION_SHORT
+from variantcmp.catalogue import demo_catalogue_path, load_catalogue
+from variantcmp.table import Conditions
+from variantcmp.table.perturbations import DEFAULT_VARY, spread_table
+from variantcmp.table.screening import baseline_candidates, screening_grid, screening_table
+from variantcmp.units import format_flight_level
+
+
+def matrix_blocks(screen) -> dict[tuple[str, str], list[list[str]]]:
+    """The matrix as shown: per (variant, engine) title, its rows of cell texts (weights down)."""
+    text = screen.query_one("#matrix").content.plain
+    blocks, current = {}, None
+    for line in text.splitlines():
+        title = re.match(r"^(\S+) · (\S+) vs ◆ (\S+)", line)
+        if title:
+            current = blocks.setdefault((title[1], title[2]), [])
+        elif current is not None and re.match(r"^\s+\d+(\.\d)? ", line):
+            cells = line[7:]
+            current.append([cells[i:i + 6] for i in range(0, len(cells), 7)])
+    return blocks
+
+
+def expected_cell(delta_ft) -> str:
+    if delta_ft is None:
+        return "?"
+    if abs(delta_ft) < 1.0:
+        return TIE_MARK
+    n = hundreds(delta_ft)
+    return f"{n:+d}" if n else ("+0" if delta_ft > 0 else "-0")
+
+
+def test_screening_matrix_is_the_screening_table_and_follows_the_baseline_and_sort():
+    demo = load_catalogue(demo_catalogue_path())
+    grid = screening_grid(Conditions())
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(100, 40)) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "d")
+            screen = app.screen
+            assert isinstance(screen, ScreeningScreen)
+            assert screen.query_one("#caution").plain  # the caution on this view too
+            first = baseline_candidates(demo)[0]
+            assert screen.baseline == first
+            for baseline in (first, baseline_candidates(demo)[1]):
+                rows = screening_table(demo, grid, baseline)
+                blocks = matrix_blocks(screen)
+                assert set(blocks) == set(zip(rows["variant"], rows["engine"]))
+                for (variant, engine), shown in blocks.items():
+                    part = rows.filter((pl.col("variant") == variant) & (pl.col("engine") == engine))
+                    expected = [[expected_cell(d) for d in g.sort("isa_dev_c")["delta_ft"].to_list()]
+                                for _, g in part.group_by("weight_kg", maintain_order=True)]
+                    assert [[c[:4].strip() for c in r] for r in shown] == expected, (variant, engine)
+                # A new baseline is a join and a redraw, no solver call: time it from the key.
+                started = time.perf_counter()
+                await pilot.press("b")
+                await pilot.pause()
+                print(f"\nscreening redraw after b: {screen.redraw_ms:.0f} ms from the key to the screen painted "
+                      f"(join, summary and text {screen.render_ms:.1f} ms; the pilot's press and pause "
+                      f"{(time.perf_counter() - started) * 1000:.0f} ms)")
+            # Sorting by the worst difference (the next after the mean) puts the highest worst first.
+            started = time.perf_counter()
+            await pilot.press("s")
+            await pilot.pause()
+            print(f"screening redraw after s: {screen.redraw_ms:.0f} ms from the key to the screen painted "
+                  f"(join, summary and text {screen.render_ms:.1f} ms; the pilot's press and pause "
+                  f"{(time.perf_counter() - started) * 1000:.0f} ms)")
+            assert "by worst Δ ▼" in str(screen.query_one("#screen-status").content)
+            rows = screening_table(demo, grid, screen.baseline)
+            worst = rows.group_by("variant", "engine").agg(pl.col("delta_ft").min()).sort("delta_ft", descending=True)
+            assert list(matrix_blocks(screen))[0] == (worst["variant"][0], worst["engine"][0])
+            await press_settle(app, pilot, "escape")
+            assert isinstance(app.screen, CompareScreen)
+    run(body)
+
+
+def test_the_compare_screens_pinned_engine_is_the_screening_baseline():
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "down", "down", "down", "b", "d")  # v88 ossel-86
+            assert isinstance(app.screen, ScreeningScreen) and app.screen.baseline == "ossel-86"
+            assert "◆ ossel-86 baseline" in str(app.screen.query_one("#screen-status").content)
+            # A short terminal keeps a one-line caution here too.
+            await pilot.resize_terminal(80, 16)
+            await settle(app, pilot)
+            assert app.screen.query_one("#caution").plain in (CAUTION_SHORT,) or "Caution" in \
+                app.screen.query_one("#caution").plain
+    run(body)
+
+
+def test_uncertainty_bars_show_the_spread_tables_percentiles():
+    demo = load_catalogue(demo_catalogue_path())
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(120, 30)) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "u")
+            screen = app.screen
+            rows = table_rows(screen)
+            spread = spread_table(demo, Conditions(), DEFAULT_VARY, samples_for(len(rows)), SEED)
+            p10, p90 = column_index(screen, "p10"), column_index(screen, "p90")
+            bar = column_index(screen, "spread")
+            for shown, expected in zip(rows, spread.iter_rows(named=True)):
+                assert shown[p10] == format_flight_level(expected["p10_ft"])
+                assert shown[p90] == format_flight_level(expected["p90_ft"])
+                assert shown[bar].count("├") == 1 or shown[bar].count("┃") == 1
+            note = str(screen.query_one("#spread-note").content)
+            assert "P10 ┼ P50 ┤ P90" in note and f"{samples_for(len(rows)):,} samples, seed {SEED}" in note
+            # New conditions: the bars follow.
+            await press_settle(app, pilot, "c")
+            await pilot.press("ctrl+a", *"90%mtow", "enter")
+            await settle(app, pilot)
+            spread = spread_table(demo, app.conditions, DEFAULT_VARY, samples_for(len(rows)), SEED)
+            assert table_rows(screen)[0][p10] == format_flight_level(spread["p10_ft"][0])
+            await press_settle(app, pilot, "u")
+            assert "p10" not in [c.value for c in screen.query_one("#table").columns]
+    run(body)
