@@ -25,6 +25,7 @@ from variantcmp.units import OptionError, format_isa_dev
 
 from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
+from .navigation import BackToCompare
 from .screening_view import SORTS, block, legend, sorted_options
 from .widgets import CautionBanner, FittingFooter
 
@@ -40,7 +41,7 @@ def grid_ceilings(catalogue, conditions) -> tuple[pl.DataFrame | None, str | Non
         return None, f"could not compute the screening grid ({type(exc).__name__}: {exc})", 0.0
 
 
-class ScreeningScreen(HoldsKeys, Screen):
+class ScreeningScreen(BackToCompare, HoldsKeys, Screen):
     PICTURE_NAME = "screening"  # in the name of a saved SVG (f2)
     BINDINGS = [
         Binding("escape", "compare", "Back", tooltip="to the compare screen"),
@@ -179,15 +180,6 @@ class ScreeningScreen(HoldsKeys, Screen):
         self.query_one("#screen-status", Static).update(Text(text, no_wrap=True, overflow="ellipsis"))
 
     # --- actions ---------------------------------------------------------------------
-
-    def action_compare(self) -> None:
-        self.app.switch_mode("compare")
-
-    def action_conditions(self) -> None:
-        self.app.switch_mode("compare")
-        focus = getattr(self.app.screen, "action_focus_conditions", None)
-        if focus is not None:
-            focus()
 
     def action_baseline(self, step: int) -> None:
         candidates = self.candidates()
