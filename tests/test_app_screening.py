@@ -136,6 +136,11 @@ def test_uncertainty_bars_show_the_spread_tables_percentiles():
             await settle(app, pilot)
             spread = spread_table(demo, app.conditions, DEFAULT_VARY, samples_for(len(rows)), SEED)
             assert table_rows(screen)[0][p10] == format_flight_level(spread["p10_ft"][0])
+            # Sorting reaches the spread's columns; hiding them goes back to catalogue order.
+            await press_settle(app, pilot, *["s"] * 4)  # Max FL, Max ft, Limit, P10
+            assert screen.sort_key == "p10"
+            p10s = [r[p10] for r in table_rows(screen)]
+            assert p10s == sorted(p10s, reverse=True)
             await press_settle(app, pilot, "u")
-            assert "p10" not in [c.value for c in screen.query_one("#table").columns]
+            assert "p10" not in [c.value for c in screen.query_one("#table").columns] and screen.sort_key is None
     run(body)

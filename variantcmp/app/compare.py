@@ -18,7 +18,7 @@ from .form import FIELDS
 from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
 from .results import Results, export_frame
-from .spread_bars import Spread, compute_spread, with_spread
+from .spread_bars import SPREAD_KEYS, Spread, compute_spread, with_spread
 from .spread_bars import note as spread_note
 from .view import (
     BASE_ROW, BASELINE_MARK, BELOW_EMPTY_MARK, COLUMNS_BY_KEY, IS_BASE, MAX_MARKED, NONE, OVER_MTOW_MARK, ROW_KEY,
@@ -348,7 +348,8 @@ class CompareScreen(HoldsKeys, Screen):
         results = self.app.results
         if results is None or results.df is None:
             return
-        cycle: list[str | None] = [c.key for c in visible_columns(results.df)]
+        shown = self.view_df if self.view_df is not None else results.df  # with the P10-P90 columns when on
+        cycle: list[str | None] = [c.key for c in visible_columns(shown)]
         start = cycle.index("fl")
         cycle = cycle[start:] + cycle[:start] + [None]  # ends with catalogue order
         position = cycle.index(self.sort_key) if self.sort_key in cycle else len(cycle) - 1
@@ -431,6 +432,8 @@ class CompareScreen(HoldsKeys, Screen):
         self.show_spread = not self.show_spread
         if self.show_spread:
             self.request_spread()
+        elif self.sort_key in SPREAD_KEYS:
+            self.sort_key = None  # its column is gone: back to catalogue order
         self.render_table()
 
     def action_screening(self) -> None:

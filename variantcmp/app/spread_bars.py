@@ -26,6 +26,7 @@ BAR_WIDTH = 16
 SCALE_STEP_FT = 500.0  # the shared scale's ends, rounded out to this
 KEYS = ["variant", "engine", "weight_kg", "isa_dev_c", "climb_fpm"]
 COLUMNS = ("p10_ft", "p50_ft", "p90_ft")
+SPREAD_KEYS = ("p10", "spread", "p90")  # the compare table's columns of the spread (view.COLUMNS)
 # P10, P50, P90 and the line between (fine, ASCII).
 GLYPHS = {False: ("├", "┼", "┤", "─", "┃"), True: ("[", "|", "]", "-", "|")}
 
