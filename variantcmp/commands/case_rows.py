@@ -11,8 +11,8 @@ from variantcmp.units import format_flight_level, format_isa_dev, format_mach
 from .output import Column, TextTable, float_or_none
 
 
-def signed_ft(value) -> str:
-    """A signed whole number of feet ("+208", "-104", "0"), "—" for none."""
+def signed(value) -> str:
+    """A signed whole number (ft, kg): "+208", "-104", "0"; "—" for none."""
     value = float_or_none(value)
     if value is None:
         return "—"

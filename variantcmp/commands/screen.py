@@ -6,7 +6,7 @@ from __future__ import annotations
 from variantcmp.units import format_isa_dev
 
 from . import options, output
-from .case_rows import case_columns, case_table, flight_levels, note_column, percent, signed_ft
+from .case_rows import case_columns, case_table, flight_levels, note_column, percent, signed
 from .ceilings import NOT_AVAILABLE, caption
 from .output import Column, TextTable
 
@@ -66,7 +66,7 @@ def run(args) -> int:
                 Column("delta", "Δ\nft", bold=True), Column("changed", "", "left")]
     cells["base_fl"] = flight_levels(frame["baseline_ft"].to_list())
     cells["base_limit"] = [lim or "—" for lim in frame["baseline_limit"].to_list()]
-    cells["delta"] = [signed_ft(d) for d in frame["delta_ft"].to_list()]
+    cells["delta"] = [signed(d) for d in frame["delta_ft"].to_list()]
     cells["changed"] = [LIMIT_CHANGED if c else "" for c in frame["limit_changed"].to_list()]
     note_column(columns, cells, frame["note"].to_list())
     words = (f"Δ = option − baseline ({baseline}) at the same variant, weight, ISA deviation and climb; "
@@ -89,9 +89,9 @@ def print_summary(summary, conditions, baseline: str) -> None:
     cells = {
         "variant": get("variant").to_list(), "engine": get("engine").to_list(),
         "points": [f"{p}" for p in get("points").to_list()],
-        "mean": [signed_ft(v) for v in get("mean_delta_ft").to_list()],
-        "worst": [signed_ft(v) for v in get("worst_delta_ft").to_list()],
-        "best": [signed_ft(v) for v in get("best_delta_ft").to_list()],
+        "mean": [signed(v) for v in get("mean_delta_ft").to_list()],
+        "worst": [signed(v) for v in get("worst_delta_ft").to_list()],
+        "best": [signed(v) for v in get("best_delta_ft").to_list()],
         "gains": [percent(v) for v in get("gains_pct").to_list()],
         "ties": [percent(v) for v in get("ties_pct").to_list()],
         "loses": [percent(v) for v in get("loses_pct").to_list()],

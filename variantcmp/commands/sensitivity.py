@@ -4,7 +4,7 @@ thrust and weight and per +1 deg C of ISA deviation."""
 from __future__ import annotations
 
 from . import options, output
-from .case_rows import case_columns, case_table, note_column, signed_ft
+from .case_rows import case_columns, case_table, note_column, signed
 from .ceilings import caption
 from .output import Column
 
@@ -54,7 +54,7 @@ def run(args) -> int:
     columns, cells = case_columns(conditions, frame)
     for key, header in COLUMNS:
         columns.append(Column(key, header))
-        cells[key] = [signed_ft(v) for v in frame[key].to_list()]
+        cells[key] = [signed(v) for v in frame[key].to_list()]
     note_column(columns, cells, frame["note"].to_list())
     output.print_table(case_table(frame, columns, cells), f"{catalogue.title}: sensitivity of the maximum altitude",
                        [caption(conditions, climb_labels), LEGEND], DROP_FOR_WIDTH)
