@@ -144,3 +144,18 @@ def test_uncertainty_bars_show_the_spread_tables_percentiles():
             await press_settle(app, pilot, "u")
             assert "p10" not in [c.value for c in screen.query_one("#table").columns] and screen.sort_key is None
     run(body)
+
+
+def test_without_colour_the_matrix_reads_by_its_signs(monkeypatch):
+    # NO_COLOR (no-color.org): no colour at all; the signs, numbers and shades carry the meaning.
+    monkeypatch.setenv("NO_COLOR", "1")
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(app, pilot)
+            await press_settle(app, pilot, "d")
+            text = app.screen.query_one("#matrix").content
+            assert not [span for span in text.spans if "green" in str(span.style) or "red" in str(span.style)]
+            assert re.search(r"[+-]\d+[·░▒▓█]", text.plain)
+    run(body)
