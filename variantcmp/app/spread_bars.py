@@ -26,7 +26,8 @@ BAR_WIDTH = 16
 SCALE_STEP_FT = 500.0  # the shared scale's ends, rounded out to this
 KEYS = ["variant", "engine", "weight_kg", "isa_dev_c", "climb_fpm"]
 COLUMNS = ("p10_ft", "p50_ft", "p90_ft")
-SPREAD_KEYS = ("p10", "spread", "p90")  # the compare table's columns of the spread (view.COLUMNS)
+SPREAD_KEYS = ("p10", "spread", "p90")
+PENDING = "…"  # a bar on its way  # the compare table's columns of the spread (view.COLUMNS)
 # P10, P50, P90 and the line between (fine, ASCII).
 GLYPHS = {False: ("├", "┼", "┤", "─", "┃"), True: ("[", "|", "]", "-", "|")}
 
@@ -90,9 +91,11 @@ def bar(p10, p50, p90, low: float, high: float, width: int = BAR_WIDTH, ascii: b
 
 def with_spread(df: pl.DataFrame, spread: Spread | None, ascii: bool) -> pl.DataFrame:
     """``df`` with each row's P10, P50 and P90 (ft) and its bar (``SPREAD_BAR``) where the spread
-    is of the same table; the order of ``df`` is kept."""
+    is of the same table; the order of ``df`` is kept. Without one (on its way) the columns are
+    there, empty, so that the table does not change shape while it is computed."""
     if spread is None or spread.frame is None:
-        return df
+        return df.with_columns(*(pl.lit(None, dtype=pl.Float64).alias(c) for c in COLUMNS),
+                               pl.lit(PENDING, dtype=pl.String).alias(SPREAD_BAR))
     frame = spread.frame.select(*KEYS, *COLUMNS)
     ends = scale(frame)
     bars = [NONE] * frame.height if ends is None else [

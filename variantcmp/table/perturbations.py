@@ -31,8 +31,8 @@ QUANTILES = {"p10_ft": 0.10, "p50_ft": 0.50, "p90_ft": 0.90}
 #: Above this share of samples without a maximum altitude the note says so (a P10 or more is then
 #: among them, so null).
 NO_ANSWER_NOTE_SHARE = 0.10
-#: Most cases x samples solved in one spread (memory: some 300 bytes a case at once).
-MAX_SAMPLED_CASES = 3_000_000
+#: Most cases x samples solved in one spread (memory: some 300 bytes a case at once, 600 MB).
+MAX_SAMPLED_CASES = 2_000_000
 #: The case columns both tables keep from the ceilings table, in order.
 CASE_COLUMNS = ("variant", "engine", "weight_kg", "weight_pct_mtow", "isa_dev_c", "mach", "climb_fpm",
                 "max_altitude_ft", "flight_level", "limit")
