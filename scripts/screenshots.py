@@ -37,6 +37,14 @@ async def type_into(pilot, selector: str, text: str) -> None:
     await pilot.press("enter")
 
 
+async def move_to(pilot, variant: str, engine: str) -> None:
+    """Put the compare screen's cursor on a variant x engine option's (first) row."""
+    table = pilot.app.screen.query_one("#table")
+    cells = [[str(getattr(c, "plain", c)).strip() for c in table.get_row_at(i)[:2]] for i in range(table.row_count)]
+    table.move_cursor(row=cells.index([variant, engine]))
+    await pilot.pause()
+
+
 BROKEN = (
     '[catalogue]\ntitle = "Broken example"\n\n[[engine]]\nid = "e1"\nmodel = "density-lapse"\n'
     'static_thrust_kn = -5\n\n[[variant]]\nid = "a1"\nengine_options = ["e9"]\n'
@@ -123,12 +131,13 @@ async def _shoot(size: tuple[int, int], out: Path, written: list[Path]) -> None:
         await pilot.press("escape", "M")  # back to the compare screen, marks cleared
         await settle(app, pilot)
 
-        # Hot-day look-up.
+        # The planner: the heaviest weight on an ISA+15 day and the warmest day at 90 %MTOW for FL370.
         await pilot.press("h")
         await settle(app, pilot)
-        await type_into(pilot, "#lookup-target", "FL350")
+        await type_into(pilot, "#lookup-weight", "90%mtow")
+        await type_into(pilot, "#lookup-target", "FL370")
         await settle(app, pilot)
-        save(app, "hot-day")
+        save(app, "planner")
         await pilot.press("escape")
         await settle(app, pilot)
 
@@ -146,7 +155,26 @@ async def _shoot(size: tuple[int, int], out: Path, written: list[Path]) -> None:
         await pilot.press("i")
         await settle(app, pilot)
         save(app, "variant")
+        # The turboprop: power, propeller efficiency and the speed of its best ceiling.
+        while app.screen.variant_id != "t72":
+            await pilot.press("n")
+        await settle(app, pilot)
+        save(app, "variant-turboprop")
         await pilot.press("escape")
+
+        # The stretched turboprop's two engine options overlaid on a warm day: it flies highest
+        # slowly, where the buffet margin meets the thrust ceiling.
+        await type_into(pilot, "#field-isa", "15")
+        await settle(app, pilot)
+        for engine in ("tavish-20", "tavish-24"):
+            await move_to(pilot, "t78", engine)
+            await pilot.press("m")
+        await pilot.press("v")
+        await settle(app, pilot)
+        save(app, "envelope-turboprop")
+        await pilot.press("escape", "M")
+        await type_into(pilot, "#field-isa", "0")
+        await settle(app, pilot)
 
         await pilot.press("f1")
         await settle(app, pilot)

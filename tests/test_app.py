@@ -30,7 +30,7 @@ from variantcmp.app.open_dialog import OpenDialog
 from variantcmp.app.screening_screen import ScreeningScreen
 from variantcmp.app.envelope_screen import EnvelopeScreen
 from variantcmp.app.help import HelpScreen
-from variantcmp.app.hotday import HotDayScreen
+from variantcmp.app.hotday import PlannerScreen
 from variantcmp.app.sweep_screen import SweepScreen
 from variantcmp.app.variant_info import VariantScreen
 from variantcmp.app.view import BASELINE_MARK, ROW_KEY
@@ -41,6 +41,8 @@ from variantcmp.table import Conditions, ceilings_table
 from variantcmp.units import WeightSpec, format_altitude_ft, format_flight_level
 
 SIZE = (80, 24)
+#: Variant x engine option pairs of the bundled demo fleet (rows per condition).
+DEMO_PAIRS = sum(len(v.engine_options) for v in load_catalogue(demo_catalogue_path()).variants.values())
 
 BROKEN = """\
 [catalogue]
@@ -185,7 +187,7 @@ def test_each_condition_recomputes_like_the_cli():
             await replace_text(pilot, "0,20")
             await settle(app, pilot)
             assert app.conditions.mach == "best"
-            assert len(table_rows(app.screen)) == 8 * 2 * 2
+            assert len(table_rows(app.screen)) == DEMO_PAIRS * 2 * 2
             shown_matches_reference(app.screen, app.conditions)
     run(body)
 
@@ -299,26 +301,55 @@ def test_baseline_shows_differences():
     run(body)
 
 
-def test_hot_day_lookup():
+def test_planner_gives_the_heaviest_weight_and_the_warmest_day_of_the_commands():
     async def body():
+        from variantcmp.table import heaviest_table, hottest_table
+
         app = VariantCmpApp(None)
         async with app.run_test(size=SIZE) as pilot:
             await settle(app, pilot)
             await press_settle(app, pilot, "h")
             screen = app.screen
-            assert isinstance(screen, HotDayScreen)
+            assert isinstance(screen, PlannerScreen)
             assert screen.query_one("#lookup-isa").value == "ISA+15"
             assert app.focused is screen.query_one("#lookup-target")  # no target yet: type one
+            assert "Type a target flight level" in shown_text(screen.query_one("#lookup-summary"))
             await press_settle(app, pilot, *"FL360", "enter")
-            expected = reference(Conditions(isa_devs_c=(15.0,), target_fl_ft=36000.0))
+            demo = load_catalogue(demo_catalogue_path())
+            cond = Conditions(isa_devs_c=(15.0,), target_fl_ft=36000.0)
+            expected = reference(cond)
+            heavy = {(r["variant"], r["engine"]): r for r in heaviest_table(demo, cond, (36000.0,)).iter_rows(named=True)}
+            hot = {(r["variant"], r["engine"]): r for r in hottest_table(demo, cond, (36000.0,)).iter_rows(named=True)}
             rows = table_rows(screen, "#lookup-table")
             assert len(rows) == expected.height
             by_pair = {(r["variant"], r["engine"]): r for r in expected.iter_rows(named=True)}
+            keys = [c.value for c in screen.query_one("#lookup-table").columns]
+            at = {k: keys.index(k) for k in ("makes", "fl", "heaviest", "heaviest_pct", "weight_limit", "warmest")}
             for shown in rows:
-                row = by_pair[(shown[0], shown[1])]
-                assert shown[2].endswith("yes") == bool(row["reaches_target"])
-                assert shown[4] == format_flight_level(row["max_altitude_ft"])
-                assert shown[5].endswith(row["limit"])
+                pair = (shown[0], shown[1])
+                row, h, d = by_pair[pair], heavy[pair], hot[pair]
+                assert shown[at["makes"]].endswith("yes") == bool(row["reaches_target"])
+                assert shown[at["fl"]] == format_flight_level(row["max_altitude_ft"])
+                if h["max_weight_kg"] is None:
+                    assert shown[at["heaviest"]] == "—" and h["reason"] in shown[at["weight_limit"]].replace(" ", "_")
+                else:
+                    assert shown[at["heaviest"]] == f"{math.floor(round(h['max_weight_kg'], 1) / 100) / 10:,.1f}"
+                    assert shown[at["weight_limit"]].endswith(h["limit"])
+                if d["max_isa_dev_c"] is None:  # why not, in its place
+                    assert shown[at["warmest"]].startswith("✗") or shown[at["warmest"]].startswith("○"), shown
+                    assert d["reason"] is not None
+                else:
+                    assert shown[at["warmest"]] == f"ISA{math.floor(round(d['max_isa_dev_c'], 2) * 10) / 10:+.1f}"
+            # Sorted by the weight to spare, most first; s, S and r move the sort like the compare screen's.
+            def spares(rows):  # (rows without a heaviest weight sort last either way)
+                return [heavy[(r[0], r[1])]["max_weight_kg"] - by_pair[(r[0], r[1])]["weight_kg"] for r in rows
+                        if heavy[(r[0], r[1])]["max_weight_kg"] is not None]
+
+            assert spares(rows) == sorted(spares(rows), reverse=True)
+            await press_settle(app, pilot, "r")
+            assert spares(table_rows(screen, "#lookup-table")) == sorted(spares(table_rows(screen, "#lookup-table")))
+            await press_settle(app, pilot, "s")
+            assert screen.sort_key == "weight_limit"
             made = sum(bool(r["reaches_target"]) for r in by_pair.values())
             assert shown_text(screen.query_one("#lookup-summary")).startswith(f"{made} of {expected.height} make FL360")
             screen.query_one("#lookup-weight").focus()
@@ -476,7 +507,7 @@ def test_help_lists_every_key_and_the_caution():
             assert isinstance(app.screen, HelpScreen)
             shown = shown_text(app.screen.query_one("#help-text"))
             assert " ".join(CAUTION.split()) in " ".join(shown.split())
-            for cls in (VariantCmpApp, CompareScreen, HotDayScreen, EnvelopeScreen, SweepScreen, VariantScreen,
+            for cls in (VariantCmpApp, CompareScreen, PlannerScreen, EnvelopeScreen, SweepScreen, VariantScreen,
                         ProblemsScreen, ExportDialog):
                 for binding in cls.BINDINGS:
                     assert binding.description in shown
@@ -580,7 +611,7 @@ def test_envelope_of_the_selected_row_in_a_worker_with_speed_axes(monkeypatch: p
             assert "S stall, CL max at 1 g" in text and "B buffet onset at 1.3 g" in text  # legend
             top = screen.result.summary.row(0, named=True)
             assert f"▲ top {format_flight_level(top['top_ft'])}" in text  # the top, marked and noted
-            assert "Envelope of v70/brannick-74 (row 2 of 8)" in shown_text(screen.query_one("#sketch-status"))
+            assert f"Envelope of v70/brannick-74 (row 2 of {DEMO_PAIRS})" in shown_text(screen.query_one("#sketch-status"))
             # Other speed axes and the ASCII fallback are redraws of the same computation.
             await pilot.press("x")
             assert "CAS kt" in screen.sketch.plain
@@ -702,7 +733,7 @@ def test_sweep_views_follow_the_compare_rows_and_conditions():
             print(f"\nweight sweep, 8 pairs: solver {screen.compute_ms:.0f} ms")
             assert sketch_lines(screen)[0].startswith("Max altitude vs weight")
             assert "weight t" in text and "limit along the curves: T thrust" in text and "FL" in text
-            assert "6 curves" in status and "2 more not drawn" in status  # six line styles
+            assert "6 curves" in status and f"{DEMO_PAIRS - 6} more not drawn" in status  # six line styles
             assert screen.query_one("#caution").plain == CAUTION
             # The curves at MTOW end where the compare table says.
             frame = screen.result.sweep.frame
@@ -779,7 +810,7 @@ def test_keys_typed_while_a_screen_opens_or_closes_are_not_lost():
             await settle(app, pilot)
             burst(app, "h", *"FL360")  # typed before the hot-day screen has mounted
             await settle(app, pilot)
-            assert isinstance(app.screen, HotDayScreen)
+            assert isinstance(app.screen, PlannerScreen)
             assert app.screen.query_one("#lookup-target").value == "FL360"
             # Leave the field and the screen, then mark two rows, all at once.
             burst(app, "escape", "escape", "m", "down", "m")
@@ -828,14 +859,14 @@ async def mash(app, pilot, keys: list[str], seed: int, stay_on) -> int:
     return strayed
 
 
-@pytest.mark.parametrize("name", ["compare", "hotday", "envelope", "sweep", "screening", "variant", "help", "open",
+@pytest.mark.parametrize("name", ["compare", "planner", "envelope", "sweep", "screening", "variant", "help", "open",
                                   "export"])
 def test_mashing_each_screens_keys_raises_nothing(name, tmp_path, monkeypatch: pytest.MonkeyPatch):
     monkeypatch.chdir(tmp_path)  # an export or a picture lands here, not in the project
     always_out = {"q", "f1", "question_mark", "ctrl+p", "ctrl+q", "ctrl+c"}
     screens = {  # how to get there, the screen class, keys of it that leave it
         "compare": ([], CompareScreen, {"h", "i", "v", "w", "d", "e", "o", "enter"}),
-        "hotday": (["h"], HotDayScreen, {"i", "e", "enter", "escape"}),
+        "planner": (["h"], PlannerScreen, {"i", "e", "enter", "escape"}),
         "envelope": (["v"], EnvelopeScreen, {"escape", "c", "w"}),
         "sweep": (["w"], SweepScreen, {"escape", "c", "v"}),
         "screening": (["d"], ScreeningScreen, {"escape", "c", "e"}),
@@ -949,8 +980,8 @@ def test_baseline_compares_each_row_at_the_same_weight_and_day():
         weight = "weight_kg" if match == "kg" else "weight_pct_mtow"
         same = [b for b in expected if (b["variant"], b["engine"]) == base_pair
                 and abs(b[weight] - row[weight]) < 1e-6 and b["isa_dev_c"] == row["isa_dev_c"]]
-        if not same:
-            return None
+        if not same or row["max_altitude_ft"] is None or same[0]["max_altitude_ft"] is None:
+            return None  # (a turboprop at 40 t, far above its MTOW, has no maximum altitude)
         return math.floor(row["max_altitude_ft"]) - math.floor(same[0]["max_altitude_ft"])
 
     async def body():
@@ -1033,7 +1064,7 @@ def test_every_key_is_in_the_footer_or_in_help_and_the_command_palette():
             shown = [key for key in app.screen.query("FooterKey") if key.display and key is not palette_key]
             assert shown and all(key.region.right <= palette_key.region.x for key in shown)
             assert len(shown) < len(app.screen.query("FooterKey")) - 1
-            for path, cls in (([], CompareScreen), (["h"], HotDayScreen), (["v"], EnvelopeScreen),
+            for path, cls in (([], CompareScreen), (["h"], PlannerScreen), (["v"], EnvelopeScreen),
                               (["w"], SweepScreen), (["d"], ScreeningScreen), (["i"], VariantScreen),
                               (["f1"], HelpScreen)):
                 await press_settle(app, pilot, *path)
@@ -1086,7 +1117,7 @@ def test_a_filter_matching_nothing_says_so_and_keys_on_the_empty_table_are_harml
             await press_settle(app, pilot, "slash", "z", "escape", "up", "down", "enter", "b", "m", "v")
             assert isinstance(app.screen, CompareScreen)
             status = shown_text(app.screen.query_one("#status"))
-            assert "0/8 rows" in status and "no row matches “z”" in status
+            assert f"0/{DEMO_PAIRS} rows" in status and "no row matches “z”" in status
     run(body)
 
 
@@ -1181,8 +1212,8 @@ def test_readme_key_tables_are_true():
         if line.startswith("| `"):
             first = line.split("|")[1]
             named |= {names.get(key, key) for key in re.findall(r"`([^`]+)`", first)}
-    screens = (VariantCmpApp, CompareScreen, HotDayScreen, EnvelopeScreen, SweepScreen, ScreeningScreen, VariantScreen,
-               HelpScreen, ProblemsScreen, Open, ExportDialog, ConfirmDialog)
+    screens = (VariantCmpApp, CompareScreen, PlannerScreen, EnvelopeScreen, SweepScreen, ScreeningScreen,
+               VariantScreen, HelpScreen, ProblemsScreen, Open, ExportDialog, ConfirmDialog)
     bound = {key.strip() for cls in screens for binding in cls.BINDINGS for key in binding.key.split(",")}
     textual_keys = {"ctrl+p", "enter", "tab", "shift+tab"}  # the command palette, tables and fields
     assert named - bound - textual_keys == set()

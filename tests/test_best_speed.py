@@ -22,7 +22,8 @@ def test_fixed_and_best_agree_where_best_mach_is_used(demo):
 
 
 @pytest.mark.parametrize("fleet", ["demo", "survey", "slow-buffet-peak", "buffet-spike", "table-dip", "no-drag-rise",
-                                   "beyond-table-top", "close-table-columns", "turbofan-branch", "synthetic"])
+                                   "beyond-table-top", "close-table-columns", "turbofan-branch", "turboprop",
+                                   "synthetic"])
 def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path):
     # Definition of the best speed (the speed at which the maximum altitude is highest), checked
     # by brute force, no external source: fixed-Mach solves at 161 speeds over each case's range,
@@ -42,6 +43,10 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
     # them on the far side of the table Mach next to the best grid speed. Then turbofans with
     # throttle ratios 0.88-1.02 and no flat rating, on hot days: their lapse changes branch
     # (theta0 = TR) inside the speed range, and the thrust ceiling may peak in a corner there.
+    # Then propeller engines (thrust = eta P / V): the thrust ceiling peaks at low Mach near the
+    # minimum-power speed, against a buffet margin rising with Mach; one efficiency table with a
+    # dip and a sharp rise between its Machs (kinks where the ceiling falls and rises again), one
+    # smooth table, one constant efficiency without buffet data.
     import dataclasses
 
     from variantcmp import bench, solver
@@ -116,6 +121,25 @@ def test_best_speed_is_the_highest_over_a_dense_mach_scan(demo, fleet, tmp_path)
             engine_options=[e["id"] for e in engines], mmo=0.84, sweep_deg=27.0, thickness_ratio=0.11, korn_factor=0.94)])
         cases, _ = build_cases(cat, [("a1", e["id"]) for e in engines], lambda v: np.linspace(0.5, 1.1, 10) * v.mtow_kg,
                                np.arange(-20.0, 50.0, 5.0), [0.0, 300.0], "best", 1.3)
+    elif fleet == "turboprop":
+        props = [{"id": "p1", "model": "turboprop", "shaft_power_kw": 2050.0, "lapse_exponent": 0.8,
+                  "flat_rate_isa_dev_c": 18.0, "hot_day_loss_per_c": 0.008,
+                  "propeller_efficiency_mach": [0.15, 0.25, 0.35, 0.45, 0.55, 0.65],
+                  "propeller_efficiency_table": [0.62, 0.78, 0.85, 0.86, 0.82, 0.70]},
+                 {"id": "p2", "model": "turboprop", "shaft_power_kw": 2400.0, "lapse_exponent": 0.75,
+                  "propeller_efficiency_mach": [0.2, 0.3, 0.33, 0.36, 0.4, 0.5, 0.6],
+                  "propeller_efficiency_table": [0.70, 0.84, 0.76, 0.88, 0.86, 0.83, 0.72]},
+                 {"id": "p3", "model": "turboprop", "shaft_power_kw": 1900.0, "lapse_exponent": 1.0,
+                  "propeller_efficiency": 0.82}]
+        airframe = dict(wing_area_m2=61.0, aspect_ratio=12.0, oswald_e=0.8, cd0=0.026, cl_max=1.6, mtow_kg=23_000.0,
+                        cruise_mach=0.42, mmo=0.55, vmo_kt=250.0)
+        cat = write_catalogue(tmp_path / "c.toml", props, [
+            variant_spec(id="t1", engine_options=["p1", "p2"], buffet_mach=[0.25, 0.35, 0.45, 0.55, 0.60],
+                         buffet_cl=[1.35, 1.28, 1.18, 1.00, 0.88], **airframe),
+            variant_spec(id="t2", engine_options=["p2", "p3"], **airframe)])
+        cases, _ = build_cases(cat, [("t1", "p1"), ("t1", "p2"), ("t2", "p2"), ("t2", "p3")],
+                               lambda v: np.linspace(0.5, 1.05, 8) * v.mtow_kg, np.arange(-15.0, 50.0, 10.0),
+                               [0.0, 300.0], "best", 1.3)
     elif fleet == "no-drag-rise":
         turbofan = engine_spec(id="e2", model="turbofan", static_thrust_kn=75.0, throttle_ratio=1.08)
         del turbofan["lapse_exponent"]
@@ -424,8 +448,12 @@ def test_each_limit_column_is_that_limits_own_best_over_speed(demo):
 
     cases = next(_best_speed_sets(demo))
     best = solver.solve_ceilings(cases, processes=1)
-    k = 161
-    speeds = cases.mach_low[:, None] + (cases.mach_high - cases.mach_low)[:, None] * np.linspace(0.0, 1.0, k)[None, :]
+    # The scan's speeds and every engine's kink Machs (thrust-table columns, propeller efficiency
+    # points) in range: a thrust ceiling can peak on one, where a scan point beside it reads lower.
+    kinks = np.array(sorted({m for e in demo.engines.values() for m in e.table_mach + e.propeller_efficiency_mach}))
+    dense = cases.mach_low[:, None] + (cases.mach_high - cases.mach_low)[:, None] * np.linspace(0.0, 1.0, 161)[None, :]
+    speeds = np.hstack([dense, np.clip(kinks[None, :], cases.mach_low[:, None], cases.mach_high[:, None])])
+    k = speeds.shape[1]
     rep = cases.take(np.repeat(np.arange(len(cases)), k))
     scan = solver.solve_ceilings(dataclasses.replace(rep, mach=speeds.ravel().copy()), processes=1)
     for column, slack_ft in (("thrust_m", 0.3), ("buffet_m", 1e-6), ("stall_m", 1e-6)):
@@ -437,3 +465,8 @@ def test_each_limit_column_is_that_limits_own_best_over_speed(demo):
         assert np.all(got[ok] <= brute[ok] + 5.0 * FT), column  # the scan's steps (a few ft) at most
     differ = np.abs(best.buffet_m - best.max_altitude_m) > 100.0
     assert differ.sum() > 10  # the columns are their own bests, not the values at the reported Mach
+    # The thrust ceiling's own speed (thrust_mach): solved there at fixed Mach, it gives the column.
+    known = np.flatnonzero(np.isfinite(best.thrust_m))
+    assert known.size > 50 and np.all(np.isnan(best.thrust_mach[np.isnan(best.thrust_m)]))
+    at = solver.solve_ceilings(dataclasses.replace(cases.take(known), mach=best.thrust_mach[known].copy()), processes=1)
+    np.testing.assert_allclose(at.thrust_m, best.thrust_m[known], rtol=0, atol=0.05 * FT)

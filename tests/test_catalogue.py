@@ -183,17 +183,23 @@ def test_regional_demo_shape():
     cat = load_catalogue(demo_catalogue_path())
     assert len(cat.variants) >= 3
     assert all(2 <= len(v.engine_options) <= 3 for v in cat.variants.values())
-    assert {e.model for e in cat.engines.values()} == {"density-lapse", "turbofan", "table"}
+    assert {e.model for e in cat.engines.values()} == {"density-lapse", "turbofan", "table", "turboprop"}
     assert all(v.has_cabin and v.has_wave_drag for v in cat.variants.values())
+    # Jets and turboprops side by side: no variant mixes them, and none warns (the turboprops
+    # cruise well below M0.7).
+    for v in cat.variants.values():
+        assert len({cat.engines[e].is_propeller for e in v.engine_options}) == 1
+    assert not cat.warnings
     # A table engine's grid must cover every pressure altitude the solver searches (from
     # -2,000 ft) and the family's Mach range up to MMO.
     for e in cat.engines.values():
         if e.model == "table":
             assert e.table_altitude_ft[0] <= -2000 and e.table_altitude_ft[-1] >= 51000
             assert e.table_mach[0] == 0 and e.table_mach[-1] >= max(v.mmo for v in cat.variants.values())
-    # File order is kept (shrink, base, stretch).
-    weights = [v.mtow_kg for v in cat.variants.values()]
-    assert weights == sorted(weights)
+    # File order is kept (shrink, base, stretch; each family).
+    for propeller in (False, True):
+        weights = [v.mtow_kg for v in cat.variants.values() if cat.engines[v.engine_options[0]].is_propeller == propeller]
+        assert len(weights) >= 2 and weights == sorted(weights)
 
 
 def test_survey_demo_shape():
@@ -241,8 +247,8 @@ def test_defaults_of_optional_engine_keys(tmp_path):
 
 def test_summary_rows():
     rows = dict(summarise(load_catalogue(demo_catalogue_path())))
-    assert rows["variants"] == "3"
-    assert rows["engines"].startswith("4:")
+    assert rows["variants"] == "5"
+    assert rows["engines"].startswith("6:") and "tavish-20 (turboprop, fuel data)" in rows["engines"]
     assert "buffet" in rows["variant v70"] and "cabin" in rows["variant v70"]
     assert "certified 39,000 ft" in rows["variant v104"]
     assert "ossel-86" in rows["variant v104"]

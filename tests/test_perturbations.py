@@ -17,7 +17,6 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from conftest import write_catalogue
-from variantcmp.cases import build_cases
 from variantcmp.solver import perturbations as pert
 from variantcmp.table import Conditions, ceilings_table
 from variantcmp.table.ceilings import cases_for

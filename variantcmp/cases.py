@@ -12,12 +12,12 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .atmosphere import G0, LAYER_BASE_P_PA, LAYER_BASE_T_K, R_AIR, isa_pressure_pa, pressure_altitude_m
+from .atmosphere import A0_MS, G0, LAYER_BASE_P_PA, LAYER_BASE_T_K, R_AIR, isa_pressure_pa, pressure_altitude_m
 from .constants import M_PER_FT, MS_PER_FPM, MS_PER_KT
-from .thrust import TableLapse
+from .thrust import PropellerEfficiency, TableLapse
 
 FT, KT, FPM = M_PER_FT, MS_PER_KT, MS_PER_FPM  # m per ft, m/s per kt, m/s per ft/min
-MODEL_CODES = {"density-lapse": 0, "turbofan": 1, "table": 2}
+MODEL_CODES = {"density-lapse": 0, "turbofan": 1, "table": 2, "turboprop": 3}
 #: Lowest pressure altitude at which ceilings are searched: -2,000 ft.
 FLOOR_M = -2000.0 * FT
 #: Speed range searched for the best speed when a variant gives no MMO (subsonic models only).
@@ -33,7 +33,7 @@ _FLOAT_FIELDS = (
     "flat_rate_isa_dev_c", "hot_day_loss_per_c", "tropopause_density_kg_m3",
     "floor_m", "top_m", "mach_low", "mach_high",
 )
-_INT_FIELDS = ("variant_index", "engine_index", "model_code", "table_id", "buffet_id")
+_INT_FIELDS = ("variant_index", "engine_index", "model_code", "table_id", "propeller_id", "buffet_id")
 
 
 @dataclass
@@ -56,7 +56,9 @@ class CaseSet:
     thickness_ratio: np.ndarray
     korn_factor: np.ndarray  # NaN: no compressibility drag
     cabin_m: np.ndarray  # cabin ceiling: where the outside pressure falls to the cabin's limit (+inf: none)
-    thrust_sls_n: np.ndarray  # all engines, at the climb/cruise rating
+    # All engines, at the climb/cruise rating. Propeller engines: the shaft power over the sea-level
+    # speed of sound, n P0 / a0 (see reference_thrust_n), so whatever scales thrust scales power alike.
+    thrust_sls_n: np.ndarray
     lapse_exponent: np.ndarray
     lapse_exponent_above: np.ndarray
     throttle_ratio: np.ndarray
@@ -71,10 +73,12 @@ class CaseSet:
     engine_index: np.ndarray
     model_code: np.ndarray
     table_id: np.ndarray
+    propeller_id: np.ndarray  # index into ``propellers`` (-1: not a propeller engine)
     buffet_id: np.ndarray
     over_mtow: np.ndarray
     # Shared tables (not per case).
     tables: list = field(default_factory=list)  # TableLapse per table engine
+    propellers: list = field(default_factory=list)  # PropellerEfficiency per propeller engine
     buffet_key: np.ndarray = field(default_factory=lambda: np.empty(0))  # mach + 10 x buffet_id
     buffet_cl: np.ndarray = field(default_factory=lambda: np.empty(0))
     buffet_low: np.ndarray = field(default_factory=lambda: np.empty(0))  # per buffet_id
@@ -86,6 +90,11 @@ class CaseSet:
     @property
     def weight_n(self) -> np.ndarray:
         return self.weight_kg * G0
+
+    @property
+    def shaft_power_w(self) -> np.ndarray:
+        """All engines' shaft power at sea level, static, ISA, at the rating (W; NaN for jets)."""
+        return np.where(self.propeller_id >= 0, self.thrust_sls_n * A0_MS, np.nan)
 
     def take(self, index) -> "CaseSet":
         """The cases at ``index`` (an integer array, a slice or a boolean mask)."""
@@ -99,12 +108,17 @@ class CaseSet:
         return dataclasses.replace(self, mach=np.broadcast_to(np.asarray(mach, dtype=float), self.mach.shape).copy())
 
     def with_isa_dev(self, isa_dev_c) -> "CaseSet":
-        """The same cases on other days: the ISA deviation (deg C, one per case or one for all) and
-        every field :func:`build_cases` derives from it (the tropopause density an engine's lapse
-        sees), so that the result is the case set ``build_cases`` gives for those days."""
+        """The same cases on other days (one deviation per case, or one for all), with what the
+        cases derive from the deviation (the tropopause density)."""
         dev = np.broadcast_to(np.asarray(isa_dev_c, dtype=float), self.isa_dev_c.shape).copy()
-        return dataclasses.replace(self, isa_dev_c=dev, tropopause_density_kg_m3=lapse_tropopause_density_kg_m3(
+        return dataclasses.replace(self, isa_dev_c=dev, tropopause_density_kg_m3=tropopause_density_kg_m3(
             dev, ~np.isnan(self.flat_rate_isa_dev_c)))
+
+
+def tropopause_density_kg_m3(isa_dev_c, flat_rated):
+    """Density at the tropopause's pressure on the day, p_11 / (R (216.65 K + dT)) (ISO 2533); a
+    flat-rated engine's lapse sees ISA there (dT = 0: see :mod:`variantcmp.solver.physics`)."""
+    return LAYER_BASE_P_PA[1] / (R_AIR * (LAYER_BASE_T_K[1] + np.where(flat_rated, 0.0, isa_dev_c)))
 
 
 def per_case_fields() -> tuple[str, ...]:
@@ -155,16 +169,17 @@ class CaseIndex:
     mach_request: np.ndarray  # the Mach asked for (NaN for best speed)
 
 
-def lapse_tropopause_density_kg_m3(isa_dev_c, flat_rated) -> np.ndarray:
-    """Density at the tropopause (11 km) that an engine's density lapse sees on a day, kg/m3: the
-    ISA pressure there over R (216.65 K + the deviation) (ISO 2533). A flat-rated engine's lapse
-    sees ISA density (see :class:`variantcmp.solver.ClimbPhysics`), so its deviation counts as 0."""
-    dev = np.where(flat_rated, 0.0, np.asarray(isa_dev_c, dtype=float))
-    return LAYER_BASE_P_PA[1] / (R_AIR * (LAYER_BASE_T_K[1] + dev))
-
-
 def _nan(value) -> float:
     return np.nan if value is None else float(value)
+
+
+def reference_thrust_n(engine_count: int, engine) -> float:
+    """The thrust the lapse fraction of :mod:`variantcmp.solver.physics` multiplies, for all engines
+    at the climb/cruise rating: a jet's static thrust; for a propeller engine the shaft power over
+    the sea-level speed of sound, n P0 / a0, the fraction then being eta (P/P0) a0 / V."""
+    if engine.is_propeller:
+        return engine_count * engine.shaft_power_kw * 1000.0 / A0_MS
+    return engine_count * engine.static_thrust_kn * 1000.0 * engine.rating_fraction
 
 
 def _narrowed(low, high, data_low, data_high):
@@ -184,6 +199,10 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
     table_engines = [e for e in engines.values() if e.model == "table"]
     table_ids = {e.id: i for i, e in enumerate(table_engines)}
     tables = [TableLapse(e.table_altitude_ft, e.table_mach, e.table_thrust_fraction) for e in table_engines]
+    propeller_engines = [e for e in engines.values() if e.is_propeller]
+    propeller_ids = {e.id: i for i, e in enumerate(propeller_engines)}
+    propellers = [PropellerEfficiency(e.propeller_efficiency, e.propeller_efficiency_mach, e.propeller_efficiency_table)
+                  for e in propeller_engines]
     buffet_variants = [v for v in variants.values() if len(v.buffet_mach) >= 2]
     buffet_ids = {v.id: i for i, v in enumerate(buffet_variants)}
     key = np.concatenate([np.asarray(v.buffet_mach) + 10.0 * i for i, v in enumerate(buffet_variants)] or [np.empty(0)])
@@ -196,6 +215,7 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
     variant_order = list(variants)
     engine_order = list(engines)
     dev = np.asarray(isa_devs_c, dtype=float)
+    # Tropopause density on each day: p at 11 km, T = 216.65 K + deviation.
     for vid, eid in pairs:
         v, e = variants[vid], engines[eid]
         weights = np.asarray(weights_kg_per_variant(v), dtype=float)
@@ -210,13 +230,15 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
         else:
             m = float(mach)
         floor_m, top_m, m_low, m_high = FLOOR_M, np.inf, BEST_MACH_LOW, (v.mmo or BEST_MACH_HIGH_DEFAULT)
-        # The best-speed search stays where the thrust table and the buffet data reach, unless
-        # that leaves no speed below MMO: it then searches the speeds it has, and what lacks data
-        # there is flagged as for a fixed Mach.
+        # The best-speed search stays where the thrust table, the propeller efficiency table and
+        # the buffet data reach, unless that leaves no speed below MMO: it then searches the speeds
+        # it has, and what lacks data there is flagged as for a fixed Mach.
         if e.model == "table":
             floor_m = max(FLOOR_M, e.table_altitude_ft[0] * FT)
             top_m = e.table_altitude_ft[-1] * FT
             m_low, m_high = _narrowed(m_low, m_high, e.table_mach[0], e.table_mach[-1])
+        if e.is_propeller:  # a constant efficiency covers every Mach
+            m_low, m_high = _narrowed(m_low, m_high, *propellers[propeller_ids[eid]].mach_range)
         if v.id in buffet_ids:
             m_low, m_high = _narrowed(m_low, m_high, v.buffet_mach[0], v.buffet_mach[-1])
         cabin_m = np.inf
@@ -231,15 +253,16 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
             "mmo": _nan(v.mmo), "vmo_ms": np.nan if v.vmo_kt is None else v.vmo_kt * KT,
             "sweep_deg": _nan(v.sweep_deg), "thickness_ratio": _nan(v.thickness_ratio),
             "korn_factor": _nan(v.korn_factor), "cabin_m": cabin_m,
-            "thrust_sls_n": v.engine_count * e.static_thrust_kn * 1000.0 * e.rating_fraction,
+            "thrust_sls_n": reference_thrust_n(v.engine_count, e),
             "lapse_exponent": e.lapse_exponent,
             "lapse_exponent_above": _nan(e.lapse_exponent_above_tropopause),
             "throttle_ratio": e.throttle_ratio,
             "flat_rate_isa_dev_c": _nan(e.flat_rate_isa_dev_c), "hot_day_loss_per_c": e.hot_day_loss_per_c,
-            "tropopause_density_kg_m3": lapse_tropopause_density_kg_m3(grid[:, 1], e.flat_rate_isa_dev_c is not None),
+            "tropopause_density_kg_m3": tropopause_density_kg_m3(grid[:, 1], e.flat_rate_isa_dev_c is not None),
             "floor_m": floor_m, "top_m": top_m, "mach_low": m_low, "mach_high": m_high,
             "variant_index": variant_order.index(vid), "engine_index": engine_order.index(eid),
             "model_code": MODEL_CODES[e.model], "table_id": table_ids.get(eid, -1),
+            "propeller_id": propeller_ids.get(eid, -1),
             "buffet_id": buffet_ids.get(vid, -1), "over_mtow": grid[:, 0] > v.mtow_kg * (1 + 1e-9),
         }
         for name, value in per.items():
@@ -250,7 +273,7 @@ def build_cases(catalogue, pairs, weights_kg_per_variant, isa_devs_c, climbs_fpm
     for name in per_case_fields():
         dtype = bool if name == "over_mtow" else (np.int64 if name in _INT_FIELDS else float)
         arrays[name] = np.concatenate(rows[name]).astype(dtype) if rows[name] else np.empty(0, dtype=dtype)
-    cases = CaseSet(**arrays, tables=tables, buffet_key=key, buffet_cl=bcl, buffet_low=blow, buffet_high=bhigh)
+    cases = CaseSet(**arrays, tables=tables, propellers=propellers, buffet_key=key, buffet_cl=bcl, buffet_low=blow, buffet_high=bhigh)
     index = CaseIndex(variant_order, engine_order,
                       np.concatenate(climb_list) if climb_list else np.empty(0),
                       np.concatenate(mach_list) if mach_list else np.empty(0))

@@ -119,15 +119,17 @@ def _buffet_branches(cs, cl_needed_at_mach1):
 
 
 def _thrust_scan_range(cs):
-    """Mach range the thrust model covers per case (a table engine stops at its grid)."""
+    """Mach range the thrust model covers per case (a table engine stops at its grid, a propeller
+    engine at its efficiency table)."""
     lo, hi = np.full(len(cs), THRUST_SCAN_LOW), np.full(len(cs), THRUST_SCAN_HIGH)
-    if cs.tables:
-        t_lo = np.array([t.mach[0] for t in cs.tables])
-        t_hi = np.array([t.mach[-1] for t in cs.tables])
-        is_table = cs.table_id >= 0
-        tid = np.where(is_table, cs.table_id, 0)
-        lo = np.where(is_table, np.maximum(lo, t_lo[tid]), lo)
-        hi = np.where(is_table, np.minimum(hi, t_hi[tid]), hi)
+    for ids, data in ((cs.table_id, cs.tables), (cs.propeller_id, cs.propellers)):
+        if data:
+            d_lo = np.array([d.mach[0] if d.mach.size else 0.0 for d in data])
+            d_hi = np.array([d.mach[-1] if d.mach.size else 1.0 for d in data])
+            has = ids >= 0
+            which = np.where(has, ids, 0)
+            lo = np.where(has, np.maximum(lo, d_lo[which]), lo)
+            hi = np.where(has, np.minimum(hi, d_hi[which]), hi)
     return lo, hi
 
 

@@ -238,6 +238,16 @@ class PropellerEfficiency:
         self.efficiency = np.asarray(efficiency, dtype=float)
 
     @property
+    def concave(self) -> bool:
+        """Whether the efficiency is concave in Mach (a constant, or slopes that never rise): then
+        eta P less the power required, convex in speed, is concave in Mach at every altitude, and
+        the thrust ceiling has one hump over speed however many points the table has."""
+        if self.constant is not None or self.mach.size < 3:
+            return True
+        slopes = np.diff(self.efficiency) / np.diff(self.mach)
+        return bool(np.all(np.diff(slopes) <= 1e-12))
+
+    @property
     def mach_range(self) -> tuple[float, float]:
         """The Mach range the efficiency is known over ((0, 1) for a constant)."""
         if self.constant is not None:

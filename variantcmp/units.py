@@ -309,6 +309,17 @@ def parse_flight_level(text: str, option: str = "--target") -> float:
     return altitude_ft + 0.0
 
 
+def parse_flight_levels(text: str, option: str = "--target") -> list[float]:
+    """A comma list of levels, each as :func:`parse_flight_level`: "FL350,FL370", "37000ft,FL390"
+    (ft, in a list without a thousands separator); duplicates dropped."""
+    items = _items(text, option, "a comma list of flight levels or altitudes, e.g. FL350,FL370 or 37000ft")
+    for before, item in zip(items, items[1:]):  # "35,000ft" splits into "35" and "000ft"
+        if re.fullmatch(r"\d{3}(ft)?", item.lower()) and re.fullmatch(r"\d{1,3}", before):
+            raise OptionError(f"{option}: {shown(text)} looks like a number with a thousands separator; commas "
+                              "separate list items: write 35000ft or FL350")
+    return _dedupe([parse_flight_level(item, option) for item in items])
+
+
 #: Altitudes are first rounded to this many decimals of a foot (the export precision), then
 #: rounded down: the one rule for feet and flight levels everywhere, so that 40,999.999 ft
 #: (a ceiling solved to a hundredth of a foot) is FL410 and 41,000 ft like the exported value.

@@ -18,6 +18,7 @@ from .form import FIELDS
 from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
 from .results import Results, export_frame
+from .sorting import SortCycle
 from .spread_bars import SPREAD_KEYS, Spread, compute_spread, with_spread
 from .spread_bars import note as spread_note
 from .view import (
@@ -33,11 +34,12 @@ _DRAW = Binding.Group("Draw")
 BUSY_DELAY_S = 0.15
 
 
-class CompareScreen(HoldsKeys, Screen):
+class CompareScreen(SortCycle, HoldsKeys, Screen):
     """Main screen. The drawing views read the app's conditions and the rows this screen hands over
     (`app.focus_key`, `app.shown_keys`, `app.marked_keys`)."""
 
     PICTURE_NAME = "compare"  # in the name of a saved SVG (f2)
+    FIRST_SORT = "fl"  # s starts the sort cycle at the maximum flight level
 
     BINDINGS = [
         Binding("c", "focus_conditions", "Conditions"),
@@ -50,7 +52,7 @@ class CompareScreen(HoldsKeys, Screen):
         Binding("B", "baseline_match", "Baseline weight", show=False,
                 tooltip="compare with the baseline at the same %MTOW or at the same kg, in turn"),
         Binding("i", "inspect", "Inspect", show=False),  # enter on a row does it too
-        Binding("h", "hot_day", "Hot day"),
+        Binding("h", "planner", "Planner", tooltip="the heaviest weight and the warmest day for a target level"),
         Binding("m", "mark", "Mark", tooltip=f"mark or unmark the row for the envelope overlay, up to {MAX_MARKED}"),
         Binding("M", "clear_marks", "Clear marks", show=False, tooltip="unmark every row"),
         Binding("v", "envelope", "Envelope", group=_DRAW,
@@ -309,13 +311,7 @@ class CompareScreen(HoldsKeys, Screen):
 
     @on(DataTable.HeaderSelected)
     def header_selected(self, event: DataTable.HeaderSelected) -> None:
-        key = event.column_key.value
-        if key == self.sort_key:
-            self.descending = not self.descending
-        else:
-            self.sort_key = key
-            self.descending = COLUMNS_BY_KEY[key].high_first
-        self.render_table()
+        self.sort_by(event.column_key.value)
 
     @on(DataTable.RowSelected)
     def row_selected(self) -> None:
@@ -344,29 +340,18 @@ class CompareScreen(HoldsKeys, Screen):
     def action_focus_table(self) -> None:
         focus_now(self.query_one(DataTable))
 
-    def _sort_step(self, step: int) -> None:
+    def sort_columns(self) -> list[Column]:
         results = self.app.results
         if results is None or results.df is None:
-            return
+            return []
         shown = self.view_df if self.view_df is not None else results.df  # with the P10-P90 columns when on
-        cycle: list[str | None] = [c.key for c in visible_columns(shown)]
-        start = cycle.index("fl")
-        cycle = cycle[start:] + cycle[:start] + [None]  # ends with catalogue order
-        position = cycle.index(self.sort_key) if self.sort_key in cycle else len(cycle) - 1
-        self.sort_key = cycle[(position + step) % len(cycle)]
-        self.descending = bool(self.sort_key and COLUMNS_BY_KEY[self.sort_key].high_first)
+        return visible_columns(shown)
+
+    def sort_column(self, key: str) -> Column:
+        return COLUMNS_BY_KEY[key]
+
+    def render_sorted(self) -> None:
         self.render_table()
-
-    def action_sort_next(self) -> None:
-        self._sort_step(1)
-
-    def action_sort_previous(self) -> None:
-        self._sort_step(-1)
-
-    def action_reverse_sort(self) -> None:
-        if self.sort_key is not None:
-            self.descending = not self.descending
-            self.render_table()
 
     def action_baseline(self) -> None:
         row = self.selected_row()
@@ -425,8 +410,8 @@ class CompareScreen(HoldsKeys, Screen):
         if row is not None:
             self.app.inspect_variant(row["variant"])
 
-    def action_hot_day(self) -> None:
-        self.app.switch_mode("hotday")
+    def action_planner(self) -> None:
+        self.app.switch_mode("planner")
 
     def action_uncertainty(self) -> None:
         self.show_spread = not self.show_spread

@@ -105,7 +105,7 @@ def help_renderable() -> Group:
     from .compare import CompareScreen
     from .dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
     from .envelope_screen import EnvelopeScreen
-    from .hotday import HotDayScreen
+    from .hotday import PlannerScreen
     from .open_dialog import OpenDialog
     from .screening_screen import ScreeningScreen
     from .sweep_screen import SweepScreen
@@ -114,7 +114,7 @@ def help_renderable() -> Group:
     parts = [Text(CAUTION, style="bold"), Text("")]
     for title, cls in (
         ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
-        ("Hot-day check", HotDayScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
+        ("Planner", PlannerScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
         ("Screening view", ScreeningScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),

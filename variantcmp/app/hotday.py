@@ -1,10 +1,12 @@
-"""Quick hot-day look-up: at this weight and deviation, who makes the target flight level?"""
+"""The planner's question screen: for a target level, the heaviest weight on the day and the warmest
+day at the weight, per variant x engine, with the limits, sortable (it grew out of the hot-day look-up)."""
 
 from __future__ import annotations
 
 from dataclasses import replace
 from functools import partial
 
+import polars as pl
 from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -14,21 +16,27 @@ from textual.widgets import DataTable, Input, Label, Static
 
 from variantcmp.units import OptionError, format_flight_level
 
+from .form import FIELDS_BY_KEY, parse_field
 from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
+from .planner_view import DEFAULT_SORT, PLANNER_BY_KEY, planner_cell, visible_planner_columns
+from .results import Results, compute_planner, export_frame
+from .sorting import SortCycle
+from .view import ROW_KEY, header, justify, sort_rows
 from .widgets import CautionBanner, FittingFooter, TextEntry
-from .form import FIELDS_BY_KEY, parse_field
-from .results import Results, compute, export_frame
-from .view import COLUMNS_BY_KEY, MAKES_IT, NONE, ROW_KEY, SHORT_OF_IT, Cell, cell, justify
 
 LOOKUP_FIELDS = ("weight", "isa", "target")
 
 
-class HotDayScreen(HoldsKeys, Screen):
-    PICTURE_NAME = "hot-day"  # in the name of a saved SVG (f2)
+class PlannerScreen(SortCycle, HoldsKeys, Screen):
+    PICTURE_NAME = "planner"  # in the name of a saved SVG (f2)
+    FIRST_SORT = "makes"
     BINDINGS = [
         Binding("escape", "compare", "Compare"),
         Binding("c", "focus_fields", "Fields"),
+        Binding("s", "sort_next", "Sort"),
+        Binding("S", "sort_previous", "Sort back", show=False),
+        Binding("r", "reverse_sort", "Reverse sort", show=False),
         Binding("i", "inspect", "Inspect"),
         Binding("e", "export", "Export"),
     ]
@@ -36,8 +44,11 @@ class HotDayScreen(HoldsKeys, Screen):
     def __init__(self) -> None:
         super().__init__()
         self.results: Results | None = None
+        self.view_df: pl.DataFrame | None = None
+        self.sort_key: str | None = DEFAULT_SORT
+        self.descending = True
         self._generation = 0
-        self._job = LatestJob(self, "hotday")
+        self._job = LatestJob(self, "planner")
 
     def compose(self) -> ComposeResult:
         texts = self.app.texts
@@ -48,13 +59,13 @@ class HotDayScreen(HoldsKeys, Screen):
         }
         yield CautionBanner(id="caution")
         with Horizontal(id="lookup-fields") as box:
-            box.border_title = "Hot-day check"
+            box.border_title = "Planner: heaviest weight and warmest day for a level"
             for key in LOOKUP_FIELDS:
                 field = FIELDS_BY_KEY[key]
                 with Horizontal(classes="field"):
                     yield Label(field.label, classes="field-label")
                     yield TextEntry(initial[key], placeholder=field.placeholder, id=f"lookup-{key}",
-                                classes="lookup", compact=True, tooltip=field.help)
+                                    classes="lookup", compact=True, tooltip=field.help)
         yield Static("", id="lookup-errors")
         yield Static("", id="lookup-summary")
         yield DataTable(id="lookup-table", cursor_type="row", zebra_stripes=True, fixed_columns=2)
@@ -96,7 +107,11 @@ class HotDayScreen(HoldsKeys, Screen):
         conditions = replace(app.conditions, weights=values["weight"], isa_devs_c=values["isa"],
                              target_fl_ft=values["target"])
         self._generation += 1
-        self._job.request(partial(compute, app.catalogue, conditions), partial(self._deliver, self._generation))
+        if conditions.target_fl_ft is None:
+            self.results = None
+            self.render_table(conditions)
+            return
+        self._job.request(partial(compute_planner, app.catalogue, conditions), partial(self._deliver, self._generation))
 
     def _deliver(self, generation: int, results: Results) -> None:
         if generation != self._generation or not self.is_attached:
@@ -107,63 +122,42 @@ class HotDayScreen(HoldsKeys, Screen):
             box.set_class(True, "-shown")
             return
         self.results = results
-        self.render_table()
+        self.render_table(results.conditions)
 
     # --- table ---------------------------------------------------------------------
 
-    def render_table(self) -> None:
-        results = self.results
-        df = results.df
-        target = results.conditions.target_fl_ft
-        if target is not None:
-            df = df.sort("margin_ft", descending=True, nulls_last=True, maintain_order=True)
-        self.view_df = df
+    def render_table(self, conditions) -> None:
         table = self.query_one(DataTable)
-        keep = None
-        if table.row_count:
-            keep = table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value
+        keep = table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value if table.row_count else None
         table.clear(columns=True)
-        several = len(results.conditions.weights) > 1 or len(results.conditions.isa_devs_c) > 1
-        level = format_flight_level(target) if target is not None else "target"
-        extra = [COLUMNS_BY_KEY["weight"], COLUMNS_BY_KEY["isa"]] if several else []
-        headers = (["Variant", "Engine", f"Makes {level}", "By ft", "Max FL", "Limit"]
-                   + [c.header for c in extra] + ["Mach", "Note"])
+        summary = self.query_one("#lookup-summary", Static)
+        weights = ", ".join(str(w) for w in conditions.weights)
+        devs = ", ".join(f"ISA{d:+g}" if d else "ISA" for d in conditions.isa_devs_c)
+        speed = conditions.mach if isinstance(conditions.mach, str) else f"M{conditions.mach:.2f}"
+        climbs = ", ".join(f"{x:g}" for x in conditions.climb_fpm)
+        follows = f"speed {speed}, climb {climbs} ft/min, buffet {conditions.g_margin:g} g (compare screen)"
+        if self.results is None or conditions.target_fl_ft is None:
+            self.view_df = None
+            summary.update(f"Type a target flight level: the heaviest weight on the day and the warmest day at the "
+                           f"weight for it. {weights} at {devs} · {follows}")
+            return
+        columns = visible_planner_columns(conditions)
+        sort = PLANNER_BY_KEY.get(self.sort_key) if self.sort_key else None
+        df = sort_rows(self.results.df, sort, self.descending)
+        self.view_df = df
         rows = list(df.iter_rows(named=True))
-        cells = []
-        made = 0
-        for row in rows:
-            if target is None:
-                verdict, by = Cell("set a target"), Cell(NONE, right=True)
-            else:
-                made += bool(row.get("reaches_target"))
-                mark = f"{MAKES_IT} yes" if row.get("reaches_target") else f"{SHORT_OF_IT} no"
-                verdict = Cell(mark if row.get("margin_ft") is not None else f"{SHORT_OF_IT} no altitude")
-                by = cell(COLUMNS_BY_KEY["margin"], row)
-                by = Cell(by.plain.rstrip(f" {MAKES_IT}{SHORT_OF_IT}"), right=True)
-            cells.append([
-                Cell(row["variant"]), Cell(row["engine"]), verdict, by,
-                cell(COLUMNS_BY_KEY["fl"], row), cell(COLUMNS_BY_KEY["limit"], row),
-                *[cell(c, row) for c in extra],
-                cell(COLUMNS_BY_KEY["mach"], row), Cell(row.get("note") or ""),
-            ])
-        labels, widths = justify(headers, cells)
-        for label, width in zip(labels, widths):
-            table.add_column(label, width=width)
+        cells = [[planner_cell(c, row) for c in columns] for row in rows]
+        labels, widths = justify([header(c, self.sort_key, self.descending, False) for c in columns], cells)
+        for column, label, width in zip(columns, labels, widths):
+            table.add_column(label, key=column.key, width=width)
         for row, row_text in zip(rows, cells):
             table.add_row(*row_text, key=row[ROW_KEY])
         if keep is not None and keep in table.rows:
             table.move_cursor(row=table.get_row_index(keep), animate=False)
-        summary = self.query_one("#lookup-summary", Static)
-        c = results.conditions
-        weights = ", ".join(str(w) for w in c.weights)
-        devs = ", ".join(f"ISA{d:+g}" if d else "ISA" for d in c.isa_devs_c)
-        speed = c.mach if isinstance(c.mach, str) else f"M{c.mach:.2f}"
-        climbs = ", ".join(f"{x:g}" for x in c.climb_fpm)
-        follows = f"speed {speed}, climb {climbs} ft/min, buffet {c.g_margin:g} g from the compare screen"
-        if target is None:
-            summary.update(f"Type a target flight level. {weights} at {devs}; {follows}.")
-        else:
-            summary.update(f"{made} of {df.height} make {level} at {weights}, {devs}; {follows}.")
+        level = format_flight_level(conditions.target_fl_ft)
+        made = int(df["reaches_target"].fill_null(False).sum())
+        summary.update(f"{made} of {df.height} make {level} at {weights}, {devs} · heaviest weight on the row's "
+                       f"day, warmest day at its weight · {follows}")
 
     # --- events and actions ---------------------------------------------------------
 
@@ -177,6 +171,23 @@ class HotDayScreen(HoldsKeys, Screen):
     @on(DataTable.RowSelected)
     def row_selected(self) -> None:
         self.action_inspect()
+
+    @on(DataTable.HeaderSelected)
+    def header_selected(self, event: DataTable.HeaderSelected) -> None:
+        self.sort_by(event.column_key.value)
+
+    def _rerender(self) -> None:
+        if self.results is not None:
+            self.render_table(self.results.conditions)
+
+    def sort_columns(self) -> list:
+        return [] if self.results is None else visible_planner_columns(self.results.conditions)
+
+    def sort_column(self, key: str):
+        return PLANNER_BY_KEY[key]
+
+    def render_sorted(self) -> None:
+        self._rerender()
 
     def action_compare(self) -> None:
         if isinstance(self.focused, Input):
@@ -194,5 +205,5 @@ class HotDayScreen(HoldsKeys, Screen):
             self.app.inspect_variant(key.split("|")[0])
 
     def action_export(self) -> None:
-        if self.results is not None and self.results.df is not None:
-            self.app.export_table(export_frame(self.view_df), "variantcmp-hotday")
+        if self.view_df is not None:
+            self.app.export_table(export_frame(self.view_df), "variantcmp-planner")

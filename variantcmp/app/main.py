@@ -22,7 +22,7 @@ from .dialogs import ExportDialog, ProblemsScreen
 from .form import DEFAULT_TEXTS, conditions_from_texts
 from .help import APP_BINDINGS, HelpScreen, key_commands
 from .envelope_screen import EnvelopeScreen
-from .hotday import HotDayScreen
+from .hotday import PlannerScreen
 from .jobs import LatestJob
 from .keys import KeyHold
 from .open_dialog import OpenDialog
@@ -33,6 +33,7 @@ from .sweep_screen import SweepScreen
 from .variant_info import VariantScreen
 from .widgets import COMPACT_BELOW_ROWS, shown_path
 
+WARNING_SECONDS = 15  # how long a catalogue's warnings stay on screen after it loads
 DARK_THEME = "textual-dark"
 LIGHT_THEME = "textual-light"
 
@@ -45,7 +46,7 @@ class VariantCmpApp(KeyHold, App[int]):
     # ctrl+p: every key of the screen on show (and of the app), found by name and run (help.key_commands).
     ENABLE_COMMAND_PALETTE = True
     # Top-level views, each keeping its own state while the user switches between them.
-    MODES = {"compare": CompareScreen, "hotday": HotDayScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen,
+    MODES = {"compare": CompareScreen, "planner": PlannerScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen,
              "screening": ScreeningScreen}
     DEFAULT_MODE = "compare"
     compact_rows = var(False)  # a short terminal: one-line caution (widgets.CautionBanner)
@@ -102,6 +103,10 @@ class VariantCmpApp(KeyHold, App[int]):
         else:
             self.problems = []
             self.catalogue = catalogue
+            if catalogue.warnings:  # valid but doubtful: said once, for long enough to read
+                self.notify("\n".join(f"{w.key}: {w.message.removeprefix('warning: ')}" for w in catalogue.warnings),
+                            title=f"Catalogue warnings ({shown_path(self.catalogue_path)})", severity="warning",
+                            timeout=WARNING_SECONDS)
         self.catalogue_signal.publish(self.catalogue)
         if self.problems:
             self.push_screen(ProblemsScreen(self.catalogue_path, self.problems, self.catalogue))

@@ -26,7 +26,8 @@ from variantcmp.units import OptionError, format_isa_dev
 from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
 from .navigation import BackToCompare
-from .screening_view import SORTS, block, legend, sorted_options
+from .screening_view import SORTS, SORTS_BY_KEY, block, legend, sorted_options
+from .sorting import SortCycle
 from .widgets import CautionBanner, FittingFooter
 
 
@@ -41,24 +42,27 @@ def grid_ceilings(catalogue, conditions) -> tuple[pl.DataFrame | None, str | Non
         return None, f"could not compute the screening grid ({type(exc).__name__}: {exc})", 0.0
 
 
-class ScreeningScreen(BackToCompare, HoldsKeys, Screen):
+class ScreeningScreen(SortCycle, BackToCompare, HoldsKeys, Screen):
     PICTURE_NAME = "screening"  # in the name of a saved SVG (f2)
     BINDINGS = [
         Binding("escape", "compare", "Back", tooltip="to the compare screen"),
         Binding("b", "baseline(1)", "Baseline", tooltip="the next engine option as the baseline"),
         Binding("B", "baseline(-1)", "Previous baseline", show=False),
-        Binding("s", "sort", "Sort", tooltip="options by mean, worst or best difference, share of grid points "
+        Binding("s", "sort_next", "Sort", tooltip="options by mean, worst or best difference, share of grid points "
                 "gained, or catalogue order, in turn"),
-        Binding("r", "reverse", "Reverse sort", show=False),
+        Binding("S", "sort_previous", "Sort back", show=False),
+        Binding("r", "reverse_sort", "Reverse sort", show=False),
         Binding("c", "conditions", "Conditions", tooltip="to the compare screen's condition fields (a comma list "
                 "of weights or ISA deviations gives the grid)"),
         Binding("e", "export", "Export", show=False, tooltip="the screening rows: CSV, Parquet or JSON"),
     ]
 
+    FIRST_SORT = SORTS[0].key  # the mean difference
+
     def __init__(self) -> None:
         super().__init__()
         self.baseline: str | None = None
-        self.sort, self.descending = 1, True  # mean difference, best first
+        self.sort_key, self.descending = self.FIRST_SORT, True  # mean difference, best first
         self.ceilings: pl.DataFrame | None = None  # the grid's ceilings table
         self.rows: pl.DataFrame | None = None  # the screening rows against the baseline
         self.conditions = None  # of the grid on show
@@ -149,7 +153,7 @@ class ScreeningScreen(BackToCompare, HoldsKeys, Screen):
             return
         self.rows = compare_options(self.ceilings, self.baseline)
         summary = screening_summary(self.rows)
-        options = sorted_options(self.rows, summary, self.sort, self.descending)
+        options = sorted_options(self.rows, summary, self.sort_key, self.descending)
         by_pct = not all(w.unit == "kg" for w in self.conditions.weights)
         text = Text()
         for option in options:
@@ -158,8 +162,8 @@ class ScreeningScreen(BackToCompare, HoldsKeys, Screen):
         self.query_one("#matrix", Static).update(text)
         self.render_ms = (perf_counter() - started) * 1000.0
         self.call_after_refresh(self._painted, started)
-        _, words, _ = SORTS[self.sort]
-        order = "" if SORTS[self.sort][0] is None and not self.descending else (" ▼" if self.descending else " ▲")
+        words = "catalogue order" if self.sort_key is None else SORTS_BY_KEY[self.sort_key].words
+        order = "" if self.sort_key is None else (" ▼" if self.descending else " ▲")
         c = self.conditions
         speed = "cruise Mach" if c.mach == "cruise" else "best Mach" if c.mach == "best" else f"M{c.mach:.2f}"
         weights = [w.value for w in c.weights]
@@ -189,13 +193,13 @@ class ScreeningScreen(BackToCompare, HoldsKeys, Screen):
         self.baseline = candidates[(at + step) % len(candidates)]
         self.render_matrix()
 
-    def action_sort(self) -> None:
-        self.sort = (self.sort + 1) % len(SORTS)
-        self.descending = SORTS[self.sort][2]
-        self.render_matrix()
+    def sort_columns(self) -> tuple:
+        return SORTS if self.ceilings is not None else ()
 
-    def action_reverse(self) -> None:
-        self.descending = not self.descending
+    def sort_column(self, key: str):
+        return SORTS_BY_KEY[key]
+
+    def render_sorted(self) -> None:
         self.render_matrix()
 
     def action_export(self) -> None:

@@ -27,14 +27,21 @@ TIE_MARK = "="
 ONLY_OPTION, ONLY_BASELINE = "✓", "✗"  # only the option / only the baseline has a maximum altitude
 CELL_WIDTH = 6  # number (4), shade (1), limit glyph (1)
 GAP = " "
-#: Sort keys of the options: summary column, words, whether the highest comes first.
-SORTS = (
-    (None, "catalogue order", False),
-    ("mean_delta_ft", "mean Δ", True),
-    ("worst_delta_ft", "worst Δ", True),
-    ("best_delta_ft", "best Δ", True),
-    ("gains_pct", "gains %", True),
-)
+
+
+@dataclass(frozen=True)
+class SortFigure:
+    """A summary figure the options sort by (the shared sort cycle's column: ``key``, ``high_first``)."""
+
+    key: str
+    words: str
+    high_first: bool = True
+
+
+#: The figures the options sort by, in the order s steps through them (then catalogue order).
+SORTS = (SortFigure("mean_delta_ft", "mean Δ"), SortFigure("worst_delta_ft", "worst Δ"),
+         SortFigure("best_delta_ft", "best Δ"), SortFigure("gains_pct", "gains %"))
+SORTS_BY_KEY = {f.key: f for f in SORTS}
 
 
 def hundreds(delta_ft: float) -> int:
@@ -71,9 +78,8 @@ class Option:
     rows: pl.DataFrame
 
 
-def sorted_options(frame: pl.DataFrame, summary: pl.DataFrame, sort: int, descending: bool) -> list[Option]:
-    """The options in the order asked (SORTS[sort]); missing figures last."""
-    key, _, _ = SORTS[sort]
+def sorted_options(frame: pl.DataFrame, summary: pl.DataFrame, key: str | None, descending: bool) -> list[Option]:
+    """The options sorted by the summary figure ``key`` (None: catalogue order); missing figures last."""
     if key is not None:
         summary = summary.sort(key, descending=descending, nulls_last=True, maintain_order=True)
     elif descending:

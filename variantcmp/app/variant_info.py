@@ -16,7 +16,7 @@ from textual.screen import Screen
 from textual.widgets import Static
 
 from variantcmp.airspeed_columns import with_airspeeds
-from variantcmp.catalogue import Engine, Variant
+from variantcmp.catalogue import Engine, Variant, engine_keys
 from variantcmp.table import FIGURE_LABELS, variant_figures
 from variantcmp.units import format_altitude_ft
 
@@ -28,6 +28,7 @@ from .widgets import CautionBanner, FittingFooter
 _UNITS = (
     ("_m2", "m²"), ("_kg_per_m2", "kg/m²"), ("_kg", "kg"), ("_ft", "ft"), ("_kt", "kt"),
     ("_kpa", "kPa"), ("_deg", "°"), ("_kn", "kN"), ("_c", "°C"), ("_fpm", "ft/min"),
+    ("_kw", "kW"), ("_kg_per_kwh", "kg/kWh"), ("_mg_per_ns", "mg/(N s)"),
 )
 _NAMES = {
     "cd0": "CD0 (zero-lift drag)", "k": "K (induced drag factor)", "cl_max": "CL max (clean, 1 g)",
@@ -39,14 +40,17 @@ _NAMES = {
     "cruise_mach": "cruise Mach", "buffet_mach": "buffet onset Mach", "buffet_cl": "buffet onset CL",
     "induced_drag_k": "K as given", "sweep_deg": "wing sweep", "korn_factor": "Korn factor",
     "max_cabin_dp_kpa": "maximum cabin pressure differential", "engine_count": "engines",
+    "shaft_power_kw": "shaft power per engine (climb/cruise rating)", "propeller_efficiency": "propeller efficiency",
+    "psfc_kg_per_kwh": "power-specific fuel consumption", "tsfc_mg_per_ns": "thrust-specific fuel consumption",
+    "mct_thrust_ratio": "maximum continuous / climb rating", "rating_fraction": "climb/cruise share of full rating",
 }
-# Thrust-table grids are summarised in one line rather than listed value by value.
-_GRID_FIELDS = ("table_altitude_ft", "table_mach", "table_thrust_fraction")
+# Thrust and propeller efficiency tables are summarised in one line rather than listed value by value.
+_GRID_FIELDS = ("table_altitude_ft", "table_mach", "table_thrust_fraction", "propeller_efficiency_mach",
+                "propeller_efficiency_table")
 
 
-# Engine values that mean something only for one thrust model.
-_MODEL_FIELDS = {"lapse_exponent": "density-lapse", "lapse_exponent_above_tropopause": "density-lapse",
-                 "throttle_ratio": "turbofan"}
+# Engine values shown first: the model and its rating (thrust, or power and the propeller's efficiency).
+_ENGINE_FIRST = ("model", "static_thrust_kn", "shaft_power_kw", "propeller_efficiency")
 
 
 def _name_and_unit(key: str) -> tuple[str, str]:
@@ -72,6 +76,8 @@ def _value(key: str, value) -> str:
             return NONE
         if key.endswith("_ft") or " ft" in key:
             return format_altitude_ft(value)
+        if key.endswith("_mach") and key in FIGURE_LABELS:
+            return f"M{value:.3f}"
         if abs(value) >= 1000:
             return f"{value:,.0f}"
         return f"{value:.4g}"
@@ -119,8 +125,10 @@ def engines_table(engines: list[Engine], per_engine: dict[str, dict]) -> Table:
     for engine in engines:
         table.add_column(engine.id, justify="right")
     names: list[str] = []
-    for engine in engines:  # derived figures first, then the catalogue values
-        for key in list(per_engine.get(engine.id, {})) + [f.name for f in fields(engine) if f.name != "id"]:
+    values = [f.name for f in fields(Engine) if f.name != "id"]
+    values = [k for k in _ENGINE_FIRST if k in values] + [k for k in values if k not in _ENGINE_FIRST + ("label",)]
+    for engine in engines:  # derived figures first, then the catalogue values (the label last: it wraps)
+        for key in list(per_engine.get(engine.id, {})) + values + ["label"]:
             if key not in names and key not in _GRID_FIELDS:
                 names.append(key)
     for key in names:
@@ -129,15 +137,26 @@ def engines_table(engines: list[Engine], per_engine: dict[str, dict]) -> Table:
         cells = []
         for engine in engines:
             extra = per_engine.get(engine.id, {})
-            value = extra[key] if key in extra else getattr(engine, key, None)
-            if _MODEL_FIELDS.get(key, engine.model) != engine.model:
-                value = None
+            # Catalogue values only where the engine's model takes the key (a turboprop has no rating
+            # fraction, a jet no propeller efficiency).
+            value = extra[key] if key in extra else (getattr(engine, key, None) if key in engine_keys(engine.model)
+                                                     else None)
             cells.append(_value(key, value))
         if any(c != NONE for c in cells):
             table.add_row(label, *cells)
     if any(engine.table_altitude_ft for engine in engines):
         table.add_row("thrust table", *[_grid_summary(engine) for engine in engines])
+    if any(engine.propeller_efficiency_mach for engine in engines):
+        table.add_row("propeller efficiency table", *[_efficiency_summary(engine) for engine in engines])
     return table
+
+
+def _efficiency_summary(engine: Engine) -> str:
+    mach, eta = engine.propeller_efficiency_mach, engine.propeller_efficiency_table
+    if not mach:
+        return NONE
+    best = max(range(len(eta)), key=eta.__getitem__)
+    return f"M{mach[0]:g} to {mach[-1]:g}: {min(eta):g} to {max(eta):g} (best at M{mach[best]:g})"
 
 
 def _grid_summary(engine: Engine) -> str:
@@ -238,6 +257,9 @@ class VariantScreen(HoldsKeys, Screen):
         head.append(variant.label or variant.id, style="bold")
         head.append(f"  ({variant.id}) · {variant.engine_count} engines · options: "
                     f"{', '.join(variant.engine_options)}")
+        for warning in catalogue.warnings:  # the catalogue's doubts about this variant
+            if f'"{variant.id}"' in warning.key:
+                head.append(f"\n⚠ {warning.message.removeprefix('warning: ')}", style="bold yellow")
         self.query_one("#variant-head", Static).update(head)
         self.show_conditions()
         self.query_one("#variant-values", Static).update(

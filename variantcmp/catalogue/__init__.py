@@ -16,6 +16,7 @@ from .bundled import DEMO_CATALOGUE, bundled_fleet_dir, demo_catalogue_path, dem
 from .load import load_catalogue
 from .model import ENGINE_MODELS, Catalogue, Engine, Variant
 from .problems import CatalogueError, Problem
+from .schema import engine_keys
 from .summary import summarise
 
 __all__ = [
@@ -31,4 +32,5 @@ __all__ = [
     "demo_catalogue_path",
     "demo_catalogue_paths",
     "summarise",
+    "engine_keys",
 ]

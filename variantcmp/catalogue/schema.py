@@ -116,6 +116,11 @@ ENGINE_MODEL_KEYS = {
 ENGINE_RATING_KEY = {"density-lapse": "static_thrust_kn", "turbofan": "static_thrust_kn", "table": "static_thrust_kn",
                      "turboprop": "shaft_power_kw"}
 ENGINE_KEYS = ENGINE_COMMON_KEYS + tuple(dict.fromkeys(k for ks in ENGINE_MODEL_KEYS.values() for k in ks))
+
+
+def engine_keys(model: str) -> tuple[str, ...]:
+    """The keys an engine of a model takes (its own and the common ones)."""
+    return ENGINE_COMMON_KEYS + ENGINE_MODEL_KEYS[model]
 #: Above this cruise Mach a propeller's efficiency collapses (common practice, no source).
 PROPELLER_MACH_WARNING = 0.7
 

@@ -10,7 +10,7 @@ options and output of the drawing commands). :mod:`variantcmp.cli` registers the
 
 from __future__ import annotations
 
-from . import bench, ceilings, check, envelope, screen, sensitivity, spread, sweep
+from . import bench, ceilings, check, envelope, heaviest, hottest, screen, sensitivity, spread, sweep
 
 #: Subcommand modules, in the order `variantcmp --help` lists them.
-COMMANDS = (ceilings, envelope, sweep, screen, sensitivity, spread, check, bench)
+COMMANDS = (ceilings, heaviest, hottest, envelope, sweep, screen, sensitivity, spread, check, bench)

@@ -10,6 +10,11 @@ from . import options, output
 from .output import Column, TextTable
 
 
+INVERSE_ROWS = (("heaviest", "heaviest weight for a level, fixed Mach"), ("hottest", "warmest day for a level, fixed Mach"),
+                ("heaviest_best", "heaviest weight for a level, best speed"),
+                ("hottest_best", "warmest day for a level, best speed"))
+
+
 def _positive_int(text: str) -> int:
     try:
         value = int(text.replace("_", "").replace(",", ""))
@@ -23,15 +28,16 @@ def _positive_int(text: str) -> int:
 def add(subparsers) -> None:
     p = options.add_command(
         subparsers, "bench", help="time the ceiling solver on a synthetic fleet grid",
-        description="Time the vectorised ceiling solver on a seeded synthetic fleet: fixed-Mach and best-speed "
-                    "maximum altitudes, a scalar one-case-at-a-time reference on a subsample (also a "
-                    "correctness check), and the demo fleet's interactive grid.")
+        description="Time the vectorised ceiling solver on seeded synthetic fleets of jets and of turboprops: "
+                    "fixed-Mach and best-speed maximum altitudes, a scalar one-case-at-a-time reference on a "
+                    "subsample of each (also a correctness check), the demo fleet's interactive grid, and the "
+                    "heaviest weight and the warmest day for a level at a fixed Mach and at the best speed.")
     p.add_argument("--cases", action=options.Once, type=_positive_int, default=1_000_000,
-                   help="fixed-Mach cases (default 1,000,000)")
+                   help="fixed-Mach cases of each fleet (default 1,000,000)")
     p.add_argument("--best-cases", action=options.Once, type=_positive_int, default=100_000,
-                   help="best-speed cases (default 100,000)")
+                   help="best-speed cases of each fleet (default 100,000)")
     p.add_argument("--scalar-cases", action=options.Once, type=_positive_int, default=2_000,
-                   help="cases solved one by one by the scalar reference (default 2,000)")
+                   help="cases of each fleet solved one by one by the scalar reference (default 2,000)")
     p.add_argument("--spread-samples", action=options.Once, type=_positive_int, default=1_000,
                    help="Monte Carlo samples per case of the demo fleet's spread (default 1,000)")
     options.add_format(p, ("table", "json"), "table", "table (default) or json (the figures as one object)")
@@ -46,26 +52,35 @@ def run(args) -> int:
         sys.stdout.write(json.dumps(f) + "\n")
         return options.EXIT_OK
     rows = [
-        ("fixed Mach (thrust 300 ft/min, buffet 1.3 g, stall, certified)", f["cases"], f["seconds"], f["cases_per_s"]),
-        ("best speed", f["best_speed_cases"], f["best_speed_seconds"], f["best_speed_cases_per_s"]),
-        ("scalar reference (floats, math, brentq per case)", f["scalar_cases"],
+        ("jets: fixed Mach (thrust 300 ft/min, buffet 1.3 g, stall, certified)", f["cases"], f["seconds"],
+         f["cases_per_s"]),
+        ("jets: best speed", f["best_speed_cases"], f["best_speed_seconds"], f["best_speed_cases_per_s"]),
+        ("turboprops: fixed Mach", f["turboprop_cases"], f["turboprop_seconds"], f["turboprop_cases_per_s"]),
+        ("turboprops: best speed", f["turboprop_best_cases"], f["turboprop_best_seconds"],
+         f["turboprop_best_cases_per_s"]),
+        ("jets: scalar reference (floats, math, brentq per case)", f["scalar_cases"],
          f["scalar_cases"] / f["scalar_cases_per_s"], f["scalar_cases_per_s"]),
+        ("turboprops: scalar reference", f["turboprop_scalar_cases"],
+         f["turboprop_scalar_cases"] / f["turboprop_scalar_cases_per_s"], f["turboprop_scalar_cases_per_s"]),
         ("demo fleet interactive grid (9 weights x 7 days x 3 climbs)", f["grid_cases"], f["grid_ms"] / 1000,
          f["grid_cases"] / f["grid_ms"] * 1000),
         (f"demo fleet spread, best speed ({f['spread_demo_cases']:,} cases x {f['spread_demo_samples']:,} samples)",
          f["spread_demo_cases"] * (f["spread_demo_samples"] + 1), f["spread_demo_s"],
          f["spread_demo_cases"] * (f["spread_demo_samples"] + 1) / f["spread_demo_s"]),
-    ]
+    ] + [(words, f[f"{key}_cases"], f[f"{key}_seconds"], f[f"{key}_cases_per_s"]) for key, words in INVERSE_ROWS]
     columns = [Column("work", "Workload", "left"), Column("cases", "Cases"), Column("s", "Seconds"),
                Column("rate", "Cases/s")]
     cells = {"work": [r[0] for r in rows], "cases": [f"{r[1]:,}" for r in rows],
              "s": [f"{r[2]:.3f}" for r in rows], "rate": [f"{r[3]:,.0f}" for r in rows]}
-    diff = "n/a" if f["max_abs_diff_ft"] is None else f"{f['max_abs_diff_ft']:.4f} ft"
+    diff = {k: "n/a" if f[k] is None else f"{f[k]:.4f} ft" for k in ("max_abs_diff_ft", "turboprop_max_abs_diff_ft")}
     output.print_table(TextTable(columns, cells, [None] * len(rows), [False] * len(rows)),
-                       "variantcmp bench (synthetic seeded fleet)", [
-        f"speed-up of the vectorised solver over the scalar loop: {f['speedup']:,.0f}x per case",
-        f"largest vectorised - scalar difference: {diff}; cases where only one finds an altitude: "
-        f"{f['scalar_mismatched_cases']}",
+                       "variantcmp bench (synthetic seeded fleets)", [
+        f"speed-up of the vectorised solver over the scalar loop: {f['speedup']:,.0f}x per case (jets)",
+        f"largest vectorised - scalar difference: jets {diff['max_abs_diff_ft']}, turboprops "
+        f"{diff['turboprop_max_abs_diff_ft']}; cases where only one finds an altitude: jets "
+        f"{f['scalar_mismatched_cases']}, turboprops {f['turboprop_scalar_mismatched_cases']}",
+        "heaviest weight put back into the ceilings solver: largest difference from the level "
+        + ("n/a" if f["heaviest_round_trip_max_ft"] is None else f"{f['heaviest_round_trip_max_ft']:.4f} ft"),
         f"demo grid: {f['grid_ms']:.1f} ms; peak memory {f['peak_rss_mb']:,.0f} MB "
         f"(largest worker process {f['peak_rss_worker_mb']:,.0f} MB)"])
     output.print_caution(stderr=False)

@@ -117,14 +117,7 @@ def ceilings_text_table(conditions, frame) -> TextTable:
         # Rounded down like the altitudes, so a margin is never overstated.
         cells["margin"] = ["—" if m is None or not math.isfinite(m) else f"{math.floor(m):+,d}"
                            for m in get("margin_ft").to_list()]
-    notes = [n or "" for n in get("note").to_list()]
-    if any(notes):
-        columns.append(Column("note", "Note", "left", wraps=True))
-        cells["note"] = notes
-    variants = cells["variant"]
-    flagged = [bool(o) or bool(b) for o, b in zip(get("over_mtow").to_list(), get("below_empty_weight").to_list())]
-    return TextTable(columns, cells, ["yellow" if f else None for f in flagged],
-                     [i + 1 == len(variants) or variants[i + 1] != v for i, v in enumerate(variants)])
+    return output.fleet_table(columns, cells, frame)
 
 
 def print_ceilings(catalogue, conditions, climb_labels, frame) -> None:

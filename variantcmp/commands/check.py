@@ -26,7 +26,7 @@ def add(subparsers) -> None:
 def run(args) -> int:
     from variantcmp.catalogue import summarise
 
-    catalogue = options.load(args.catalogue)
+    catalogue = options.load(args.catalogue, warn=False)  # the summary lists the warnings
     out = output.console()
     label_width = max(len(label) for label, _ in summarise(catalogue))
     lines = []
@@ -37,14 +37,21 @@ def run(args) -> int:
         lines += [" " * (label_width + 2) + more for more in wrapped[1:]]
     _print_lines(out, lines, bold_prefix=label_width)
     figures = fleet_figures(catalogue)
-    output.print_table(_figures_table(catalogue, figures), None, [])
+    output.print_table(_figures_table(catalogue, figures), None, [], DROP_ORDER, more="widen the window to see them")
     status = f"OK: {catalogue.path}: {len(catalogue.engines)} engines, {len(catalogue.variants)} variants, no problems found."
     if out.is_terminal:
         out.print(f"[bold green]OK[/]{status[2:]}", highlight=False, soft_wrap=True)
     else:
-        print(textwrap.fill(status, out.width, break_long_words=False, break_on_hyphens=False))
+        # A path longer than the width is cut at it (as the summary's file row is): CI installs
+        # the package under a temporary folder whose path alone is 101 characters.
+        print(textwrap.fill(status, out.width, break_on_hyphens=False))
     output.print_caution(stderr=False)
     return options.EXIT_OK
+
+
+#: Figures hidden first where the terminal is too narrow (the polar's details before the ceiling).
+DROP_ORDER = ("absolute_ceiling_propeller_efficiency", "cl_ld_max", "induced_drag_k", "absolute_ceiling_mach",
+              "ld_max", "wing_loading_kg_m2")
 
 
 def _print_lines(out, lines: list[str], bold_prefix: int) -> None:
@@ -63,7 +70,9 @@ def _figures_table(catalogue, figures: dict[str, dict]) -> TextTable:
     """One row per variant x engine option: the variant's own figures on its first row, the
     engine-keyed ones on every row."""
     scalar_keys = list(dict.fromkeys(k for f in figures.values() for k, v in f.items() if not isinstance(v, dict)))
-    engine_keys = list(dict.fromkeys(k for f in figures.values() for k, v in f.items() if isinstance(v, dict)))
+    order = list(FIGURE_LABELS)  # thrust- and power-to-weight side by side, whichever variant came first
+    engine_keys = sorted(dict.fromkeys(k for f in figures.values() for k, v in f.items() if isinstance(v, dict)),
+                         key=lambda k: order.index(k) if k in order else len(order))
     columns = [Column("variant", "Variant", "left")]
     columns += [Column(k, _header(k)) for k in scalar_keys]
     columns.append(Column("engine", "Engine", "left"))
@@ -95,5 +104,7 @@ def _figure_text(key: str, value) -> str:
             return "—"
         if key.endswith("_ft"):
             return f"{format_altitude_ft(value)} ({format_flight_level(value)})"
+        if key.endswith("_mach"):
+            return f"M{value:.3f}"
         return f"{value:,.0f}" if abs(value) >= 1000 else f"{value:.4g}"
     return str(value)

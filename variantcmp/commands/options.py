@@ -11,6 +11,7 @@ import argparse
 import difflib
 import os
 import shutil
+import sys
 import textwrap
 from pathlib import Path
 
@@ -18,6 +19,7 @@ from variantcmp.units import (
     OptionError,
     parse_climbs,
     parse_flight_level,
+    parse_flight_levels,
     parse_g_margin,
     parse_isa_devs,
     parse_mach,
@@ -113,6 +115,20 @@ def add_conditions(p, mach_default: str | None = "cruise", mach_help: str | None
                    help="load factor kept from buffet onset (default: 1.3, common practice)")
 
 
+def add_targets(p, help: str) -> None:
+    """--target LIST: the levels an inverse question asks about (dest ``targets``; required, checked
+    after the other options so that their mistakes are reported first)."""
+    p.add_argument("--target", dest="targets", action="append", metavar="LIST", help=help)
+
+
+def targets_from_args(args) -> list[float]:
+    """The --target levels in ft (OptionError when none is given)."""
+    if not args.targets:
+        raise OptionError("--target: give the flight level(s) to ask about, e.g. --target FL370 or "
+                          "--target FL350,FL370")
+    return parse_flight_levels(joined(args.targets, ""), "--target")
+
+
 def add_format(p, choices=("table", "csv", "json"), default: str = "table", help: str | None = None) -> None:
     p.add_argument("--format", action=Once, type=keyword(*choices), default=default,
                    help=help or f"{'/'.join(choices)} ({default} by default; csv and json: data only on stdout)")
@@ -154,11 +170,17 @@ def resolve_catalogue(text: str | None) -> Path:
     return path  # load_catalogue reports a missing file as a catalogue problem
 
 
-def load(text: str | None):
-    """Load and validate a catalogue; CatalogueError propagates to main()."""
+def load(text: str | None, warn: bool = True):
+    """Load and validate a catalogue; CatalogueError propagates to main(). Its warnings (valid but
+    doubtful values) go to stderr, one line each, unless ``warn`` is False (``check`` lists them
+    in its summary); stdout keeps only the command's output."""
     from variantcmp.catalogue import load_catalogue
 
-    return load_catalogue(resolve_catalogue(text))
+    catalogue = load_catalogue(resolve_catalogue(text))
+    if warn:
+        for warning in catalogue.warnings:
+            print(str(warning), file=sys.stderr)
+    return catalogue
 
 
 def looks_like_catalogue(token: str) -> bool:

@@ -163,10 +163,26 @@ class TextTable:
         return (" " * GAP).join(parts).rstrip()
 
 
-def print_table(table: TextTable, title: str | None, footer_lines: list[str], drop_order: tuple[str, ...] = ()) -> None:
+def fleet_table(columns: list[Column], cells: dict[str, list[str]], frame, flag_weights: bool = True) -> TextTable:
+    """A table of result rows: a wrapping Note column where any row has a note, a blank line
+    between variants, and (``flag_weights``) rows above MTOW or below the empty weight in yellow."""
+    notes = [n or "" for n in frame.get_column("note").to_list()]
+    if any(notes):
+        columns = [*columns, Column("note", "Note", "left", wraps=True)]
+        cells = {**cells, "note": notes}
+    variants = frame.get_column("variant").to_list()
+    styles: list[str | None] = [None] * len(variants)
+    if flag_weights:
+        styles = ["yellow" if o or b else None
+                  for o, b in zip(frame.get_column("over_mtow").to_list(), frame.get_column("below_empty_weight").to_list())]
+    return TextTable(columns, cells, styles, [i + 1 == len(variants) or variants[i + 1] != v for i, v in enumerate(variants)])
+
+
+def print_table(table: TextTable, title: str | None, footer_lines: list[str], drop_order: tuple[str, ...] = (),
+                more: str = "widen the window, or use --format csv for every column") -> None:
     """Print a table fitted to the console (columns in ``drop_order`` hidden first, a line says
-    which), its title centred above and the footer lines below; then nothing else (the caller
-    prints the caution)."""
+    which and how to see them: ``more``), its title centred above and the footer lines below; then
+    nothing else (the caller prints the caution)."""
     from rich.text import Text
 
     out = console()
@@ -177,8 +193,7 @@ def print_table(table: TextTable, title: str | None, footer_lines: list[str], dr
         lines.insert(0, title.center(width).rstrip())
         spans = [(line + 1, a, b, s) for line, a, b, s in spans]
     if dropped:
-        footer_lines = [f"Hidden to fit the terminal: {', '.join(dropped)} (widen the window, or use --format "
-                        "csv for every column)."] + footer_lines
+        footer_lines = [f"Hidden to fit the terminal: {', '.join(dropped)} ({more})."] + footer_lines
     if not out.is_terminal:
         sys.stdout.write("\n".join(lines + footer_lines) + "\n")
         return

@@ -15,13 +15,21 @@ stages, each with its guarantee:
    buffet ceiling binds at its own best speed (:func:`~variantcmp.solver.limits.buffet_peak_mach`,
    a closed form: the highest B goes). Thrust bounds nothing where some speed still climbs at the
    top of the thrust table (its ceiling lies beyond the data there): such a case goes on (up to
-   995 ft low without this on a stress catalogue). The rest (buffet or stall binding: the coffin
-   corner) get golden-section searches of H over brackets: the best grid speed's neighbours; the
+   995 ft low without this on a stress catalogue). The buffet peak's answer is the grid's where
+   it falls on a grid speed without a maximum altitude (:func:`_at_buffet_peak`). The rest (buffet
+   or stall binding: the coffin corner) are searched. Where thrust binds at one grid neighbour of
+   the best grid speed and buffet or stall at the other, moving apart, H peaks on their crossing,
+   found by a root search (:func:`~variantcmp.solver.corner.corner_search`: where a propeller
+   aircraft's best speed mostly lies, against the buffet margin at low speed); the others get
+   golden-section searches of H over brackets: the best grid speed's neighbours; the
    buffet-boundary points either side of the buffet peak, where that beats the best grid speed (a
    spike of the boundary can lie between grid speeds); a grid step either side of M_T, where that
-   lies outside the first bracket (a peak on a table Mach). All brackets run as one search on
-   repeated cases. Then two situations the grid is too coarse for, each in its own step:
-   :func:`flyable_islands` and :func:`narrow_climbing_band`.
+   lies outside the first bracket (a peak on a table Mach). These last two only where the other
+   limits' closed forms allow more than the best found somewhere in the bracket (:func:`_bound_m`).
+   All brackets run as one search on repeated cases. Then two situations the grid is too coarse
+   for, each in its own step: :func:`flyable_islands` and :func:`narrow_climbing_band`; and
+   where thrust and the buffet or stall ceiling bind together however found,
+   :func:`~variantcmp.solver.corner.close_the_corner` steps onto the crossing.
 4. *Check* (:func:`check_stage`) enforces the invariants of the answer:
 
    - the reported maximum altitude is no lower than any fixed-Mach result the search evaluated
@@ -29,7 +37,8 @@ stages, each with its guarantee:
      speed, solved to GRID_TOL_M, that beats it by more than that is solved again and offered);
    - the reported Mach reproduces the reported maximum altitude at fixed Mach (every answer is
      one fixed-Mach solve to ROOT_TOL_M at that Mach: within 0.01 ft);
-   - each limit's column is that limit's own best over the speed range: thrust at M_T (unknown,
+   - each limit's column is that limit's own best over the speed range (``thrust_mach`` the speed
+     of the thrust ceiling's): thrust at M_T (unknown,
      NaN, where some speed still climbs at the top of the thrust table: such speeds may lie
      between grid speeds, so a best within TABLE_TOP_LOOK_M under the table's top gets a look
      for the best climb rate at the top within a grid step of it), buffet at its closed-form peak,
@@ -40,8 +49,10 @@ aerodynamic and thrust limits wins (:func:`~variantcmp.solver.results.score`).
 
 Accuracy, against dense Mach scans (161 fixed-Mach solves per case, then 41 around the best;
 ``tests/test_best_speed.py``): on 3,000 benchmark cases of each of three seeds (default, 7, 11)
-the worst case was 0.07 ft low; on the two bundled fleets (every pair x 8 weights 0.5-1.05 MTOW x
-ISA-15 to +45 every 10 C x 0, 100, 300 and 500 ft/min) 0.005 ft. On a reviewer's stress catalogue
+the worst case was 0.003 ft low for the jets (0.12 ft before the joint search above a layer base:
+:mod:`~variantcmp.solver.thrust_best`), 0.15 ft for the turboprops (their thrust column 0.27 ft);
+on the two bundled fleets (every pair x 8 weights 0.5-1.05 MTOW x ISA-15 to +45 every 10 C x 0,
+100, 300 and 500 ft/min) 0.005 ft for the jets, 0.05 ft for the turboprops. On a reviewer's stress catalogue
 (MMO 0.70 with VMO 210 kt, four buffet peaks, three engine models, 0.35-1.3 MTOW, up to 800
 ft/min) 26 of 810 cases stayed more than 1 ft low, up to 192 ft, none without an answer (measured
 on the single-module solver these stages came from, whose answers they give to 0.004 ft, or
@@ -57,6 +68,7 @@ import numpy as np
 
 from ..atmosphere import MODEL_TOP_M
 from .coarse import GRID_TOL_M, Grid, coarse_stage, mach_grid
+from .corner import close_the_corner, corner_search
 from .finders import golden_max, nan_as_lowest
 from .fixed_mach import fixed_mach_ceilings
 from .kinks import buffet_nodes_around
@@ -88,6 +100,7 @@ def best_speed_ceilings(phys: ClimbPhysics) -> Ceilings:
                      | np.isnan(inc.result.max_altitude_m[todo]))
     flyable_islands(phys, grid, np.flatnonzero(suspect), inc)
     narrow_climbing_band(phys, grid, inc)
+    close_the_corner(phys, inc)
     return check_stage(phys, grid, thrust, m_buffet, grid_flags, inc)
 
 
@@ -119,20 +132,33 @@ def combined_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet,
     # The buffet ceiling's own best speed: where the buffet ceiling binds there, no speed goes
     # higher (it bounds the maximum altitude at every speed): no search.
     m_peak = np.where(np.isfinite(m_buffet[todo]), m_buffet[todo], m_grid)
-    at_peak = fixed_mach_ceilings(sub, m_peak, guess(m_peak))
+    at_peak = _at_buffet_peak(sub, grid, todo, m_peak, guess)
     open_ = ~(np.isfinite(m_buffet[todo]) & (at_peak.limit == LIMITS.index("buffet"))
               & np.isfinite(at_peak.max_altitude_m))
     go = np.flatnonzero(open_)
-    around = np.flatnonzero((score(at_peak) > gs[r, i]) & open_)
+    around = np.flatnonzero((score(at_peak) > gs[r, i]) & open_ & np.isfinite(m_buffet[todo]))
+    # A coffin corner next to the best grid speed: its crossing by a root search (few solves),
+    # the golden-section search for the rest.
+    cornered, m_corner = corner_search(sub, Grid(grid.mach[todo], {k: v[todo] for k, v in grid.at.items()},
+                                                 grid.low[todo], grid.high[todo]), go)
+    go = np.setdiff1d(go, cornered)
     peak_lo, peak_hi = buffet_nodes_around(sub.cases, m_peak)
     m_t = thrust.mach[todo]
     step = grid.step(todo)
+    low, high = grid.mach[todo][:, 0], grid.mach[todo][:, -1]
     apart = np.flatnonzero(np.isfinite(m_t) & ((m_t < lo) | (m_t > hi)) & open_)
+    # Brackets where the other limits' closed forms keep every speed below the best found cannot
+    # do better (at a propeller's coffin corner, M_T's bracket lies where the buffet margin binds).
+    best_m = np.fmax(nan_as_lowest(np.fmax.reduce(grid.at["max_altitude_m"][todo], axis=1)),
+                     nan_as_lowest(inc.result.max_altitude_m[todo]))
+    around = around[_bound_m(sub.cases, around, np.maximum(peak_lo, low)[around], np.minimum(peak_hi, high)[around])
+                    > best_m[around]]
+    apart = apart[_bound_m(sub.cases, apart, np.maximum(m_t - step, low)[apart], np.minimum(m_t + step, high)[apart])
+                  > best_m[apart]]
     searched = np.concatenate([go, around, apart])
     m_found = np.zeros(0)
     if searched.size:
         sub2 = sub if searched.size == todo.size else sub.subset(searched)
-        low, high = grid.mach[todo][:, 0], grid.mach[todo][:, -1]
         m_found, _ = golden_max(lambda m: combined_score(sub2, m, guess(m, searched)),
                                 np.concatenate([lo[go], np.maximum(peak_lo, low)[around],
                                                 np.maximum(m_t - step, low)[apart]]),
@@ -146,6 +172,8 @@ def combined_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet,
     # speed, the buffet peak, the search around it, the one around M_T, M_T itself.
     rest = np.flatnonzero(~open_)
     inc.offer(todo[rest], at_peak.take(rest))
+    if cornered.size:
+        inc.offer(todo[cornered], solved(cornered, m_corner))
     if go.size:
         inc.offer(todo[go], solved(go, m_found[:go.size]))
     inc.offer(todo, fixed_mach_ceilings(sub, m_grid, guess(m_grid)))
@@ -156,6 +184,40 @@ def combined_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet,
         inc.offer(todo[apart], solved(apart, m_found[go.size + around.size:]))
     inc.offer(todo, final.take(todo))
     return todo
+
+
+def _bound_m(cases, rows, low, high):
+    """An upper bound of the maximum altitude over [low, high] for the cases ``rows``: the lowest of
+    the certified and cabin ceilings, the stall ceiling at ``high`` (it rises with Mach) and the
+    buffet ceiling at its own best speed there (:func:`~variantcmp.solver.limits.buffet_peak_mach`);
+    each bounds it at every speed. Unknown buffet (no data in the range) bounds nothing."""
+    sub = cases.take(rows)
+    buffet = buffet_ceiling_m(sub, buffet_peak_mach(sub, low, high))
+    stall = closed_form_ceilings_m(sub, high)[1]
+    return np.fmin(np.fmin(np.where(np.isnan(buffet), np.inf, buffet), stall), np.fmin(sub.certified_m, sub.cabin_m))
+
+
+def _at_buffet_peak(sub: ClimbPhysics, grid: Grid, todo, m_peak, guess) -> Ceilings:
+    """The fixed-Mach answers at the buffet ceiling's own best speed for the cases ``todo`` (``sub``
+    their physics). Where that speed is a grid speed without a maximum altitude (solved there, or
+    skipped by the coarse stage: it cannot beat the best found) the grid's answer stands in: no
+    speed there beats the best grid speed, nor can the buffet ceiling bind there (it is higher
+    there than at the best grid speed). A propeller aircraft's buffet ceiling mostly peaks at MMO,
+    where heavy or hot ones cannot climb at all: proving that (the altitude scan) took a quarter of
+    a turboprop chunk's time."""
+    r = np.arange(todo.size)
+    mach = grid.mach[todo]
+    on_grid = mach == m_peak[:, None]
+    col = np.argmax(on_grid, axis=1)
+    known = np.flatnonzero(on_grid.any(axis=1) & np.isnan(grid.at["max_altitude_m"][todo][r, col]))
+    if known.size == 0:
+        return fixed_mach_ceilings(sub, m_peak, guess(m_peak))
+    out = Ceilings.blank(todo.size, m_peak)
+    out.put(known, Ceilings(**{k: v[todo[known], col[known]] for k, v in grid.at.items()}))
+    need = np.setdiff1d(r, known)
+    if need.size:
+        out.put(need, fixed_mach_ceilings(sub.subset(need), m_peak[need], guess(m_peak[need], need)))
+    return out
 
 
 def flyable_islands(phys: ClimbPhysics, grid: Grid, idx, inc: Incumbent) -> None:
@@ -240,13 +302,18 @@ def check_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet, gr
         m = grid.mach[short, np.argmax(grid.score()[short], axis=1)]
         inc.offer(short, fixed_mach_ceilings(phys.subset(short), m, grid.guess(short)(m)))
     final = inc.result
+    # The thrust ceiling's own best, and the speed it is at.
+    answer_higher = nan_as_lowest(final.thrust_m) > nan_as_lowest(thrust.final.thrust_m)
     thrust_best = np.maximum(nan_as_lowest(thrust.final.thrust_m), nan_as_lowest(final.thrust_m))
+    thrust_mach = np.where(answer_higher, final.mach, thrust.mach)
     with np.errstate(invalid="ignore"):
         short = np.flatnonzero(np.fmax.reduce(grid.thrust_m, axis=1) > thrust_best + GRID_TOL_M)
     if short.size:
         j = np.argmax(nan_as_lowest(grid.thrust_m[short]), axis=1)
-        again = thrust_ceiling_m(phys.subset(short), grid.mach[short, j], grid.thrust_m[short, j])[0]
-        thrust_best[short] = np.maximum(thrust_best[short], nan_as_lowest(again))
+        again = nan_as_lowest(thrust_ceiling_m(phys.subset(short), grid.mach[short, j], grid.thrust_m[short, j])[0])
+        higher = again > thrust_best[short]
+        thrust_best[short] = np.where(higher, again, thrust_best[short])
+        thrust_mach[short] = np.where(higher, grid.mach[short, j], thrust_mach[short])
     # (2) The answer is one fixed-Mach result at its Mach (``inc`` holds nothing else): solving
     # there again gives it, to the root tolerance.
     # (3) Each limit's own best over the speed range.
@@ -258,6 +325,7 @@ def check_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet, gr
     # lies beyond the data: unknown, not the best of the other speeds.
     beyond = (grid_flags & THRUST_DATA_TOP).astype(bool)
     thrust_best[beyond] = np.nan
+    thrust_mach[~np.isfinite(thrust_best)] = np.nan
     flags = final.flags.copy()
     nothing = np.isnan(final.max_altitude_m)
     # Explain a case no speed can fly by what every grid speed ran into.
@@ -266,4 +334,4 @@ def check_stage(phys: ClimbPhysics, grid: Grid, thrust: ThrustBest, m_buffet, gr
     unavailable = lambda v: np.where(np.isneginf(v), np.nan, v)  # noqa: E731
     return Ceilings(unavailable(thrust_best), np.where(cs.buffet_id >= 0, unavailable(buffet_best), np.inf),
                     stall_best, final.certified_m, final.cabin_m, final.max_altitude_m, final.mach,
-                    final.limit, flags, final.vmo_floor_m, final.co_limit)
+                    final.limit, flags, final.vmo_floor_m, final.co_limit, thrust_mach)

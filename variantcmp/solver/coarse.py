@@ -5,7 +5,8 @@ The grid is BEST_MACH_GRID speeds per case, evenly spaced over the speed range o
 ranges of the thrust table and the buffet data). Each speed is a fixed-Mach solve
 (:func:`~variantcmp.solver.fixed_mach.fixed_mach_ceilings`) to GRID_TOL_M, being only the searches'
 start, in two sweeps from GRID_START, a middle speed where nearly every case climbs and the cold
-bracket is cheap: towards the fastest, then from the middle towards the slowest. Each thrust root
+bracket is cheap (PROPELLER_GRID_START, slower, for propeller engines): towards the fastest,
+then from the middle towards the slowest. Each thrust root
 is started from the line through the sweep's previous two speeds', in a window as wide as their
 step (FIRST_STEP_HALF_WIDTH_M for the first step from the middle).
 
@@ -14,8 +15,9 @@ flat top at a layer base scatters by 1e-6 m) it is taken to keep falling that wa
 so is one that rose from the middle to the next faster speed, on the slow sweep. A further speed
 of the sweep is then not solved where neither the last thrust ceiling nor that speed's other
 limits (closed forms) are above the best maximum altitude found: it cannot beat it. Table
-engines are not taken to keep falling (a dip in a table's Mach columns can rise again after any
-number of grid speeds): past a fall, a speed is not solved where
+engines, and propeller engines whose efficiency table is not concave, are not taken to keep
+falling (a dip in a table's Mach columns can rise again after any number of grid speeds;
+:func:`~variantcmp.solver.kinks.several_humps_in_mach`): past a fall, a speed is not solved where
 :func:`~variantcmp.solver.thrust_ceiling.ceiling_below` shows its thrust ceiling below the best
 maximum altitude found. (Before the sweeps the fastest speed came first, where many heavy, hot
 cases cannot climb at all: the sweeps and the table-engine check took the benchmark's best-speed
@@ -36,6 +38,7 @@ import numpy as np
 from ..cases import MODEL_CODES, CaseSet
 from .finders import nan_as_lowest
 from .fixed_mach import fixed_mach_ceilings
+from .kinks import several_humps_in_mach
 from .limits import closed_form_ceilings_m, lowest_other_ceiling_m
 from .physics import ClimbPhysics
 from .results import Ceilings, score
@@ -43,6 +46,10 @@ from .thrust_ceiling import WARM_HALF_WIDTH_M, ceiling_below
 
 BEST_MACH_GRID = 8  # speeds per case: 7 steps over a range of about 0.67 Mach
 GRID_START = 5  # the grid speed solved first (slowest 0): a middle one
+# Propeller aircraft fly highest slowly, near their minimum-power speed: their sweeps start in
+# the slower half, where they climb (from GRID_START the fast speeds, where many heavy or hot
+# cases cannot climb at all, took a third of a turboprop chunk's time in the altitude scan).
+PROPELLER_GRID_START = 3
 GRID_TOL_M = 0.3  # best-speed grid: only a start for the search (1 ft)
 FIRST_STEP_HALF_WIDTH_M = 1500.0  # window around the first grid speed's thrust ceiling for the next one
 FALL_M = 1.0  # a grid speed's thrust ceiling this far below the sweep's peak: a fall
@@ -109,14 +116,33 @@ def interpolated_guess(low, high, grid_values) -> Callable:
 
 
 def coarse_stage(phys: ClimbPhysics) -> Grid:
-    """Every limit at the grid's speeds, by the sweeps and the skip rule of the module docstring."""
+    """Every limit at the grid's speeds, by the sweeps and the skip rule of the module docstring,
+    the sweeps of propeller engines from PROPELLER_GRID_START (each kind of engine a slice of the
+    chunk, sorted by thrust model)."""
+    cs = phys.cases
+    start = np.where(cs.model_code == MODEL_CODES["turboprop"], PROPELLER_GRID_START, GRID_START)
+    if np.all(start == start[0]) if start.size else True:
+        return _sweeps(phys, int(start[0]) if start.size else GRID_START)
+    parts = [(rows, _sweeps(phys.subset(rows), int(first)))
+             for first in np.unique(start) for rows in [np.flatnonzero(start == first)]]
+    at = {k: np.empty((len(cs), BEST_MACH_GRID), dtype=v.dtype) for k, v in parts[0][1].at.items()}
+    mach = np.empty((len(cs), BEST_MACH_GRID))
+    for rows, part in parts:
+        mach[rows] = part.mach
+        for k, v in part.at.items():
+            at[k][rows] = v
+    return Grid(mach, at, cs.mach_low, cs.mach_high)
+
+
+def _sweeps(phys: ClimbPhysics, start: int) -> Grid:
+    """The grid's sweeps for cases that all start at grid speed ``start``."""
     cs = phys.cases
     grid = mach_grid(cs)
     n, g = grid.shape
     columns = [None] * g
     best_max = np.full(n, -np.inf)
-    smooth = cs.model_code != MODEL_CODES["table"]
-    start = min(GRID_START, g - 1)
+    smooth = ~several_humps_in_mach(phys)
+    start = min(start, g - 1)
     for sweep in (range(start, g), range(start - 1, -1, -1)):
         if len(sweep) == 0:
             continue

@@ -83,5 +83,6 @@ def fixed_mach_ceilings(phys: ClimbPhysics, mach, thrust_guess_m=None, thrust_ne
         others = np.where(np.isnan(stack), np.inf, stack)
         others[limit.clip(0), np.arange(len(cs))] = np.inf
         co = np.where((limit >= 0) & (others.min(axis=0) - max_alt <= CO_LIMIT_M), np.argmin(others, axis=0), -1)
-    return Ceilings(thrust, buffet, stall, cs.certified_m.copy(), cabin, max_alt, np.asarray(mach, dtype=float).copy(),
-                    limit.astype(np.int8), flags, vmo_floor, co.astype(np.int8))
+    mach = np.asarray(mach, dtype=float)
+    return Ceilings(thrust, buffet, stall, cs.certified_m.copy(), cabin, max_alt, mach.copy(), limit.astype(np.int8),
+                    flags, vmo_floor, co.astype(np.int8), mach.copy())

@@ -6,8 +6,13 @@ around them instead of discovering them.
   thrust ceiling often sits exactly there, and over a range of speeds it *is* the base: a flat
   top of the thrust ceiling against Mach (:func:`on_layer_base`).
 - Thrust-table Mach columns: a table interpolates linearly in Mach, so thrust, and with it the
-  thrust ceiling, has a kink at each table Mach; between two it is smooth (:func:`table_nodes_inside`,
-  :func:`nearest_table_node`).
+  thrust ceiling, has a kink at each table Mach; between two it is smooth (:func:`kink_nodes_inside`,
+  :func:`nearest_kink_mach`). A propeller efficiency table's Machs are kinks the same way
+  (thrust = eta(M) P / V, eta linear between them), and so is any model's ``kink_machs``
+  (:func:`mach_kink_groups`). Between two kinks of a propeller table the excess power at an
+  altitude, eta P linear in M less the power required (convex in speed), is concave: one hump
+  per cell; where the table is concave (slopes never rising), over the whole range
+  (:func:`several_humps_in_mach`).
 - The turbofan lapse's branch change at theta0 = TR (:func:`variantcmp.thrust.turbofan_lapse_fraction`):
   a kink in Mach whose place depends on the altitude, fixed in the isothermal layer
   (:func:`turbofan_branch_mach`).
@@ -26,6 +31,7 @@ import numpy as np
 from ..atmosphere import GAMMA, LAYER_BASE_M, T0_K, isa_temperature_k
 from ..cases import MODEL_CODES
 from .limits import buffet_boundary
+from .physics import THRUST_MODELS
 
 #: Altitudes (m) where the climb rate may jump: the layer bases above sea level (the root
 #: finders' breaks).
@@ -49,17 +55,41 @@ def layer_base_near_m(altitude_m, within_m):
         return np.where((np.abs(altitude_m - base) < within_m) & (base > 0.0), base, np.nan)
 
 
-def table_nodes_inside(phys, where):
-    """Every table Mach strictly inside a table-engine case's speed range, for the cases ``where``
-    (a mask): flat (case, Mach) pairs."""
+def mach_kink_groups(phys, several_humps=False):
+    """(kink Machs, group) of every group whose data put kinks in Mach (:attr:`ThrustModel.kink_machs`
+    of :mod:`variantcmp.solver.physics`: a thrust table's Mach columns, a propeller efficiency
+    table's Machs); groups without such points (a constant efficiency) left out. ``several_humps``:
+    only the groups whose thrust ceiling may have several humps over speed (not
+    :attr:`ThrustModel.one_hump`: a concave efficiency table has one)."""
+    out = []
+    for code, data_id, group in phys.groups:
+        model = THRUST_MODELS[code]
+        machs = None if model.kink_machs is None else model.kink_machs(phys.cases, data_id)
+        if machs is None or not machs.size:
+            continue
+        if several_humps and model.one_hump is not None and model.one_hump(phys.cases, data_id):
+            continue
+        out.append((machs, group))
+    return out
+
+
+def several_humps_in_mach(phys) -> np.ndarray:
+    """Per case, whether its thrust ceiling may fall and rise again over speed: kinks in Mach that
+    are not all concave (:func:`mach_kink_groups`); a smooth model's has one hump."""
+    out = np.zeros(len(phys.cases), dtype=bool)
+    for _, group in mach_kink_groups(phys, several_humps=True):
+        out[group] = True
+    return out
+
+
+def kink_nodes_inside(phys, where):
+    """Every kink Mach (:func:`mach_kink_groups`) strictly inside a case's speed range, for the
+    cases ``where`` (a mask): flat (case, Mach) pairs."""
     cs = phys.cases
     n = len(cs)
     case, mach = [], []
-    for code, tid, group in phys.groups:
-        if code != MODEL_CODES["table"]:
-            continue
+    for machs, group in mach_kink_groups(phys):
         rows = np.arange(n)[group]
-        machs = cs.tables[tid].mach
         inside = ((machs[None, :] > cs.mach_low[rows, None]) & (machs[None, :] < cs.mach_high[rows, None])
                   & where[rows, None])
         who, which = np.nonzero(inside)
@@ -68,19 +98,26 @@ def table_nodes_inside(phys, where):
     return np.concatenate(case or [np.zeros(0, np.intp)]), np.concatenate(mach or [np.zeros(0)])
 
 
-def nearest_table_node(phys, mach):
-    """The table Mach nearest ``mach`` per case (NaN for the other models)."""
+def nearest_kink_mach(phys, mach):
+    """The kink Mach (:func:`mach_kink_groups`) nearest ``mach`` per case (NaN for smooth models)."""
     node = np.full(len(phys.cases), np.nan)
-    for code, tid, group in phys.groups:
-        if code == MODEL_CODES["table"]:
-            machs = phys.cases.tables[tid].mach
-            node[group] = machs[np.argmin(np.abs(mach[group][:, None] - machs[None, :]), axis=1)]
+    for machs, group in mach_kink_groups(phys):
+        node[group] = machs[np.argmin(np.abs(mach[group][:, None] - machs[None, :]), axis=1)]
     return node
 
 
-def table_machs(phys):
-    """(Mach columns, group) of every thrust table of the set."""
-    return [(phys.cases.tables[tid].mach, group) for code, tid, group in phys.groups if code == MODEL_CODES["table"]]
+def smooth_cell(phys, mach, low, high):
+    """Per case, [low, high] narrowed to the cell between the kink Machs (:func:`mach_kink_groups`)
+    around ``mach``: where the thrust ceiling is smooth in Mach (unchanged for smooth models)."""
+    low, high = np.array(low, dtype=float), np.array(high, dtype=float)
+    for machs, group in mach_kink_groups(phys):
+        m = mach[group]
+        j = np.searchsorted(machs, m, side="right")
+        below = machs[np.clip(j - 1, 0, machs.size - 1)]
+        above = machs[np.clip(j, 0, machs.size - 1)]
+        low[group] = np.where((j > 0) & (below > low[group]), below, low[group])
+        high[group] = np.where((j < machs.size) & (above < high[group]), above, high[group])
+    return low, high
 
 
 def turbofan_branch_mach(phys, altitude_m):

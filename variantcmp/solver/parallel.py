@@ -92,13 +92,8 @@ def solve_ceilings(cases: CaseSet, chunk: int | None = None, processes: int | No
         # A best-speed case is some fifteen fixed-Mach solves: weigh the work, not the count.
         work = n + (BEST_SPEED_WORK - 1) * n_best
         processes = min(MAX_WORKERS, os.cpu_count() or 1) if work >= PARALLEL_MIN_CASES else 1
-    # Chunk bounds from n and chunk alone (a case's answer never depends on the process count),
-    # their number a multiple of the most workers used, so that workers get equal shares.
-    count = -(-n // max(1, chunk))
-    count = -(-count // MAX_WORKERS) * MAX_WORKERS if count > 1 else 1
-    processes = max(1, min(processes, count))
-    size = -(-n // count)
-    bounds = [(start, min(start + size, n)) for start in range(0, n, size)]
+    bounds = chunk_bounds(n, chunk)
+    processes = max(1, min(processes, len(bounds)))
     if processes > 1 and sys.platform.startswith("linux"):
         solved = _solve_in_processes(cases, bounds, processes)
         if solved is not None:
@@ -106,24 +101,42 @@ def solve_ceilings(cases: CaseSet, chunk: int | None = None, processes: int | No
     return Ceilings.concat([solve_chunk(cases.take(slice(a, b))) for a, b in bounds])
 
 
-def _shared_array(n: int, dtype) -> np.ndarray:
+def chunk_bounds(n: int, chunk: int) -> list[tuple[int, int]]:
+    """(start, stop) of each chunk of about ``chunk`` cases: from n and chunk alone (a case's answer
+    never depends on the process count), their number a multiple of the most workers used, so
+    that workers get equal shares."""
+    if n == 0:
+        return []
+    count = -(-n // max(1, chunk))
+    count = -(-count // MAX_WORKERS) * MAX_WORKERS if count > 1 else 1
+    size = -(-n // count)
+    return [(start, min(start + size, n)) for start in range(0, n, size)]
+
+
+def shared_array(n: int, dtype) -> np.ndarray:
     """An array on anonymous shared memory: what a forked child writes there, the parent sees."""
     dtype = np.dtype(dtype)
     return np.frombuffer(mmap.mmap(-1, max(1, n * dtype.itemsize)), dtype=dtype, count=n)
 
 
 def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | None:
-    """Chunks shared between this process and ``processes - 1`` forked workers, each taking the
-    next chunk as it finishes one.
+    """:func:`in_processes` for the ceilings; None if a chunk failed."""
+    out = Ceilings.allocate(len(cases), shared_array)
+    return out if in_processes(bounds, processes, out, lambda part: solve_chunk(cases.take(part))) else None
+
+
+def in_processes(bounds, processes: int, out, solve) -> bool:
+    """``out.put(part, solve(part))`` for every chunk ``part`` (a slice of ``bounds``), shared
+    between this process and ``processes - 1`` forked workers, each taking the next chunk as it
+    finishes one; ``out``'s arrays on shared memory (:func:`shared_array`).
 
     fork: the workers read the parent's case arrays in place and write their results straight
     into shared memory, so nothing is pickled either way (a process pool sending results back
     lost most of the second core, measured). This process works too: it is warm where a new
-    worker first pays for its memory, and one fork fewer. None if a chunk failed: the caller
+    worker first pays for its memory, and one fork fewer. False if a chunk failed: the caller
     then solves in this process, where a failure shows with its cause.
     """
     ctx = multiprocessing.get_context("fork")
-    out = Ceilings.allocate(len(cases), _shared_array)
     next_chunk = ctx.Value("q", 0)
 
     def work():
@@ -134,7 +147,7 @@ def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | No
             if k >= len(bounds):
                 break
             part = slice(*bounds[k])
-            out.put(part, solve_chunk(cases.take(part)))
+            out.put(part, solve(part))
 
     def child():
         try:
@@ -159,7 +172,7 @@ def _solve_in_processes(cases: CaseSet, bounds, processes: int) -> Ceilings | No
     finally:
         for w in workers:
             w.join()
-    return None if failed or any(w.exitcode != 0 for w in workers) else out
+    return not failed and all(w.exitcode == 0 for w in workers)
 
 
 def _keep_freed_memory():

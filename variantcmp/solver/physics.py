@@ -26,11 +26,18 @@ gathers a per-case array only when it is first read (an evaluation reads about a
 and takes its thrust-model groups from its parent's slices (an ascending index keeps them slices).
 
 Thrust models: :data:`THRUST_MODELS` maps each model code (:data:`variantcmp.cases.MODEL_CODES`)
-to its Mach-only terms, its lapse fraction and its static fraction, each a function of its own.
-Cases are grouped by model (and by table, for table engines); the solvers sort each chunk by
-:func:`group_key` so that every group is a slice (views, not gathers). A new model is one more
-entry (its evaluation point carries altitude, temperature, ISA temperature, pressure and Mach,
-so a model may use true airspeed too).
+to its Mach-only terms, its lapse fraction, its static fraction, the Mach points where its data
+put kinks and the flag for a Mach outside its data, each a function of its own. Cases are grouped
+by model (and by table, for table engines; by propeller, for propeller engines); the solvers sort
+each chunk by :func:`group_key` so that every group is a slice (views, not gathers). A new model is
+one more entry (its evaluation point carries altitude, temperature, ISA temperature, pressure and
+Mach, so a model may use true airspeed too, as the propeller's does).
+
+Propeller engines give shaft power, not thrust: T = eta(M) P / V with P = P0 (rho/rho0)^m
+(:func:`variantcmp.thrust.propeller_thrust_n`), V = M a at the day's temperature. Their
+``thrust_sls_n`` is n P0 / a0 (:func:`variantcmp.cases.reference_thrust_n`), so the fraction is
+eta(M)/M x (rho/rho0)^m x sqrt(T0/T): eta(M)/M is a Mach-only term, NaN outside the efficiency
+table (flagged PROPELLER_DATA_MACH, never extrapolated).
 
 Other questions use the same physics: a derived :class:`~variantcmp.cases.CaseSet` (other
 weights, deviations, thrust or CD0: ``dataclasses.replace``) gives a new ``ClimbPhysics``, and
@@ -44,21 +51,26 @@ from typing import Callable
 
 import numpy as np
 
-from ..aero import energy_share_factor, korn_coefficients, lock_wave_drag
-from ..atmosphere import G0, GAMMA, R_AIR, RHO0_KG_M3, isa_state, speed_of_sound_ms
+from ..aero import energy_share_factor, korn_coefficients, lock_wave_drag, pressure_climb_factor
+from ..atmosphere import G0, GAMMA, R_AIR, RHO0_KG_M3, T0_K, isa_state, speed_of_sound_ms
 from ..cases import FT, MODEL_CODES, CaseSet, CaseView
 from ..thrust import (density_lapse_from_logs, hot_day_factor, turbofan_lapse_from_terms, turbofan_mach_terms,
                       turbofan_sea_level_fraction)
 from .finders import golden_max, nan_as_lowest
+from .results import PROPELLER_DATA_MACH, THRUST_DATA_MACH
 
 CLIMB_MACH_ITERATIONS = 24  # golden section in Mach at a fixed altitude: range x 0.618^24, about 1e-5
-GROUP_BASE = 1_000_000  # group key = model code x GROUP_BASE + table id + 1 (table engines)
-TURBOFAN, TABLE = MODEL_CODES["turbofan"], MODEL_CODES["table"]
+# Group key = model code x GROUP_BASE + the model's data id + 1 (the table of a table engine, the
+# propeller of a propeller engine; 0 for the others).
+GROUP_BASE = 1_000_000
+TURBOFAN, TABLE, TURBOPROP = MODEL_CODES["turbofan"], MODEL_CODES["table"], MODEL_CODES["turboprop"]
 
 
 def group_key(cases) -> np.ndarray:
-    """Thrust-model group of each case: model code, and the table for table engines."""
-    return cases.model_code * GROUP_BASE + np.where(cases.model_code == TABLE, cases.table_id + 1, 0)
+    """Thrust-model group of each case: model code, and the table or propeller of its engine."""
+    data_id = np.where(cases.model_code == TABLE, cases.table_id + 1,
+                       np.where(cases.model_code == TURBOPROP, cases.propeller_id + 1, 0))
+    return cases.model_code * GROUP_BASE + data_id
 
 
 def _same(a):
@@ -98,16 +110,24 @@ class Point:
 class ThrustModel:
     """How :class:`ClimbPhysics` evaluates one thrust model on its group of cases.
 
-    ``fraction(phys, idx, table_id, at, case)``: F / F_SLS for the group's cases ``idx`` at the
+    ``fraction(phys, idx, data_id, at, case)``: F / F_SLS for the group's cases ``idx`` at the
     :class:`Point` ``at`` (``case(a)``: a per-case array for the group, as a column when ``at`` is
-    2-D). ``mach_terms(phys, m)``: the model's Mach-only terms for every case (full length, so that
-    a subset can take them), cached with the Mach. ``static_fraction(cases)``: the fraction at sea
-    level, static, ISA, which the catalogue's static thrust is (the thrust is divided by it).
+    2-D; ``data_id`` the group's table or propeller). ``mach_terms(phys, m)``: the model's Mach-only
+    terms for every case (full length, so that a subset can take them), cached with the Mach.
+    ``static_fraction(cases)``: the fraction at sea level, static, ISA, which the catalogue's static
+    thrust is (the thrust is divided by it). ``kink_machs(cases, data_id)``: the Mach points where
+    the group's data interpolate linearly (thrust has a kink there; none: smooth in Mach).
+    ``one_hump(cases, data_id)``: whether the thrust ceiling has one hump over speed in spite of
+    those kinks (all of them concave; None: the model cannot say, several humps are possible).
+    ``data_mach_flag``: the flag of a Mach outside the model's data.
     """
 
     fraction: Callable
     mach_terms: Callable | None = None
     static_fraction: Callable | None = None
+    kink_machs: Callable | None = None
+    one_hump: Callable | None = None
+    data_mach_flag: int = THRUST_DATA_MACH
 
 
 def _seen_temperature(phys, idx, at, case):
@@ -143,13 +163,41 @@ def _table_mach_terms(phys, m):
     return j, ty
 
 
+def _turboprop(phys, idx, pid, at, case):
+    # eta(M)/M x (rho/rho0)^m x sqrt(T0/T): eta P / V over n P0 / a0 (see the module docstring).
+    frac = _density_lapse(phys, idx, pid, at, case)
+    frac *= case(at.terms[TURBOPROP])
+    frac *= np.sqrt(T0_K / at.t[idx])
+    return frac
+
+
+def _turboprop_mach_terms(phys, m):
+    # eta(M) / M per case (NaN outside an efficiency table), filled group by group.
+    out = np.full(m.shape, np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        for code, pid, idx in phys.groups:
+            if code == TURBOPROP:
+                out[idx] = phys.cases.propellers[pid](m[idx]) / m[idx]
+    return out
+
+
 #: Thrust model code -> how it is evaluated (sources in :mod:`variantcmp.thrust`).
 THRUST_MODELS: dict[int, ThrustModel] = {
     MODEL_CODES["density-lapse"]: ThrustModel(_density_lapse),
     MODEL_CODES["turbofan"]: ThrustModel(_turbofan, lambda phys, m: turbofan_mach_terms(m),
                                          lambda cs: turbofan_sea_level_fraction(cs.throttle_ratio)),
-    MODEL_CODES["table"]: ThrustModel(_table, _table_mach_terms),
+    MODEL_CODES["table"]: ThrustModel(_table, _table_mach_terms, kink_machs=lambda cs, tid: cs.tables[tid].mach),
+    TURBOPROP: ThrustModel(_turboprop, _turboprop_mach_terms, kink_machs=lambda cs, pid: cs.propellers[pid].mach,
+                           one_hump=lambda cs, pid: cs.propellers[pid].concave, data_mach_flag=PROPELLER_DATA_MACH),
 }
+
+
+def data_mach_flags(model_code) -> np.ndarray:
+    """Per case, the flag of a Mach outside its thrust model's data (:attr:`ThrustModel.data_mach_flag`)."""
+    flags = np.full(np.shape(model_code), THRUST_DATA_MACH, dtype=np.int32)
+    for code, model in THRUST_MODELS.items():
+        flags[model_code == code] = model.data_mach_flag
+    return flags
 
 
 class ClimbPhysics:
@@ -267,14 +315,16 @@ class ClimbPhysics:
         return thrust
 
     def _drag(self, at: Point):
-        cs, col = self.cases, at.col
-        q_s = col(at.terms["qs_per_p"]) * at.p
-        cl = col(self.w_n) / q_s
+        return self._polar_drag(at.col(at.terms["qs_per_p"]) * at.p, at.m, at.col(self.w_n), at.col)
+
+    def _polar_drag(self, q_s, m, w_n, col):
+        cs = self.cases
+        cl = w_n / q_s
         cd = cl * cl
         cd *= col(cs.k)
         cd += col(cs.cd0)
         if self.has_wave:
-            cd += lock_wave_drag(at.m, col(self.m_crit0) - col(self.m_crit_slope) * cl)
+            cd += lock_wave_drag(m, col(self.m_crit0) - col(self.m_crit_slope) * cl)
         return q_s * cd
 
     def available_thrust_n(self, altitude_m, mach=None):
@@ -285,6 +335,26 @@ class ClimbPhysics:
         """Drag (N) in level flight at 1 g: q S (CD0 + K CL^2 + CDw), CL = W / (q S) (Anderson,
         *Aircraft Performance and Design*, eq. 2.47 polar; Korn/Lock wave drag, :mod:`variantcmp.aero`)."""
         return self._drag(Point(self, altitude_m, mach))
+
+    def level_drag_n(self, q_s, mach, weight_n):
+        """Drag (N) in level flight at 1 g at other weights than the cases' own, from q S (N) at
+        each case's point (:meth:`level_terms`): the polar of :meth:`drag_n`. ``q_s`` is (N,) or
+        (N, L) with ``mach`` and ``weight_n`` per case or of its shape."""
+        q_s = np.asarray(q_s, dtype=float)
+        col = _column if q_s.ndim == 2 else _same
+        m, w = (np.asarray(x, dtype=float) for x in (mach, weight_n))
+        return self._polar_drag(q_s, col(m) if m.ndim < q_s.ndim else m, col(w) if w.ndim < q_s.ndim else w, col)
+
+    def level_terms(self, altitude_m, mach=None):
+        """The climb equation's terms that do not depend on the weight, at a point: the thrust
+        F (N), q S (N) and the climb speed factor sf = V (T_ISA/T) f (m/s), so that
+        dh_p/dt = (F - D(W)) sf / W (the equation of :meth:`climb_rate_ms`, with
+        :func:`variantcmp.aero.pressure_climb_factor`). For questions about the weight: the
+        heaviest weight that holds a level."""
+        at = Point(self, altitude_m, mach)
+        q_s = at.col(at.terms["qs_per_p"]) * at.p
+        speed_factor = at.m * speed_of_sound_ms(at.t) * pressure_climb_factor(at.m, at.t, at.t_isa, at.lapse)
+        return self._thrust(at), q_s, speed_factor
 
     def climb_rate_ms(self, altitude_m, mach=None):
         """Residual rate of climb (m/s of pressure altitude) at constant Mach.
@@ -308,6 +378,15 @@ class ClimbPhysics:
         """Climb rate minus the case's required residual climb (m/s); >= 0: the case climbs."""
         col = (lambda a: a[:, None]) if np.ndim(altitude_m) == 2 else (lambda a: a)
         return self.climb_rate_ms(altitude_m, mach) - col(self.cases.climb_ms)
+
+    def propeller_efficiency(self, mach=None):
+        """Propeller efficiency per case at its Mach (NaN for jets and outside an efficiency table)."""
+        m = np.asarray(self.cases.mach if mach is None else mach, dtype=float)
+        eta = np.full(m.shape, np.nan)
+        for code, pid, idx in self.groups:
+            if code == TURBOPROP:
+                eta[idx] = self.cases.propellers[pid](m[idx])
+        return eta
 
     def excess_family(self, mach) -> "ExcessAtMach":
         """The excess climb rate at fixed Mach as a function of altitude: a family for the root finders."""

@@ -24,6 +24,7 @@ BELOW_VMO_FLOOR = 32  # at this Mach the ceiling lies where CAS would exceed VMO
 NO_COMMON_ALTITUDE = 64  # thrust only works above the ceiling the other limits allow
 ABOVE_MODEL_TOP = 128  # no limit binds below the top of the atmosphere model
 BELOW_FLOOR = 256  # the limits cross below -2,000 ft
+PROPELLER_DATA_MACH = 512  # Mach outside the propeller efficiency table
 #: Flags of a speed that cannot be flown at all (no maximum altitude there).
 UNFLYABLE = ABOVE_MMO | BELOW_VMO_FLOOR | NO_COMMON_ALTITUDE | BELOW_FLOOR
 
@@ -36,7 +37,7 @@ class Ceilings:
     highest maximum altitude, and ``max_altitude_m``, ``limit``, ``flags``, ``vmo_floor_m`` and
     ``co_limit`` are the fixed-Mach answer there (solving at ``mach`` gives them again); each
     limit's column (``thrust_m``, ``buffet_m``, ``stall_m``, ...) is that limit's own best over
-    the speed range, which may lie at another speed.
+    the speed range, which may lie at another speed (``thrust_mach`` for the thrust ceiling's).
     """
 
     thrust_m: np.ndarray
@@ -50,6 +51,7 @@ class Ceilings:
     flags: np.ndarray
     vmo_floor_m: np.ndarray  # lowest altitude where the Mach stays within VMO (-inf: no VMO)
     co_limit: np.ndarray  # a second limit binding within CO_LIMIT_M of the first (band closure), -1 none
+    thrust_mach: np.ndarray  # the speed of ``thrust_m`` (best speed: of the thrust ceiling's own best; NaN: none)
 
     @classmethod
     def allocate(cls, n: int, make=np.empty) -> "Ceilings":
@@ -62,7 +64,8 @@ class Ceilings:
         """Ceilings of cases not solved at a speed: nothing known (NaN), no flags."""
         nan = np.full(n, np.nan)
         return cls(nan.copy(), nan.copy(), nan.copy(), nan.copy(), nan.copy(), nan.copy(), np.array(mach, float),
-                   np.full(n, -1, np.int8), np.zeros(n, np.int32), np.full(n, -np.inf), np.full(n, -1, np.int8))
+                   np.full(n, -1, np.int8), np.zeros(n, np.int32), np.full(n, -np.inf), np.full(n, -1, np.int8),
+                   np.array(mach, float))
 
     def take(self, index) -> "Ceilings":
         return Ceilings(**{n: getattr(self, n)[index] for n in self.__dataclass_fields__})

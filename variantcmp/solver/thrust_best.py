@@ -1,7 +1,8 @@
 """Best speed, stage 2: the thrust ceiling's own best speed (the maximum of T(M) over Mach).
 
 T(M) is the fixed-Mach thrust ceiling. It is smooth in Mach except where the data put kinks
-(:mod:`variantcmp.solver.kinks`): thrust-table Mach columns, the turbofan lapse's branch change,
+(:mod:`variantcmp.solver.kinks`): thrust-table Mach columns and a propeller efficiency table's
+Machs (both "table Machs" below), the turbofan lapse's branch change,
 and layer bases, where over a range of speeds T(M) *is* the base (a flat top: the climb rate
 drops across it). The stage starts from the coarse grid (:mod:`variantcmp.solver.coarse`):
 
@@ -18,7 +19,7 @@ drops across it). The stage starts from the coarse grid (:mod:`variantcmp.solver
    a kink, between grid speeds); where the table Mach nearest the best lies inside the first
    bracket, the cell on its far side is refined too, if some speed there may climb at the best
    ceiling found; where the best sits on a layer base (a flat top), the speed that climbs best
-   just above the base is solved.
+   just above the base is solved, and from there the joint search in the layer above.
 4. *Polish*: the thrust ceiling at the best speed found, solved again to the full root tolerance
    in a window of a few centimetres (on a flat top, 1e-6 m just below the base, where the fixed-Mach
    root finder puts such roots).
@@ -41,8 +42,8 @@ from ..atmosphere import LAYER_BASE_M
 from .coarse import GRID_TOL_M, Grid
 from .finders import brent_max, nan_as_lowest, newton_secant_root, parabola_peak
 from .fixed_mach import fixed_mach_ceilings
-from .kinks import (FLAT_TOP_BASES_M, PLATEAU_M, layer_base_near_m, nearest_table_node, on_layer_base, table_machs,
-                    table_nodes_inside, turbofan_branch_mach)
+from .kinks import (FLAT_TOP_BASES_M, PLATEAU_M, kink_nodes_inside, layer_base_near_m, mach_kink_groups,
+                    nearest_kink_mach, on_layer_base, smooth_cell, turbofan_branch_mach)
 from .physics import ClimbPhysics
 from .results import THRUST_DATA_TOP, Ceilings
 from .thrust_ceiling import WARM_HALF_WIDTH_M, thrust_ceiling_m
@@ -268,18 +269,18 @@ def kink_stage(phys: ClimbPhysics, thrust_at: ThrustAtSpeed, grid: Grid, m_best,
     beyond = np.zeros(n, dtype=bool)
     level = h_best - 2.0 * SEARCH_TOL_M
     known = np.isfinite(h_best)
-    node_case, node_mach = table_nodes_inside(phys, known)
+    node_case, node_mach = kink_nodes_inside(phys, known)
     branch = turbofan_branch_mach(phys, np.where(known, h_best, np.nan))
     turbofan = np.flatnonzero(np.isfinite(branch))
     point_case, point_mach = np.concatenate([node_case, turbofan]), np.concatenate([node_mach, branch[turbofan]])
     order = np.argsort(point_case, kind="stable")  # cases in order keep the subsets' model groups slices
     point_case, point_mach = point_case[order], point_mach[order]
-    tables = table_machs(phys)
+    tables = mach_kink_groups(phys, several_humps=True)  # a far side can rise again (not under a concave table)
     who, probe = np.zeros(0, np.intp), np.zeros((0, 1))
     if tables:
         i = np.argmax(nan_as_lowest(grid.thrust_m), axis=1)
         lo, hi = grid.around(i)
-        node = nearest_table_node(phys, m_best)
+        node = nearest_kink_mach(phys, m_best)
         with np.errstate(invalid="ignore"):
             who = np.flatnonzero((node > lo + BEST_MACH_TOL) & (node < hi - BEST_MACH_TOL) & known)
         side = np.where(np.abs(m_best - node) <= BEST_MACH_TOL, grid.mach[rows, i], m_best)[who]
@@ -369,6 +370,27 @@ def layer_base_stage(phys: ClimbPhysics, m_best, h_best, where=None):
                                 SEARCH_TOL_M)[0]
         better = np.flatnonzero(nan_as_lowest(h_up) > h_best[on[up]])
         m_best[on[up[better]]], h_best[on[up[better]]] = m_star[up[better]], h_up[better]
+        _above_the_base(phys, on[up[better]], m_best, h_best)
+
+
+def _above_the_base(phys: ClimbPhysics, rows, m_best, h_best):
+    """The cases ``rows`` whose best now lies just above a layer base (in place): the joint search
+    from there, in the layer above, in the smooth cell around the speed found, its answer kept
+    where higher. The speed that climbs best at the base is near the one whose ceiling is highest
+    above it, not at it: 2 ft low without this on a turboprop whose ceiling is 400 ft above the
+    tropopause (tests/test_turboprop.py, the minimum-power closed form)."""
+    if rows.size == 0:
+        return
+    sub = phys.subset(rows)
+    cs = sub.cases
+    m0, h0 = m_best[rows], h_best[rows]
+    low, high = smooth_cell(sub, m0, np.maximum(m0 - JOINT_MAX_MACH_STEP, cs.mach_low),
+                            np.minimum(m0 + JOINT_MAX_MACH_STEP, cs.mach_high))
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        slope = sub.excess(h0 + SLOPE_STEP_M, m0) / SLOPE_STEP_M
+    m, h = joint_search(sub, m0, h0, low, high, slope)
+    better = np.flatnonzero(nan_as_lowest(h) > h0)
+    m_best[rows[better]], h_best[rows[better]] = m[better], h[better]
 
 
 def thrust_best_stage(phys: ClimbPhysics, grid: Grid) -> ThrustBest:

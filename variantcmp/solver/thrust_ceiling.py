@@ -27,7 +27,8 @@ step in speed no higher hump appears from nothing.
 
 Guarantees: a finite result has E >= 0 just below it and E < 0 just above (to the tolerance) and
 nothing climbs above it up to CLmax (table engines: at the probes); NaN with CANNOT_CLIMB where no
-level from the floor up climbs, THRUST_DATA_MACH where the Mach lies outside the thrust table,
+level from the floor up climbs, THRUST_DATA_MACH where the Mach lies outside the thrust table
+(PROPELLER_DATA_MACH: outside the propeller efficiency table),
 THRUST_DATA_TOP where the case still climbs at the top of its thrust table; +inf above the model top.
 """
 
@@ -40,8 +41,8 @@ from ..atmosphere import MODEL_TOP_M, isa_state, pressure_altitude_m, speed_of_s
 from ..cases import FLOOR_M, FT, MODEL_CODES
 from .finders import brent_max, illinois_root, nan_as_lowest
 from .kinks import ALTITUDE_BREAKS_M
-from .physics import ClimbPhysics
-from .results import CANNOT_CLIMB, THRUST_DATA_MACH, THRUST_DATA_TOP
+from .physics import ClimbPhysics, data_mach_flags
+from .results import CANNOT_CLIMB, THRUST_DATA_TOP
 
 #: Coarse altitude scan (m) bracketing the thrust ceiling: dense where aircraft fly.
 SCAN_LEVELS_M = np.concatenate([
@@ -232,7 +233,7 @@ def _scanned_thrust_ceiling_m(phys: ClimbPhysics, mach, tol_m=ROOT_TOL_M):
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         e = phys.excess(levels, mach)
     unknown = np.isnan(e).all(axis=1)
-    flags[unknown] |= THRUST_DATA_MACH
+    flags[unknown] |= data_mach_flags(cs.model_code[unknown])
     ok = e >= 0.0
     any_ok = ok.any(axis=1)
     last = levels.shape[1] - 1

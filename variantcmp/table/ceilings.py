@@ -66,6 +66,11 @@ def case_notes(cases, res, climb_fpm, mtow_kg, floor_kg) -> list[str]:
                          + ("" if best[i] else f" at any altitude from {lowest} up"))
         if f & s.THRUST_DATA_MACH:
             parts.append(f"M{cases.mach[i]:.3f} outside the thrust table" if not best[i] else "no speed in the thrust table")
+        if f & s.PROPELLER_DATA_MACH:
+            low, high = cases.propellers[cases.propeller_id[i]].mach_range
+            data = f"efficiency data M{low:.3f}-{high:.3f}"
+            parts.append(f"M{cases.mach[i]:.3f} outside the propeller efficiency table ({data})" if not best[i]
+                         else f"no speed in the propeller efficiency table ({data})")
         if f & s.THRUST_DATA_TOP:
             parts.append(f"still climbing at the thrust table top ({cases.top_m[i] / FT:,.0f} ft)")
         if f & s.NO_BUFFET_AT_MACH:
