@@ -53,8 +53,27 @@ def test_screen_json_is_data_only(capsys):
     assert len(rows) == 2 * 2 * 2 and {r["variant"] for r in rows} == {"v88"}
 
 
+def test_screen_with_a_target_gives_both_heaviest_weights(capsys):
+    argv = ("screen", "--baseline", "ossel-86", "--variant", "v104", "--weight", "95%mtow,100%mtow", "--isa=0,15",
+            "--target", "FL370")
+    status, out, err = run(capsys, *argv, "--format", "csv")
+    assert status == 0, err
+    frame = csv(out)
+    assert (frame["target_ft"] == 37_000).all()
+    # The csv's difference is its two weights' at the export precision (0.1 kg).
+    assert (frame["target_weight_delta_kg"] - (frame["target_weight_kg"] - frame["baseline_target_weight_kg"])
+            ).abs().max() <= 0.2
+    status, out, err = run(capsys, *argv)
+    assert status == 0
+    assert "ΔW" in out and "Mean ΔW" in out and "heaviest weight that reaches FL370" in out
+    # The table's tonnes are the csv's weights rounded down to 0.1 t.
+    first = frame.row(0, named=True)
+    assert f"{int(first['target_weight_kg'] // 100) / 10:.1f}" in out.splitlines()[4]
+
+
 @pytest.mark.parametrize("argv, words", [
     (["screen"], "required: --baseline"),
+    (["screen", "--baseline", "ossel-86", "--target", "FL3700"], "--target"),
     (["screen", "--baseline", "osel-86"], "unknown engine option 'osel-86'"),
     (["screen", "--baseline", "ossel-86", "--variant", "v70"], "v70 does not offer ossel-86"),
     (["spread", "--vary", "cd0=2"], "give cd0's relative standard deviation with %"),

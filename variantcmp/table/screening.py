@@ -3,7 +3,9 @@ over the weight x ISA grid, and a summary per option.
 
 No physics here: one ceilings table for the variants offering the baseline (one solve), then a
 polars join of each option's rows with the baseline's rows at the same variant, weight, ISA
-deviation and climb criterion.
+deviation and climb criterion. With a target level, the heaviest weight for it
+(:func:`~variantcmp.table.inverse.heaviest_table`, one solve) joins the same way at the same
+variant, ISA deviation and climb: each option's, the baseline's and the difference.
 """
 
 from __future__ import annotations
@@ -15,6 +17,7 @@ import polars as pl
 from ..units import OptionError, WeightSpec, format_isa_dev, shown
 from .ceilings import ceilings_table
 from .conditions import Conditions
+from .inverse import heaviest_table
 
 #: A difference under this is no difference (the solver's stated accuracy is about 0.1 ft at the
 #: best speed, and the tables show whole feet).
@@ -26,6 +29,11 @@ DEFAULT_ISA_DEVS_C = (0.0, 5.0, 10.0, 15.0, 20.0, 25.0, 30.0)
 KEYS = ["variant", "weight_kg", "isa_dev_c", "climb_fpm"]
 #: Outcome of an option at a grid point against the baseline.
 GAINS, LOSES, TIES = "gains", "loses", "ties"
+#: The heaviest-weight columns a target adds (the option's, the baseline's, the difference, the
+#: limits that give them and why one is missing).
+TARGET_WEIGHT_COLUMNS = ("target_ft", "target_weight_kg", "baseline_target_weight_kg", "target_weight_delta_kg",
+                         "target_weight_limit", "baseline_target_weight_limit", "target_weight_reason",
+                         "baseline_target_weight_reason")
 
 
 def screening_grid(conditions: Conditions) -> Conditions:
@@ -95,12 +103,34 @@ def compare_options(frame: pl.DataFrame, baseline: str) -> pl.DataFrame:
                     "limit_changed", "outcome", "note", "baseline_note", "over_mtow", "below_empty_weight"))
 
 
+def compare_heaviest(frame: pl.DataFrame, heaviest: pl.DataFrame, baseline: str) -> pl.DataFrame:
+    """The screening rows ``frame`` with the heaviest weight for the target (a
+    :func:`~variantcmp.table.inverse.heaviest_table` of one target) of each row's option and of the
+    baseline at the same variant, ISA deviation and climb, and the difference (option - baseline;
+    null where either has none). A polars join, no physics."""
+    keys = ["variant", "isa_dev_c", "climb_fpm"]
+    picked = heaviest.select(*keys, "engine", "target_ft", pl.col("max_weight_kg").alias("target_weight_kg"),
+                             pl.col("limit").alias("target_weight_limit"),
+                             pl.col("reason").alias("target_weight_reason"))
+    base = picked.filter(pl.col("engine") == baseline).select(
+        *keys, *(pl.col(c).alias(f"baseline_{c}") for c in ("target_weight_kg", "target_weight_limit",
+                                                            "target_weight_reason")))
+    return (frame.join(picked, on=[*keys, "engine"], how="left", maintain_order="left")
+            .join(base, on=keys, how="left", maintain_order="left")
+            .with_columns(target_weight_delta_kg=pl.col("target_weight_kg") - pl.col("baseline_target_weight_kg"))
+            .select(*frame.columns, *TARGET_WEIGHT_COLUMNS))
+
+
 def screening_table(catalogue, conditions: Conditions, baseline: str) -> pl.DataFrame:
     """:func:`compare_options` of the ceilings table of the variants offering ``baseline`` beside
-    another option (see :func:`screened_variants`), solved once."""
+    another option (see :func:`screened_variants`), solved once; with a target level
+    (``conditions.target_fl_ft``) also :func:`compare_heaviest` of their heaviest weights for it."""
     baseline, screened, _ = screened_variants(catalogue, conditions, baseline)
-    return compare_options(ceilings_table(catalogue, replace(conditions, variants=tuple(screened), engines=())),
-                           baseline)
+    conditions = replace(conditions, variants=tuple(screened), engines=())
+    frame = compare_options(ceilings_table(catalogue, conditions), baseline)
+    if conditions.target_fl_ft is None:
+        return frame
+    return compare_heaviest(frame, heaviest_table(catalogue, conditions, (conditions.target_fl_ft,)), baseline)
 
 
 def _span(values: list[float], unit: str) -> str:
@@ -126,7 +156,8 @@ def _flip_text(rows: list[dict]) -> str:
 def screening_summary(frame: pl.DataFrame) -> pl.DataFrame:
     """Per variant x option: grid points, mean, worst and best difference (ft, over the points where
     both have an altitude), the shares of points it gains, ties and loses (%), how many points
-    the binding limit changes at, and where (``limit_flips``)."""
+    the binding limit changes at, and where (``limit_flips``); with a target, the mean difference
+    of the heaviest weight for it (kg, over the days where both have one)."""
     counted = pl.col("outcome").is_not_null().sum()
     share = lambda outcome: pl.when(counted > 0).then(100.0 * (pl.col("outcome") == outcome).sum() / counted)  # noqa: E731
     summary = (frame.group_by("variant", "engine", "baseline", maintain_order=True).agg(
@@ -136,6 +167,8 @@ def screening_summary(frame: pl.DataFrame) -> pl.DataFrame:
         best_delta_ft=pl.col("delta_ft").max(),
         gains_pct=share(GAINS), ties_pct=share(TIES), loses_pct=share(LOSES),
         limit_changes=pl.col("limit_changed").sum(),
+        *([] if "target_weight_delta_kg" not in frame.columns else [
+            pl.col("target_weight_delta_kg").mean().alias("mean_target_weight_delta_kg")]),
     ))
     flips = {(v, e): _flip_text(g.to_dicts()) for (v, e), g in
              frame.filter(pl.col("limit_changed")).group_by("variant", "engine", maintain_order=True)}
