@@ -8,11 +8,12 @@ a key press is printed (run with -s), never asserted.
 from __future__ import annotations
 
 import re
+from dataclasses import replace
 import time
 
 import polars as pl
 
-from test_app import SIZE, column_index, press_settle, run, settle, table_rows
+from test_app import SIZE, column_index, press_settle, replace_text, run, settle, table_rows
 from variantcmp.app import VariantCmpApp
 from variantcmp.app.compare import CompareScreen
 from variantcmp.app.screening_screen import ScreeningScreen
@@ -158,4 +159,42 @@ def test_without_colour_the_matrix_reads_by_its_signs(monkeypatch):
             text = app.screen.query_one("#matrix").content
             assert not [span for span in text.spans if "green" in str(span.style) or "red" in str(span.style)]
             assert re.search(r"[+-]\d+[·░▒▓█]", text.plain)
+    run(body)
+
+
+def test_with_a_target_each_matrix_ends_with_the_heaviest_weights_difference():
+    # The compare screen's target FL370 gives each option's matrix a ΔW row: per day, the option's
+    # heaviest weight for FL370 less the baseline's in t, as screening_table gives it.
+    demo = load_catalogue(demo_catalogue_path())
+
+    async def body():
+        app = VariantCmpApp(None)
+        async with app.run_test(size=(100, 40)) as pilot:
+            await settle(app, pilot)
+            app.screen.query_one("#field-target").focus()
+            await replace_text(pilot, "FL370")
+            await press_settle(app, pilot, "enter")  # back to the table
+            await press_settle(app, pilot, "d")
+            screen = app.screen
+            rows = screening_table(demo, replace(screening_grid(app.conditions), engines=()), screen.baseline)
+            shown = [line for line in screen.query_one("#matrix").content.plain.splitlines()
+                     if line.startswith("  ΔW t")]
+            options = rows.select("variant", "engine").unique(maintain_order=True)
+            assert len(shown) == options.height and "heaviest weight for FL370" in shown[0]
+            by_day = {(r["variant"], r["engine"], r["isa_dev_c"]): r["target_weight_delta_kg"]
+                      for r in rows.iter_rows(named=True)}
+            days = sorted(rows["isa_dev_c"].unique())
+            for line in shown:
+                cells = [line[7 + 7 * i:13 + 7 * i].strip() for i in range(len(days))]
+                assert any(c not in ("=", "—") for c in cells)
+                for cell in cells:
+                    assert cell in ("=", "—", "✓", "✗") or re.fullmatch(r"[+-]\d+\.\d", cell)
+            first = options.row(0)
+            expected = [by_day[(*first, d)] for d in days]
+            # The first option shown is the best by mean Δ, so look its block up by title.
+            text = screen.query_one("#matrix").content.plain.split("\n\n")
+            block = next(b for b in text if b.startswith(f"{first[0]} · {first[1]} "))
+            line = next(row for row in block.splitlines() if row.startswith("  ΔW t"))
+            cells = [line[7 + 7 * i:13 + 7 * i].strip() for i in range(len(days))]
+            assert cells == ["=" if d is not None and abs(d) < 50 else f"{d / 1000:+.1f}" for d in expected]
     run(body)

@@ -1,7 +1,8 @@
 """The screening view: every engine option of each variant against a baseline option over the
 weight x ISA grid, one matrix per option, sortable, the baseline picked with a key.
 
-The ceilings of the grid are solved once per catalogue and conditions (in a worker); a new
+The ceilings of the grid are solved once per catalogue and conditions (in a worker), with the
+heaviest weight for the compare screen's target level on each day where it has one; a new
 baseline or sort order is a polars join and a redraw on the UI thread (no solver call).
 """
 
@@ -19,8 +20,9 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import ProgressBar, Static
 
-from variantcmp.table import ceilings_table
-from variantcmp.table.screening import baseline_candidates, compare_options, screening_grid, screening_summary
+from variantcmp.table import ceilings_table, heaviest_table
+from variantcmp.table.screening import (baseline_candidates, compare_heaviest, compare_options, screening_grid,
+                                        screening_summary)
 from variantcmp.units import OptionError, format_isa_dev
 
 from .jobs import LatestJob
@@ -31,15 +33,17 @@ from .sorting import SortCycle
 from .widgets import CautionBanner, FittingFooter
 
 
-def grid_ceilings(catalogue, conditions) -> tuple[pl.DataFrame | None, str | None, float]:
-    """The ceilings of the screening grid (in the worker): (table, error message, ms)."""
+def grid_ceilings(catalogue, conditions, target_ft: float | None):
+    """The ceilings of the screening grid and, with a target, the heaviest weights for it (in the
+    worker): (table, heaviest table or None, error message, ms)."""
     started = perf_counter()
     try:
-        return ceilings_table(catalogue, conditions), None, (perf_counter() - started) * 1000.0
+        heaviest = None if target_ft is None else heaviest_table(catalogue, conditions, (target_ft,))
+        return ceilings_table(catalogue, conditions), heaviest, None, (perf_counter() - started) * 1000.0
     except OptionError as exc:
-        return None, str(exc), 0.0
+        return None, None, str(exc), 0.0
     except Exception as exc:  # the app must not die: say what went wrong in place
-        return None, f"could not compute the screening grid ({type(exc).__name__}: {exc})", 0.0
+        return None, None, f"could not compute the screening grid ({type(exc).__name__}: {exc})", 0.0
 
 
 class ScreeningScreen(SortCycle, BackToCompare, HoldsKeys, Screen):
@@ -64,6 +68,7 @@ class ScreeningScreen(SortCycle, BackToCompare, HoldsKeys, Screen):
         self.baseline: str | None = None
         self.sort_key, self.descending = self.FIRST_SORT, True  # mean difference, best first
         self.ceilings: pl.DataFrame | None = None  # the grid's ceilings table
+        self.heaviest: pl.DataFrame | None = None  # the heaviest weights for the target, where one is set
         self.rows: pl.DataFrame | None = None  # the screening rows against the baseline
         self.conditions = None  # of the grid on show
         self.error: str | None = None
@@ -101,8 +106,9 @@ class ScreeningScreen(SortCycle, BackToCompare, HoldsKeys, Screen):
         if app.catalogue is None or app.conditions is None:
             self.show_message("No catalogue loaded: open one on the compare screen (esc, then o).")
             return
+        target = app.conditions.target_fl_ft
         grid = replace(screening_grid(app.conditions), engines=(), target_fl_ft=None)
-        key = (id(app.catalogue), grid)
+        key = (id(app.catalogue), grid, target)
         if key == self._key:
             if self.ceilings is not None and self.adopt_baseline():
                 self.render_matrix()
@@ -111,19 +117,19 @@ class ScreeningScreen(SortCycle, BackToCompare, HoldsKeys, Screen):
         self._generation += 1
         self.query_one("#screen-busy", ProgressBar).set_class(True, "-shown")
         self.set_status("solving the grid …")
-        self._job.request(partial(grid_ceilings, app.catalogue, grid),
+        self._job.request(partial(grid_ceilings, app.catalogue, grid, target),
                           partial(self._deliver, self._generation, app.catalogue, grid))
 
     def _deliver(self, generation: int, catalogue, grid, outcome) -> None:
         if generation != self._generation or not self.is_attached:
             return
-        frame, error, ms = outcome
+        frame, heaviest, error, ms = outcome
         self.query_one("#screen-busy", ProgressBar).set_class(False, "-shown")
         if error is not None:
             self._key = None
             self.show_message(f"✗ {error}")
             return
-        self.ceilings, self.conditions, self.compute_ms = frame, grid, ms
+        self.ceilings, self.heaviest, self.conditions, self.compute_ms = frame, heaviest, grid, ms
         self.adopt_baseline()
         self.render_matrix()
 
@@ -152,6 +158,8 @@ class ScreeningScreen(SortCycle, BackToCompare, HoldsKeys, Screen):
             self.show_message("No variant offers two engine options: nothing to compare.")
             return
         self.rows = compare_options(self.ceilings, self.baseline)
+        if self.heaviest is not None:
+            self.rows = compare_heaviest(self.rows, self.heaviest, self.baseline)
         summary = screening_summary(self.rows)
         options = sorted_options(self.rows, summary, self.sort_key, self.descending)
         by_pct = not all(w.unit == "kg" for w in self.conditions.weights)

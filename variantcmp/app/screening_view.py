@@ -16,7 +16,7 @@ import polars as pl
 from rich.text import Text
 
 from variantcmp.table.screening import GAINS, LOSES, TIE_FT
-from variantcmp.units import format_isa_dev
+from variantcmp.units import format_flight_level, format_isa_dev
 
 from .view import LIMIT_GLYPHS, NONE
 
@@ -121,8 +121,42 @@ def block(option: Option, by_pct: bool, colour: bool = True) -> Text:
             if i + 1 < len(days):
                 text.append(GAP)
         text.append("\n")
+    if "target_weight_delta_kg" in rows.columns:
+        text.append_text(_weight_row(rows, days, s, colour))
     flips = s["limit_flips"]
     text.append(f"  limit flips: {flips}\n" if flips else "  limit flips: none\n", style="italic")
+    return text
+
+
+def weight_cell(row: dict) -> tuple[str, str | None]:
+    """The difference of the heaviest weight for the target (t, one decimal) and its colour;
+    ✓ / ✗ where only the option / only the baseline has one, — where neither."""
+    delta = row["target_weight_delta_kg"]
+    if delta is None:
+        mine, theirs = row["target_weight_kg"] is not None, row["baseline_target_weight_kg"] is not None
+        sign = ONLY_OPTION if mine else ONLY_BASELINE if theirs else NONE
+        return f"{sign:>{CELL_WIDTH}}", "green" if mine else "red" if theirs else None
+    tonnes = delta / 1000.0
+    if abs(tonnes) < 0.05:
+        return f"{TIE_MARK:>{CELL_WIDTH}}", None
+    return f"{tonnes:>+{CELL_WIDTH}.1f}", "green" if delta > 0 else "red"
+
+
+def _weight_row(rows: pl.DataFrame, days: list, summary: dict, colour: bool) -> Text:
+    """The row under the matrix: per day, the option's heaviest weight for the target less the
+    baseline's (t), whatever the row's weight."""
+    level = rows["target_ft"][0]
+    text = Text()
+    text.append(f"{'ΔW t':>6} ", style="bold")
+    by_day = {r["isa_dev_c"]: r for r in rows.iter_rows(named=True)}
+    for i, day in enumerate(days):
+        shown, style = weight_cell(by_day[day])
+        text.append(shown, style=style if colour else None)
+        if i + 1 < len(days):
+            text.append(GAP)
+    mean = summary.get("mean_target_weight_delta_kg")
+    text.append(f"  heaviest weight for {format_flight_level(level)}: option − baseline per day, mean "
+                f"{_signed(mean)} kg\n", style="italic")
     return text
 
 
