@@ -180,7 +180,7 @@ def test_with_a_target_each_matrix_ends_with_the_heaviest_weights_difference():
             shown = [line for line in screen.query_one("#matrix").content.plain.splitlines()
                      if line.startswith("  ΔW t")]
             options = rows.select("variant", "engine").unique(maintain_order=True)
-            assert len(shown) == options.height and "heaviest weight for FL370" in shown[0]
+            assert len(shown) == options.height and "heaviest for FL370, mean" in shown[0]
             by_day = {(r["variant"], r["engine"], r["isa_dev_c"]): r["target_weight_delta_kg"]
                       for r in rows.iter_rows(named=True)}
             days = sorted(rows["isa_dev_c"].unique())

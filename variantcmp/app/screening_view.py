@@ -155,8 +155,7 @@ def _weight_row(rows: pl.DataFrame, days: list, summary: dict, colour: bool) -> 
         if i + 1 < len(days):
             text.append(GAP)
     mean = summary.get("mean_target_weight_delta_kg")
-    text.append(f"  heaviest weight for {format_flight_level(level)}: option − baseline per day, mean "
-                f"{_signed(mean)} kg\n", style="italic")
+    text.append(f"  heaviest for {format_flight_level(level)}, mean {_signed(mean)} kg\n", style="italic")
     return text
 
 
