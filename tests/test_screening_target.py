@@ -118,3 +118,15 @@ def test_heavier_for_the_level_means_it_reaches_it_at_the_other_options_weight(d
             (a, ab["target_weight_kg"])
         back = ceilings_table(demo, replace(cond, engines=(winner,), weights=(WeightSpec(loser_weight, "kg"),)))
         assert back["max_altitude_ft"][0] >= fl * 100.0 - 1.0
+
+
+def test_a_level_above_the_certified_ceiling_says_why_in_the_matrix(demo):
+    # FL370 is above the turboprops' certified ceiling (25,000 ft in the demo): no weight reaches
+    # it, and the screening view's ΔW row says so in the reason word of `heaviest`.
+    from variantcmp.app.screening_view import block, sorted_options
+
+    rows = screening_table(demo, Conditions(weights=GRID.weights, isa_devs_c=(0.0, 15.0), target_fl_ft=37_000.0),
+                           "tavish-24")
+    assert rows["target_weight_kg"].is_null().all() and (rows["target_weight_reason"] == "certified").all()
+    shown = block(sorted_options(rows, screening_summary(rows), None, False)[0], True).plain
+    assert "no heaviest weight for FL370 (certified)" in shown

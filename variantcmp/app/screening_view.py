@@ -155,7 +155,12 @@ def _weight_row(rows: pl.DataFrame, days: list, summary: dict, colour: bool) -> 
         if i + 1 < len(days):
             text.append(GAP)
     mean = summary.get("mean_target_weight_delta_kg")
-    text.append(f"  heaviest for {format_flight_level(level)}, mean {_signed(mean)} kg\n", style="italic")
+    if mean is None:  # no day with both weights: say why (the reason words of `heaviest`)
+        why = sorted({w for c in ("target_weight_reason", "baseline_target_weight_reason") for w in rows[c] if w})
+        text.append(f"  no heaviest weight for {format_flight_level(level)} ({', '.join(why) or 'none'})\n",
+                    style="italic")
+    else:
+        text.append(f"  heaviest for {format_flight_level(level)}, mean {_signed(mean)} kg\n", style="italic")
     return text
 
 
