@@ -2,6 +2,7 @@
 
 import io
 import json
+import re
 
 import polars as pl
 import pytest
@@ -117,3 +118,14 @@ def test_spread_same_seed_same_numbers_and_the_target(capsys):
     assert frame["p10_ft"].to_list() == pytest.approx(direct["p10_ft"].to_list(), abs=0.006)
     status, out, _ = run(capsys, *argv[:-2], "--seed", "7")
     assert status == 0 and "Reaches" in out and "200 samples, seed 7" in out and out.rstrip().endswith(CAUTION)
+
+
+def test_a_heaviest_weight_above_mtow_is_starred(capsys):
+    # The survey type lifts more than its MTOW to FL390 (not capped, as heaviest gives it): the
+    # table stars it, the csv has its %MTOW.
+    argv = ("screen", "tallon-fells-survey", "--baseline", "wren-20", "--variant", "ha2", "--target", "FL390")
+    status, out, _ = run(capsys, *argv, "--format", "csv")
+    frame = csv(out)
+    assert status == 0 and (frame["target_weight_pct_mtow"] > 100).all()
+    status, out, _ = run(capsys, *argv)
+    assert status == 0 and re.search(r" \d+\.\d\* ", out) and "* above MTOW" in out

@@ -86,8 +86,8 @@ def run(args) -> int:
     words = (f"Δ = option − baseline ({baseline}) at the same variant, weight, ISA deviation and climb; "
              f"{LIMIT_CHANGED} the binding limit differs from the baseline's.")
     if conditions.target_fl_ft is not None:
-        words += (f" max t: the heaviest weight that reaches {level} on the day (rounded down; — why not: the "
-                  f"limit); ΔW = option − baseline.")
+        words += (f" max t: the heaviest weight that reaches {level} on the day (rounded down; * above MTOW: "
+                  f"the level is reached at every weight up to MTOW; — why not); ΔW = option − baseline.")
     footer = [caption(conditions, climb_labels), words] + ([f"Left out: {'; '.join(left_out)}."] if left_out else [])
     output.print_table(case_table(frame, columns, cells), f"{catalogue.title}: engine options against {baseline}",
                        footer + [NOT_AVAILABLE], DROP_FOR_WIDTH)
@@ -98,9 +98,10 @@ def run(args) -> int:
 
 
 def _weights(frame, column: str, reason: str) -> list[str]:
-    """A heaviest weight in t (rounded down), or "— why" where there is none."""
-    return [t if t != "—" else f"— {why}" if why else t
-            for t, why in zip(tonnes(frame[column].to_list()), frame[reason].to_list())]
+    """A heaviest weight in t (rounded down; * above MTOW), or "— why" where there is none."""
+    pct = frame[column.replace("_kg", "_pct_mtow")].to_list()
+    return [(t + ("*" if p is not None and p > 100.0 + 1e-9 else "")) if t != "—" else f"— {why}" if why else t
+            for t, p, why in zip(tonnes(frame[column].to_list()), pct, frame[reason].to_list())]
 
 
 def print_summary(summary, conditions, baseline: str) -> None:

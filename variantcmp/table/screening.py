@@ -32,7 +32,7 @@ GAINS, LOSES, TIES = "gains", "loses", "ties"
 #: The heaviest-weight columns a target adds (the option's, the baseline's, the difference, the
 #: limits that give them and why one is missing).
 TARGET_WEIGHT_COLUMNS = ("target_ft", "target_weight_kg", "baseline_target_weight_kg", "target_weight_delta_kg",
-                         "target_weight_limit", "baseline_target_weight_limit", "target_weight_reason",
+                         "target_weight_pct_mtow", "baseline_target_weight_pct_mtow", "target_weight_limit", "baseline_target_weight_limit", "target_weight_reason",
                          "baseline_target_weight_reason")
 
 
@@ -106,15 +106,17 @@ def compare_options(frame: pl.DataFrame, baseline: str) -> pl.DataFrame:
 def compare_heaviest(frame: pl.DataFrame, heaviest: pl.DataFrame, baseline: str) -> pl.DataFrame:
     """The screening rows ``frame`` with the heaviest weight for the target (a
     :func:`~variantcmp.table.inverse.heaviest_table` of one target) of each row's option and of the
-    baseline at the same variant, ISA deviation and climb, and the difference (option - baseline;
-    null where either has none). A polars join, no physics."""
+    baseline at the same variant, ISA deviation and climb (kg and %MTOW: not capped at MTOW, as
+    ``heaviest`` gives it), and the difference (option - baseline; null where either has none). A
+    polars join, no physics."""
     keys = ["variant", "isa_dev_c", "climb_fpm"]
     picked = heaviest.select(*keys, "engine", "target_ft", pl.col("max_weight_kg").alias("target_weight_kg"),
+                             pl.col("max_weight_pct_mtow").alias("target_weight_pct_mtow"),
                              pl.col("limit").alias("target_weight_limit"),
                              pl.col("reason").alias("target_weight_reason"))
     base = picked.filter(pl.col("engine") == baseline).select(
-        *keys, *(pl.col(c).alias(f"baseline_{c}") for c in ("target_weight_kg", "target_weight_limit",
-                                                            "target_weight_reason")))
+        *keys, *(pl.col(c).alias(f"baseline_{c}") for c in ("target_weight_kg", "target_weight_pct_mtow",
+                                                            "target_weight_limit", "target_weight_reason")))
     return (frame.join(picked, on=[*keys, "engine"], how="left", maintain_order="left")
             .join(base, on=keys, how="left", maintain_order="left")
             .with_columns(target_weight_delta_kg=pl.col("target_weight_kg") - pl.col("baseline_target_weight_kg"))
