@@ -173,6 +173,17 @@ async def _shoot(size: tuple[int, int], out: Path, written: list[Path]) -> None:
         await pilot.press("p", "escape")
         await settle(app, pilot)
 
+        # The spread of each row under uncertain data (P10-P90 bars), then the screening matrix
+        # against the engine option of the pinned top row.
+        await pilot.press("u")
+        await settle(app, pilot)
+        save(app, "compare-uncertainty")
+        await pilot.press("u", "home", "b", "d")
+        await settle(app, pilot)
+        save(app, "screening")
+        await pilot.press("escape", "b")  # unpin (the cursor is still on the baseline's row)
+        await settle(app, pilot)
+
         await pilot.press("i")
         await settle(app, pilot)
         save(app, "variant")

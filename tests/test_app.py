@@ -29,6 +29,7 @@ from variantcmp.app import envelope_screen
 from variantcmp.app.dialogs import ConfirmDialog, ExportDialog, ProblemsScreen
 from variantcmp.app.engine_out_screen import EngineOutScreen
 from variantcmp.app.open_dialog import OpenDialog
+from variantcmp.app.screening_screen import ScreeningScreen
 from variantcmp.app.envelope_screen import EnvelopeScreen
 from variantcmp.app.help import HelpScreen
 from variantcmp.app.hotday import PlannerScreen
@@ -508,8 +509,8 @@ def test_help_lists_every_key_and_the_caution():
             assert isinstance(app.screen, HelpScreen)
             shown = shown_text(app.screen.query_one("#help-text"))
             assert " ".join(CAUTION.split()) in " ".join(shown.split())
-            for cls in (VariantCmpApp, CompareScreen, PlannerScreen, EngineOutScreen, EnvelopeScreen, SweepScreen,
-                        VariantScreen, ProblemsScreen, ExportDialog):
+            for cls in (VariantCmpApp, CompareScreen, PlannerScreen, CruiseScreen, EngineOutScreen, ScreeningScreen,
+                        EnvelopeScreen, SweepScreen, VariantScreen, ProblemsScreen, ExportDialog):
                 for binding in cls.BINDINGS:
                     assert binding.description in shown
             await pilot.press("escape")
@@ -860,18 +861,20 @@ async def mash(app, pilot, keys: list[str], seed: int, stay_on) -> int:
     return strayed
 
 
-@pytest.mark.parametrize("name", ["compare", "planner", "cruise", "engineout", "envelope", "sweep", "variant", "help", "open",
+@pytest.mark.parametrize("name", ["compare", "planner", "cruise", "engineout", "envelope", "sweep", "screening", "variant",
+                                  "help", "open",
                                   "export"])
 def test_mashing_each_screens_keys_raises_nothing(name, tmp_path, monkeypatch: pytest.MonkeyPatch):
     monkeypatch.chdir(tmp_path)  # an export or a picture lands here, not in the project
     always_out = {"q", "f1", "question_mark", "ctrl+p", "ctrl+q", "ctrl+c"}
     screens = {  # how to get there, the screen class, keys of it that leave it
-        "compare": ([], CompareScreen, {"h", "f", "g", "i", "v", "w", "e", "o", "enter"}),
+        "compare": ([], CompareScreen, {"h", "f", "g", "d", "i", "v", "w", "e", "o", "enter"}),
         "planner": (["h"], PlannerScreen, {"i", "e", "enter", "escape"}),
         "cruise": (["f"], CruiseScreen, {"escape", "c", "i", "e", "enter"}),
         "engineout": (["g"], EngineOutScreen, {"i", "e", "enter", "escape"}),
         "envelope": (["v"], EnvelopeScreen, {"escape", "c", "w"}),
         "sweep": (["w"], SweepScreen, {"escape", "c", "v"}),
+        "screening": (["d"], ScreeningScreen, {"escape", "c", "e"}),
         "variant": (["i"], VariantScreen, {"escape"}),
         "help": (["f1"], HelpScreen, {"escape", "f1", "question_mark"}),
         "open": (["o"], OpenDialog, {"escape", "enter"}),
@@ -1067,8 +1070,8 @@ def test_every_key_is_in_the_footer_or_in_help_and_the_command_palette():
             assert shown and all(key.region.right <= palette_key.region.x for key in shown)
             assert len(shown) < len(app.screen.query("FooterKey")) - 1
             for path, cls in (([], CompareScreen), (["h"], PlannerScreen), (["f"], CruiseScreen), (["g"], EngineOutScreen),
-                              (["v"], EnvelopeScreen),
-                              (["w"], SweepScreen), (["i"], VariantScreen), (["f1"], HelpScreen)):
+                              (["v"], EnvelopeScreen), (["w"], SweepScreen), (["d"], ScreeningScreen),
+                              (["i"], VariantScreen), (["f1"], HelpScreen)):
                 await press_settle(app, pilot, *path)
                 assert isinstance(app.screen, cls)
                 titles = " | ".join(command.title for command in key_commands(app, app.screen))
@@ -1215,8 +1218,7 @@ def test_readme_key_tables_are_true():
             first = line.split("|")[1]
             named |= {names.get(key, key) for key in re.findall(r"`([^`]+)`", first)}
     screens = (VariantCmpApp, CompareScreen, PlannerScreen, CruiseScreen, EngineOutScreen, EnvelopeScreen, SweepScreen,
-               VariantScreen,
-               HelpScreen, ProblemsScreen, Open, ExportDialog, ConfirmDialog)
+               ScreeningScreen, VariantScreen, HelpScreen, ProblemsScreen, Open, ExportDialog, ConfirmDialog)
     bound = {key.strip() for cls in screens for binding in cls.BINDINGS for key in binding.key.split(",")}
     textual_keys = {"ctrl+p", "enter", "tab", "shift+tab"}  # the command palette, tables and fields
     assert named - bound - textual_keys == set()

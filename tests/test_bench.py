@@ -6,10 +6,11 @@ from variantcmp.cli import main
 
 
 def test_bench_small_run_agrees_with_scalar_reference(capsys):
-    assert main(["bench", "--cases", "3000", "--best-cases", "200", "--scalar-cases", "150", "--format", "json"]) == 0
+    assert main(["bench", "--cases", "3000", "--best-cases", "200", "--scalar-cases", "150", "--spread-samples", "10",
+                 "--format", "json"]) == 0
     figures = json.loads(capsys.readouterr().out)
     for key in ("cases", "seconds", "cases_per_s", "best_speed_cases_per_s", "oei_cases_per_s", "scalar_cases_per_s",
-                "speedup", "max_abs_diff_ft", "grid_ms", "peak_rss_mb", "turboprop_cases_per_s",
+                "speedup", "max_abs_diff_ft", "grid_ms", "spread_demo_s", "peak_rss_mb", "turboprop_cases_per_s",
                 "turboprop_best_cases_per_s", "turboprop_scalar_cases_per_s", "turboprop_max_abs_diff_ft",
                 "turboprop_oei_cases_per_s", "cruise_cases_per_s", "mrc_cases_per_s",
                 "turboprop_cruise_cases_per_s", "turboprop_mrc_cases_per_s"):
@@ -31,7 +32,7 @@ def test_bench_small_run_agrees_with_scalar_reference(capsys):
 
 
 def test_bench_table_output(capsys):
-    assert main(["bench", "--cases", "500", "--best-cases", "50", "--scalar-cases", "20"]) == 0
+    assert main(["bench", "--cases", "500", "--best-cases", "50", "--scalar-cases", "20", "--spread-samples", "10"]) == 0
     out = capsys.readouterr().out
     assert "scalar" in out and "speed-up" in out and "Caution" in out and "turboprops: best speed" in out
     assert "warmest day for a level" in out

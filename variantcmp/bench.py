@@ -303,6 +303,19 @@ def _timed_solve(cases):
     return res, time.perf_counter() - t0
 
 
+def spread_demo(samples: int = 1_000) -> tuple[int, float]:
+    """The Monte Carlo spread of the demo fleet over the screening grid's default weights and days
+    at the best speed, with the default uncertain data: (cases, seconds)."""
+    from .table.perturbations import DEFAULT_VARY, spread_table
+    from .table.screening import DEFAULT_ISA_DEVS_C, DEFAULT_WEIGHTS
+
+    demo = load_catalogue(demo_catalogue_path())
+    grid = Conditions(weights=DEFAULT_WEIGHTS, isa_devs_c=DEFAULT_ISA_DEVS_C, mach="best")
+    t0 = time.perf_counter()
+    frame = spread_table(demo, grid, DEFAULT_VARY, samples, seed=1)
+    return frame.height, time.perf_counter() - t0
+
+
 def _timed_engine_out(cat: Catalogue, n: int) -> float:
     best = synthetic_cases(cat, n, mach="best")
     terms = engine_out_terms(cat, best)
@@ -312,10 +325,10 @@ def _timed_engine_out(cat: Catalogue, n: int) -> float:
 
 
 def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases: int = 100_000,
-                  cruise_cases: int | None = None) -> dict:
+                  cruise_cases: int | None = None, spread_samples: int = 1_000) -> dict:
     """Time the workloads (jets and turboprops: fixed Mach and best speed; one engine out; the demo
-    grid; the cruise solvers on ``cruise_cases``, by default --cases up to CRUISE_CASES) and compare
-    vectorised with scalar answers on each fleet; returns the figures."""
+    grid; the demo fleet's spread; the cruise solvers on ``cruise_cases``, by default --cases up to
+    CRUISE_CASES) and compare vectorised with scalar answers on each fleet; returns the figures."""
     cat, props = synthetic_fleet(), synthetic_turboprop_fleet()
     solve_ceilings(synthetic_cases(cat, 2_000))  # warm-up: imports, first allocations
     solve_ceilings(synthetic_cases(props, 2_000))
@@ -340,6 +353,8 @@ def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases:
     t0 = time.perf_counter()
     frame = ceilings_table(demo, grid)
     grid_s = time.perf_counter() - t0
+
+    spread_cases, spread_s = spread_demo(spread_samples)
 
     fixed_rate = cases / fixed_s
     inverse = inverse_workloads(cat, cases, best_cases)
@@ -375,6 +390,9 @@ def run_benchmark(cases: int = 1_000_000, scalar_cases: int = 2_000, best_cases:
         "turboprop_scalar_mismatched_cases": turboprops["mismatched_cases"],
         "grid_cases": frame.height,
         "grid_ms": grid_s * 1000.0,
+        "spread_demo_cases": spread_cases,
+        "spread_demo_samples": spread_samples,
+        "spread_demo_s": spread_s,
         "peak_rss_mb": _peak_rss_mb(),
         "peak_rss_worker_mb": _peak_rss_mb(resource.RUSAGE_CHILDREN),
         "climb_fpm": 300.0 if fixed.climb_ms.size == 0 else float(fixed.climb_ms[0] / FPM),

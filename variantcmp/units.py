@@ -386,3 +386,81 @@ def parse_g_margin(text: str, option: str = "--g-margin") -> float:
     if not low <= value <= high:
         raise _fail(option, raw, f"a load factor from {low:g} to {high:g} g")
     return value
+
+
+# --- uncertain data ------------------------------------------------------------------
+
+#: What `--vary` can vary: relative standard deviations (%) of the drag polar's CD0 and K, the
+#: engines' thrust and the weight, and the ISA deviation's standard deviation in deg C.
+VARIED_RELATIVE = ("cd0", "k", "thrust", "weight")
+VARIED = VARIED_RELATIVE + ("isa",)
+MAX_VARY_PCT = 15.0  # a relative standard deviation above this is no longer "uncertain data"
+MAX_VARY_ISA_C = 10.0
+SAMPLES_RANGE = (10, 100_000)
+_VARY_EXPECTED = ("a comma list of name=standard deviation, e.g. cd0=2%,thrust=3%,k=2%,weight=1% "
+                  f"(names: {', '.join(VARIED)}; isa in degrees C, e.g. isa=2)")
+
+
+def parse_variations(text: str, option: str = "--vary") -> dict[str, float]:
+    """"cd0=2%,thrust=3%,k=2%,weight=1%,isa=2" -> {"cd0": 0.02, "thrust": 0.03, "k": 0.02,
+    "weight": 0.01, "isa": 2.0}: relative standard deviations as fractions (typed with %, from 0
+    to MAX_VARY_PCT), the ISA deviation's in degrees C (0 to MAX_VARY_ISA_C). A name given twice,
+    an unknown name or a relative value without % is refused."""
+    import difflib
+
+    out: dict[str, float] = {}
+    for item in _items(text, option, _VARY_EXPECTED):
+        name, eq, value = item.partition("=")
+        name, value = name.strip().lower(), re.sub(r"\s+", "", value).lower().replace("°", "")
+        if not eq or not name:
+            raise _fail(option, item, _VARY_EXPECTED)
+        if name not in VARIED:
+            close = difflib.get_close_matches(name, VARIED, n=1, cutoff=0.5)
+            hint = f" (did you mean {close[0]!r}?)" if close else ""
+            raise OptionError(f"{option}: unknown parameter {shown(name)}{hint}; expected one of {', '.join(VARIED)}")
+        if name in out:
+            raise OptionError(f"{option}: {name} given twice in {shown(text)}; give each parameter once")
+        if name == "isa":
+            if value.endswith("%"):
+                raise OptionError(f"{option}: cannot use {shown(item)}: the ISA deviation varies in degrees C "
+                                  f"(isa=2 or isa=2C), not in %")
+            number = _number(value.removesuffix("c"))
+            if number is None or not 0.0 <= number <= MAX_VARY_ISA_C:
+                raise _fail(option, item, f"a standard deviation from 0 to {MAX_VARY_ISA_C:g} degrees C, e.g. isa=2")
+            out[name] = number + 0.0
+            continue
+        if not value.endswith("%"):
+            raise OptionError(f"{option}: cannot use {shown(item)}: give {name}'s relative standard deviation "
+                              f"with %, e.g. {name}=2%")
+        number = _number(value[:-1])
+        if number is None or not 0.0 <= number <= MAX_VARY_PCT:
+            raise _fail(option, item, f"a relative standard deviation from 0 to {MAX_VARY_PCT:g} %, e.g. {name}=2%")
+        out[name] = number / 100.0
+    return out
+
+
+def format_variations(vary: dict[str, float]) -> str:
+    """{"cd0": 0.02, "isa": 2.0} -> "cd0 2 %, isa 2 °C" (standard deviations, as typed)."""
+    return ", ".join(f"{name} {value:g} °C" if name == "isa" else f"{name} {100 * value:g} %"
+                     for name, value in vary.items())
+
+
+def _whole(text: str, option: str, low: int, high: int, expected: str) -> int:
+    """A whole number from ``low`` to ``high`` ("1000", "1_000" or "1,000")."""
+    raw = str(text).strip()
+    compact = raw.replace("_", "").replace(",", "")
+    if not re.fullmatch(r"\d+", compact) or not low <= int(compact) <= high:
+        raise _fail(option, raw, expected)
+    return int(compact)
+
+
+def parse_samples(text: str, option: str = "--samples") -> int:
+    """Monte Carlo samples per case: a whole number in SAMPLES_RANGE."""
+    low, high = SAMPLES_RANGE
+    return _whole(text, option, low, high, f"a whole number of samples from {low:,} to {high:,}")
+
+
+def parse_seed(text: str, option: str = "--seed") -> int:
+    """A random seed: a whole number from 0 to 2^32 - 1 (the same seed gives the same numbers)."""
+    return _whole(text, option, 0, 2**32 - 1, "a whole number from 0 to 4,294,967,295 (any; the same seed "
+                                              "gives the same numbers)")

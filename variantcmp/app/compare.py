@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from functools import partial
 from time import perf_counter
 
 import polars as pl
@@ -14,9 +15,12 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Input, Label, ProgressBar, Static
 
 from .form import FIELDS
+from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
 from .results import Results, export_frame
 from .sorting import SortCycle
+from .spread_bars import SPREAD_KEYS, Spread, compute_spread, with_spread
+from .spread_bars import note as spread_note
 from .view import (
     BASE_ROW, BASELINE_MARK, BELOW_EMPTY_MARK, COLUMNS_BY_KEY, IS_BASE, MAX_MARKED, NONE, OVER_MTOW_MARK, ROW_KEY,
     Baseline, Column, default_match, filter_rows, header, justify, mark_sign, row_cells, sort_rows, visible_columns,
@@ -60,6 +64,10 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
         Binding("g", "engine_out", "Engine out", group=_DRAW,
                 tooltip="one engine inoperative: gross and net ceilings, the drift-down and its profile, a terrain "
                 "check, at these weights and days"),
+        Binding("d", "screening", "Screening", tooltip="every engine option against a baseline option over the "
+                "weight x ISA grid, a matrix per option (the baseline: the pinned row's engine, b there for the next)"),
+        Binding("u", "uncertainty", "Uncertainty", tooltip="P10-P90 bars of each row's maximum altitude under "
+                "uncertain data (seeded Monte Carlo), on or off"),
         Binding("e", "export", "Export", show=False),
         Binding("o", "open", "Open", show=False),
         Binding("l", "reload", "Reload", show=False),
@@ -75,6 +83,10 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
         self._busy_timer = None
         self.render_ms = 0.0  # last redraw of the table (sort, filter, baseline), ms
         self.update_ms = 0.0  # last change of conditions to the table on screen, ms
+        self.show_spread = False  # P10-P90 bars beside the rows (u)
+        self.spread: Spread | None = None  # the last spread computed
+        self._spread_job = LatestJob(self, "spread")
+        self._spread_pending = False
 
     # --- layout ------------------------------------------------------------------
 
@@ -99,6 +111,7 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
             yield Static("", id="status")
             yield ProgressBar(total=None, show_eta=False, show_percentage=False, id="busy")
         yield Static("", id="baseline-note")
+        yield Static("", id="spread-note")
         yield DataTable(id="table", cursor_type="row", zebra_stripes=True, fixed_columns=2)
         yield FittingFooter(compact=True)  # many keys: keep the row short at 80 columns
 
@@ -144,6 +157,8 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
             return
         self.show_field_errors(self.app.field_errors)
         self.render_table(fresh=True)
+        if self.show_spread:
+            self.request_spread()
 
     def show_field_errors(self, field_errors: dict[str, str]) -> None:
         for field in FIELDS:
@@ -187,13 +202,15 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
                                               & (pl.col("engine") == baseline.engine)).height == 0:
             baseline = self.baseline = None  # the catalogue no longer has it
         compared = with_baseline(df, baseline)  # before the filter: a hidden baseline still counts
+        if self.show_spread:
+            compared = with_spread(compared, self.current_spread(), self.app.sketch_ascii)
         view = sort_rows(filter_rows(compared, filter_text), self._sort_column(), self.descending)
         self.view_df = view
         keys = set(df[ROW_KEY].to_list())
         self.app.marked_keys = [k for k in self.app.marked_keys if k in keys]  # rows gone with the conditions
         marks = {k: i + 1 for i, k in enumerate(self.app.marked_keys)}
         self.app.shown_keys = view[ROW_KEY].to_list()
-        columns = visible_columns(df)
+        columns = visible_columns(compared)
         headers = [header(c, self.sort_key, self.descending, baseline is not None) for c in columns]
         rows = list(view.iter_rows(named=True))
         cells = [row_cells(columns, row, marks.get(row[ROW_KEY])) for row in rows]
@@ -215,6 +232,7 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
             self.update_ms = (perf_counter() - self.app.requested_at) * 1000.0
         self.update_status(results, view)
         self.update_baseline_note(view)
+        self.update_spread_note()
 
     def update_status(self, results: Results, view: pl.DataFrame) -> None:
         parts = [f"{view.height}/{results.df.height} rows"]
@@ -250,6 +268,36 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
         other = "kg" if baseline.match == "pct" else "%MTOW"
         text += f" · B: at the same {other}"
         note.update(Text(text, no_wrap=True, overflow="ellipsis"))
+
+    # --- P10-P90 bars ----------------------------------------------------------------
+
+    def current_spread(self) -> Spread | None:
+        """The spread of the table on show, or None while it is being computed."""
+        spread, results = self.spread, self.app.results
+        if spread is None or results is None or (spread.catalogue, spread.conditions) != (results.catalogue,
+                                                                                          results.conditions):
+            return None
+        return spread
+
+    def request_spread(self) -> None:
+        results = self.app.results
+        if results is None or results.df is None or self.current_spread() is not None:
+            return
+        self._spread_pending = True
+        self._spread_job.request(partial(compute_spread, results.catalogue, results.conditions, results.df.height),
+                                 self._spread_delivered)
+
+    def _spread_delivered(self, spread: Spread) -> None:
+        self.spread, self._spread_pending = spread, False
+        if self.is_attached and self.show_spread:
+            self.render_table()
+
+    def update_spread_note(self) -> None:
+        line = self.query_one("#spread-note", Static)
+        line.set_class(self.show_spread, "-shown")
+        if self.show_spread:
+            line.update(Text(spread_note(self.current_spread(), self._spread_pending, self.app.sketch_ascii),
+                             no_wrap=True, overflow="ellipsis"))
 
     # --- events -------------------------------------------------------------------
 
@@ -299,7 +347,10 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
 
     def sort_columns(self) -> list[Column]:
         results = self.app.results
-        return [] if results is None or results.df is None else visible_columns(results.df)
+        if results is None or results.df is None:
+            return []
+        shown = self.view_df if self.view_df is not None else results.df  # with the P10-P90 columns when on
+        return visible_columns(shown)
 
     def sort_column(self, key: str) -> Column:
         return COLUMNS_BY_KEY[key]
@@ -372,6 +423,18 @@ class CompareScreen(SortCycle, HoldsKeys, Screen):
 
     def action_engine_out(self) -> None:
         self.app.switch_mode("engineout")
+
+    def action_uncertainty(self) -> None:
+        self.show_spread = not self.show_spread
+        if self.show_spread:
+            self.request_spread()
+        elif self.sort_key in SPREAD_KEYS:
+            self.sort_key = None  # its column is gone: back to catalogue order
+        self.render_table()
+
+    def action_screening(self) -> None:
+        self.app.screening_baseline = self.baseline.engine if self.baseline is not None else None
+        self.app.switch_mode("screening")
 
     def action_export(self) -> None:
         if self.view_df is not None:

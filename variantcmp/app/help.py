@@ -27,6 +27,8 @@ from .view import (
     BASELINE_MARK, BELOW_EMPTY_MARK, LIMIT_GLYPHS, LIMIT_MEANINGS, MAKES_IT, MAX_MARKED, NONE, OVER_MTOW_MARK,
     SHORT_OF_IT, mark_sign,
 )
+from .screening_view import ONLY_BASELINE, ONLY_OPTION, SHADES, TIE_MARK
+from .spread_bars import GLYPHS
 from .widgets import FittingFooter
 
 TABLE_KEYS = [
@@ -107,6 +109,7 @@ def help_renderable() -> Group:
     from .envelope_screen import EnvelopeScreen
     from .hotday import PlannerScreen
     from .open_dialog import OpenDialog
+    from .screening_screen import ScreeningScreen
     from .sweep_screen import SweepScreen
     from .variant_info import VariantScreen
 
@@ -114,8 +117,7 @@ def help_renderable() -> Group:
     for title, cls in (
         ("Everywhere", APP_BINDINGS), ("Compare screen", CompareScreen),
         ("Planner", PlannerScreen), ("Cruise levels", CruiseScreen), ("Engine-out view", EngineOutScreen),
-        ("Envelope view", EnvelopeScreen),
-        ("Sweep views", SweepScreen),
+        ("Screening view", ScreeningScreen), ("Envelope view", EnvelopeScreen), ("Sweep views", SweepScreen),
         ("Variant screen", VariantScreen),
         ("Catalogue problems", ProblemsScreen), ("Open dialog", OpenDialog),
         ("Export dialog", ExportDialog), ("Overwrite?", ConfirmDialog),
@@ -138,6 +140,12 @@ def help_renderable() -> Group:
                            "given): computed, and flagged; likely a unit slip"),
         (NONE, "no value: the model cannot give one (see the note)"),
         ("Max FL", "flight level of the maximum altitude, rounded down"),
+        (" ".join(glyph for _, glyph in SHADES), "screening view (d): the size of an option's difference from the "
+         "baseline, under " + ", ".join(f"{bound:,.0f}" for bound, _ in SHADES[:-1]) + f" ft and more; {TIE_MARK} "
+         f"within 1 ft; a limit glyph after it: the option's binding limit where it differs from the baseline's; "
+         f"{ONLY_OPTION} / {ONLY_BASELINE} only the option / only the baseline has a maximum altitude"),
+        (" ".join(GLYPHS[False][:3]), "P10, P50 and P90 of a row's maximum altitude under uncertain data (u), on one "
+         "scale for all rows"),
     ]
     parts += [_keys_table("Signs in the tables", signs), Text("")]
     letters = " ".join(LIMIT_LETTERS.values())

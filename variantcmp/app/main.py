@@ -30,6 +30,7 @@ from .keys import KeyHold
 from .open_dialog import OpenDialog
 from .picture import save_view
 from .results import Results, compute
+from .screening_screen import ScreeningScreen
 from .sweep_screen import SweepScreen
 from .variant_info import VariantScreen
 from .widgets import COMPACT_BELOW_ROWS, shown_path
@@ -48,7 +49,7 @@ class VariantCmpApp(KeyHold, App[int]):
     ENABLE_COMMAND_PALETTE = True
     # Top-level views, each keeping its own state while the user switches between them.
     MODES = {"compare": CompareScreen, "planner": PlannerScreen, "envelope": EnvelopeScreen, "sweep": SweepScreen,
-             "cruise": CruiseScreen, "engineout": EngineOutScreen}
+             "cruise": CruiseScreen, "engineout": EngineOutScreen, "screening": ScreeningScreen}
     DEFAULT_MODE = "compare"
     compact_rows = var(False)  # a short terminal: one-line caution (widgets.CautionBanner)
     BINDINGS = APP_BINDINGS
@@ -74,6 +75,7 @@ class VariantCmpApp(KeyHold, App[int]):
         self.focus_key: str | None = None  # the row under the compare cursor
         self.shown_keys: list[str] = []  # rows the compare screen shows, in its order
         self.marked_keys: list[str] = []  # rows marked for the envelope overlay, in mark order
+        self.screening_baseline: str | None = None  # the engine option pinned on the compare screen, handed over by d
         self.sketch_ascii = terminal_wants_ascii()  # plain-ASCII drawings for dumb terminals (a toggles)
 
     def on_mount(self) -> None:

@@ -26,6 +26,7 @@ from variantcmp.units import OptionError
 
 from .jobs import LatestJob
 from .keys import HoldsKeys
+from .navigation import BackToCompare
 from .widgets import CautionBanner, FittingFooter
 from .results import Results
 from .view import ROW_KEY
@@ -108,7 +109,7 @@ class Request:
     what: str  # "the envelope of v70/ossel-78", for the status line
 
 
-class DrawingScreen(HoldsKeys, Screen):
+class DrawingScreen(BackToCompare, HoldsKeys, Screen):
     """Caution, a status line with a busy bar, the drawing, the footer.
 
     Subclasses say what to compute (`request`), how to draw it (`drawer`) and what the status line
@@ -278,15 +279,6 @@ class DrawingScreen(HoldsKeys, Screen):
         self.sketch.set_class(busy and self.result is not None, "-stale")
 
     # --- actions -------------------------------------------------------------------------
-
-    def action_compare(self) -> None:
-        self.app.switch_mode("compare")
-
-    def action_conditions(self) -> None:
-        self.app.switch_mode("compare")
-        focus = getattr(self.app.screen, "action_focus_conditions", None)
-        if focus is not None:
-            focus()
 
     def action_toggle_ascii(self) -> None:
         self.app.sketch_ascii = not self.app.sketch_ascii

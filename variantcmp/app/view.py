@@ -50,6 +50,7 @@ BASE_ROW = "_base_row"  # true where the baseline has a row at the same weight, 
 # Rows marked for the envelope overlay carry their overlay number (the drawing's curve tag).
 MAX_MARKED = 3
 MARK_PREFIX = "#"
+SPREAD_BAR = "_spread_bar"  # the row's P10-P90 bar, drawn by spread_bars.with_spread
 MAKES_IT = "✓"
 SHORT_OF_IT = "✗"
 
@@ -92,6 +93,10 @@ COLUMNS: tuple[Column, ...] = (
     Column("fl", "Max FL", "max_altitude_ft", "fl", high_first=True),
     Column("max_ft", "Max ft", "max_altitude_ft", "ft", diff=True, high_first=True),
     Column("limit", "Limit", "limit", "limit"),
+    # Shown only where the P10-P90 spread is joined (the compare screen's u).
+    Column("p10", "P10", "p10_ft", "fl", high_first=True),
+    Column("spread", "P10–P90", "p50_ft", "bar", high_first=True),
+    Column("p90", "P90", "p90_ft", "fl", high_first=True),
     Column("margin", "Margin ft", "margin_ft", "margin", high_first=True),
     Column("mach", "Mach", "mach", "mach", diff=True, high_first=True),
     Column("weight", "W t", "weight_kg", "tonnes"),
@@ -111,7 +116,8 @@ DIFF_SOURCES = tuple(dict.fromkeys(column.source for column in COLUMNS if column
 
 
 def visible_columns(df: pl.DataFrame) -> list[Column]:
-    """The columns this table can fill (the margin needs a target flight level)."""
+    """The columns this table can fill (the margin needs a target flight level, the P10-P90
+    columns a spread)."""
     return [column for column in COLUMNS if column.source in df.columns]
 
 
@@ -252,6 +258,8 @@ def cell(column: Column, row: dict, marked: int | None = None) -> Cell:
         if column.key == "variant" and marked is not None:
             text = f"{mark_sign(marked)} {text}"
         return Cell(text)
+    if kind == "bar":
+        return Cell(row.get(SPREAD_BAR) or NONE)
     if not _finite(value):
         return Cell(NONE, right)
     if kind == "ft":

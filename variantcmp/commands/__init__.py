@@ -10,7 +10,7 @@ options and output of the drawing commands). :mod:`variantcmp.cli` registers the
 
 from __future__ import annotations
 
-from . import bench, ceilings, check, cruise, envelope, heaviest, hottest, oei, sweep
+from . import bench, ceilings, check, cruise, envelope, heaviest, hottest, oei, screen, sensitivity, spread, sweep
 
 #: Subcommand modules, in the order `variantcmp --help` lists them.
-COMMANDS = (ceilings, heaviest, hottest, cruise, oei, envelope, sweep, check, bench)
+COMMANDS = (ceilings, heaviest, hottest, cruise, oei, envelope, sweep, screen, sensitivity, spread, check, bench)

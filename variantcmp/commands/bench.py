@@ -43,6 +43,8 @@ def add(subparsers) -> None:
     p.add_argument("--cruise-cases", action=options.Once, type=_positive_int, default=None,
                    help="cases of each fleet for the cruise workloads: optimum altitude, MRC and LRC (default: "
                         "--cases, at most 500,000)")
+    p.add_argument("--spread-samples", action=options.Once, type=_positive_int, default=1_000,
+                   help="Monte Carlo samples per case of the demo fleet's spread (default 1,000)")
     options.add_format(p, ("table", "json"), "table", "table (default) or json (the figures as one object)")
     p.set_defaults(run=run)
 
@@ -50,7 +52,7 @@ def add(subparsers) -> None:
 def run(args) -> int:
     from variantcmp.bench import run_benchmark
 
-    f = run_benchmark(args.cases, args.scalar_cases, args.best_cases, args.cruise_cases)
+    f = run_benchmark(args.cases, args.scalar_cases, args.best_cases, args.cruise_cases, args.spread_samples)
     if args.format == "json":
         sys.stdout.write(json.dumps(f) + "\n")
         return options.EXIT_OK
@@ -78,6 +80,9 @@ def run(args) -> int:
          f["turboprop_cruise_cases_per_s"]),
         ("turboprops: cruise MRC and LRC (FL170-FL250)", f["mrc_cases"], f["mrc_cases"] / f["turboprop_mrc_cases_per_s"],
          f["turboprop_mrc_cases_per_s"]),
+        (f"demo fleet spread, best speed ({f['spread_demo_cases']:,} cases x {f['spread_demo_samples']:,} samples)",
+         f["spread_demo_cases"] * (f["spread_demo_samples"] + 1), f["spread_demo_s"],
+         f["spread_demo_cases"] * (f["spread_demo_samples"] + 1) / f["spread_demo_s"]),
     ] + [(words, f[f"{key}_cases"], f[f"{key}_seconds"], f[f"{key}_cases_per_s"]) for key, words in INVERSE_ROWS]
     columns = [Column("work", "Workload", "left"), Column("cases", "Cases"), Column("s", "Seconds"),
                Column("rate", "Cases/s")]

@@ -23,12 +23,16 @@ LIMIT_COLUMNS = dict(zip(s.LIMITS, ("thrust_ceiling_ft", "buffet_ceiling_ft", "s
                                     "certified_ceiling_ft", "cabin_ceiling_ft")))
 
 
-def solve(catalogue, conditions: Conditions):
-    """Build the cases the conditions describe and solve them: (CaseSet, CaseIndex, Ceilings, pairs)."""
-    pairs = selected_pairs(catalogue, conditions)
-    cases, index = build_cases(
-        catalogue, pairs, lambda v: [w.resolve_kg(v.mtow_kg) for w in conditions.weights],
+def cases_for(catalogue, conditions: Conditions):
+    """The cases the conditions describe, unsolved: (CaseSet, CaseIndex)."""
+    return build_cases(
+        catalogue, selected_pairs(catalogue, conditions), lambda v: [w.resolve_kg(v.mtow_kg) for w in conditions.weights],
         conditions.isa_devs_c, conditions.climb_fpm, conditions.mach, conditions.g_margin)
+
+
+def solve(catalogue, conditions: Conditions):
+    """Build the cases the conditions describe and solve them: (CaseSet, CaseIndex, Ceilings)."""
+    cases, index = cases_for(catalogue, conditions)
     return cases, index, s.solve_ceilings(cases)
 
 
@@ -105,7 +109,11 @@ def weight_note(cases, i, mtow_kg, floor_kg) -> list[str]:
 
 def ceilings_table(catalogue, conditions: Conditions) -> pl.DataFrame:
     """One row per variant x engine x weight x ISA deviation x climb criterion."""
-    cases, index, res = solve(catalogue, conditions)
+    return ceilings_frame(catalogue, conditions, *solve(catalogue, conditions))
+
+
+def ceilings_frame(catalogue, conditions: Conditions, cases, index, res) -> pl.DataFrame:
+    """The ceilings table of solved cases (``cases_for`` order): what :func:`ceilings_table` returns."""
     climb_fpm = index.climb_fpm
     variants = [catalogue.variants[v] for v in index.variant_ids]
     mtow_kg = np.array([v.mtow_kg for v in variants])[cases.variant_index]
