@@ -31,12 +31,11 @@ from ..cases import FLOOR_M, FT
 from ..fuel import (fuel_flow_kg_s, jet_range_factor_n_m_per_kg, propeller_range_factor_n_m_per_kg, psfc_kg_per_ws,
                     specific_range_m_per_kg, tsfc_from_isa_kg_per_ns, tsfc_kg_per_ns)
 from ..thrust import PropellerEfficiency, TableLapse
-from .physics import ClimbPhysics
+from .physics import GROUP_BASE, ClimbPhysics, key_groups
 
 #: Kinds of fuel data, by the catalogue keys an engine gives.
 FUEL_CODES = {"none": 0, "tsfc": 1, "tsfc-table": 2, "psfc": 3}
 NO_FUEL, TSFC, TSFC_TABLE, PSFC = (FUEL_CODES[k] for k in ("none", "tsfc", "tsfc-table", "psfc"))
-_GROUP_BASE = 1_000_000
 
 
 @dataclass
@@ -93,17 +92,12 @@ class FuelData:
 
     def group_key(self) -> np.ndarray:
         """Each case's kind of fuel data and its table or propeller, as one number."""
-        return self.code * _GROUP_BASE + self.data_id + 1
+        return self.code * GROUP_BASE + self.data_id + 1
 
     def groups(self) -> list[tuple[int, int, np.ndarray | slice]]:
         """(code, data id, cases) per kind of fuel data (and per table or propeller): slices where
-        the cases are sorted by :meth:`group_key` (views instead of gathers), else index arrays."""
-        key = self.group_key()
-        if key.size and np.all(key[1:] >= key[:-1]):
-            bounds = np.concatenate([[0], np.flatnonzero(key[1:] != key[:-1]) + 1, [key.size]])
-            return [(int(key[a]) // _GROUP_BASE, int(key[a]) % _GROUP_BASE - 1, slice(int(a), int(b)))
-                    for a, b in zip(bounds[:-1], bounds[1:])]
-        return [(int(k) // _GROUP_BASE, int(k) % _GROUP_BASE - 1, np.flatnonzero(key == k)) for k in np.unique(key)]
+        the cases are sorted by :meth:`group_key`, else index arrays."""
+        return key_groups(self.group_key())
 
 
 def fuel_data(catalogue, cases) -> FuelData:

@@ -76,6 +76,16 @@ def group_key(cases) -> np.ndarray:
     return cases.model_code * GROUP_BASE + data_id
 
 
+def key_groups(key: np.ndarray) -> list[tuple[int, int, np.ndarray | slice]]:
+    """(code, data id, cases) per value of a group key (code x GROUP_BASE + data id + 1): slices
+    where the cases are sorted by the key (views instead of gathers and scatters), else index arrays."""
+    if key.size and np.all(key[1:] >= key[:-1]):
+        bounds = np.concatenate([[0], np.flatnonzero(key[1:] != key[:-1]) + 1, [key.size]])
+        return [(int(key[a]) // GROUP_BASE, int(key[a]) % GROUP_BASE - 1, slice(int(a), int(b)))
+                for a, b in zip(bounds[:-1], bounds[1:])]
+    return [(int(k) // GROUP_BASE, int(k) % GROUP_BASE - 1, np.flatnonzero(key == k)) for k in np.unique(key)]
+
+
 def _same(a):
     return a
 
@@ -228,19 +238,8 @@ class ClimbPhysics:
         self._derived()
 
     def _groups(self):
-        # One group per thrust model (per table for table engines). Cases sorted by group make
-        # each group a slice: views instead of gathers and scatters.
-        key = group_key(self.cases)
-        self.groups = []
-        if key.size and np.all(key[1:] >= key[:-1]):
-            bounds = np.concatenate([[0], np.flatnonzero(key[1:] != key[:-1]) + 1, [key.size]])
-            for start, stop in zip(bounds[:-1], bounds[1:]):
-                k = int(key[start])
-                self.groups.append((k // GROUP_BASE, k % GROUP_BASE - 1, slice(int(start), int(stop))))
-            return
-        for k in np.unique(key):
-            idx = np.flatnonzero(key == k)
-            self.groups.append((int(k) // GROUP_BASE, int(k) % GROUP_BASE - 1, idx))
+        # One group per thrust model (per table or propeller): slices where the cases are sorted.
+        self.groups = key_groups(group_key(self.cases))
 
     def subset(self, index) -> "ClimbPhysics":
         """The physics of some of the cases (an index array or slice), derived values taken along."""
