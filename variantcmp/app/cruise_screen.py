@@ -26,6 +26,7 @@ from variantcmp.units import OptionError, format_flight_level, format_isa_dev
 
 from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
+from .navigation import BackToCompare
 from .results import export_frame
 from .sketch_view import NO_TABLE, SketchView
 from .sorting import SortCycle
@@ -95,7 +96,7 @@ def computed_view(catalogue, conditions, scheme: str) -> tuple[CruiseView | None
         return None, f"could not compute the cruise table ({type(error).__name__}: {error})", 0.0
 
 
-class CruiseScreen(SortCycle, HoldsKeys, Screen):
+class CruiseScreen(SortCycle, BackToCompare, HoldsKeys, Screen):
     """Cruise levels at the compare screen's conditions (weights, ISA deviations, speed, climb)."""
 
     PICTURE_NAME = "cruise"  # in the name of a saved SVG (f2)
@@ -266,15 +267,6 @@ class CruiseScreen(SortCycle, HoldsKeys, Screen):
         self.action_inspect()
 
     # --- actions -------------------------------------------------------------------------------
-
-    def action_compare(self) -> None:
-        self.app.switch_mode("compare")
-
-    def action_conditions(self) -> None:
-        self.app.switch_mode("compare")
-        focus = getattr(self.app.screen, "action_focus_conditions", None)
-        if focus is not None:
-            focus()
 
     # Sorting (sorting.SortCycle): specific range first (best on top), then the level and the rest.
     FIRST_SORT = "sr"

@@ -32,6 +32,7 @@ from variantcmp.units import (
 
 from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
+from .navigation import BackFromFields
 from .results import export_frame
 from .sketch_view import SketchView
 from .view import NONE, ROW_KEY, Cell, justify, with_row_keys
@@ -81,7 +82,7 @@ def compute_engine_out(catalogue, conditions, options) -> tuple[EngineOut | None
         return None, f"could not compute the engine-out table ({type(error).__name__}: {error})", 0.0
 
 
-class EngineOutScreen(HoldsKeys, Screen):
+class EngineOutScreen(BackFromFields, HoldsKeys, Screen):
     PICTURE_NAME = "engine-out"  # in the name of a saved SVG (f2)
     BINDINGS = [
         Binding("escape", "compare", "Compare"),
@@ -266,12 +267,6 @@ class EngineOutScreen(HoldsKeys, Screen):
     @on(DataTable.RowSelected)
     def row_selected(self) -> None:
         self.action_inspect()
-
-    def action_compare(self) -> None:
-        if isinstance(self.focused, Input):
-            focus_now(self.query_one(DataTable))
-        else:
-            self.app.switch_mode("compare")
 
     def action_focus_fields(self) -> None:
         focus_now(self.query_one(f"#oei-{OEI_FIELDS[0].key}", Input))

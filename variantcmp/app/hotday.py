@@ -19,6 +19,7 @@ from variantcmp.units import OptionError, format_flight_level
 from .form import FIELDS_BY_KEY, parse_field
 from .jobs import LatestJob
 from .keys import HoldsKeys, focus_now
+from .navigation import BackFromFields
 from .planner_view import DEFAULT_SORT, PLANNER_BY_KEY, planner_cell, visible_planner_columns
 from .results import Results, compute_planner, export_frame
 from .sorting import SortCycle
@@ -28,7 +29,7 @@ from .widgets import CautionBanner, FittingFooter, TextEntry
 LOOKUP_FIELDS = ("weight", "isa", "target")
 
 
-class PlannerScreen(SortCycle, HoldsKeys, Screen):
+class PlannerScreen(SortCycle, BackFromFields, HoldsKeys, Screen):
     PICTURE_NAME = "planner"  # in the name of a saved SVG (f2)
     FIRST_SORT = "makes"
     BINDINGS = [
@@ -188,12 +189,6 @@ class PlannerScreen(SortCycle, HoldsKeys, Screen):
 
     def render_sorted(self) -> None:
         self._rerender()
-
-    def action_compare(self) -> None:
-        if isinstance(self.focused, Input):
-            focus_now(self.query_one(DataTable))
-        else:
-            self.app.switch_mode("compare")
 
     def action_focus_fields(self) -> None:
         focus_now(self.query_one("#lookup-weight", Input))

@@ -2,6 +2,10 @@
 
 from __future__ import annotations
 
+from textual.widgets import DataTable, Input
+
+from .keys import focus_now
+
 
 class BackToCompare:
     """Mixin for a screen opened from the compare screen: ``compare`` goes back to it,
@@ -15,3 +19,14 @@ class BackToCompare:
         focus = getattr(self.app.screen, "action_focus_conditions", None)
         if focus is not None:
             focus()
+
+
+class BackFromFields(BackToCompare):
+    """Mixin for a view with its own entry fields above a table: ``compare`` in a field leaves the
+    field for the table first (escape ends the typing), and only then goes back."""
+
+    def action_compare(self) -> None:
+        if isinstance(self.focused, Input):
+            focus_now(self.query_one(DataTable))
+        else:
+            super().action_compare()
